@@ -1,0 +1,96 @@
+namespace SummaryService.Sketches.Modes;
+
+/// <summary>
+/// Count-min table (Cormode &amp; Muthukrishnan, "An improved data stream summary: the count-min
+/// sketch and its applications", J. Algorithms 2005) with conservative update: a key's counters
+/// are raised only as far as its new estimate, which keeps every estimate an over-count while
+/// shrinking the over-count.
+/// </summary>
+/// <remarks>
+/// With width w = ⌈e/ε⌉ and depth d = ⌈ln(1/δ)⌉ an estimate exceeds the true count by more than
+/// εN with probability at most δ. Row indices come from one 64-bit hash split in two
+/// (Kirsch &amp; Mitzenmacher double hashing) and mapped onto the width by multiply-shift.
+/// </remarks>
+internal sealed class CountMinTable
+{
+    private readonly long[] _counters;
+
+    public CountMinTable(int width, int depth)
+        : this(width, depth, new long[checked(width * depth)])
+    {
+    }
+
+    public CountMinTable(int width, int depth, long[] counters)
+    {
+        Width = width;
+        Depth = depth;
+        _counters = counters;
+    }
+
+    public int Width { get; }
+
+    public int Depth { get; }
+
+    /// <summary>ε of the guarantee for this width: e / w.</summary>
+    public double Epsilon => Math.E / Width;
+
+    /// <summary>δ of the guarantee for this depth: e^−d.</summary>
+    public double FailureProbability => Math.Exp(-Depth);
+
+    public ReadOnlySpan<long> Counters => _counters;
+
+    /// <summary>Adds <paramref name="count"/> occurrences of a key and returns its new estimate.</summary>
+    public long Add(long key, long count)
+    {
+        ulong hash = ModeKey.Hash(key);
+        uint h1 = (uint)hash;
+        uint h2 = (uint)(hash >> 32) | 1;
+        Span<int> cells = stackalloc int[Depth];
+        long estimate = long.MaxValue;
+        for (int row = 0; row < Depth; row++)
+        {
+            int cell = (row * Width) + Column(h1 + ((uint)row * h2));
+            cells[row] = cell;
+            estimate = Math.Min(estimate, _counters[cell]);
+        }
+
+        long raised = estimate + count;
+        foreach (int cell in cells)
+        {
+            if (_counters[cell] < raised)
+            {
+                _counters[cell] = raised;
+            }
+        }
+
+        return raised;
+    }
+
+    public long Estimate(long key)
+    {
+        ulong hash = ModeKey.Hash(key);
+        uint h1 = (uint)hash;
+        uint h2 = (uint)(hash >> 32) | 1;
+        long estimate = long.MaxValue;
+        for (int row = 0; row < Depth; row++)
+        {
+            estimate = Math.Min(estimate, _counters[(row * Width) + Column(h1 + ((uint)row * h2))]);
+        }
+
+        return estimate;
+    }
+
+    /// <summary>Adds another table of the same shape cell by cell; estimates stay over-counts of the combined stream.</summary>
+    public void AddTable(CountMinTable other)
+    {
+        ReadOnlySpan<long> theirs = other._counters;
+        for (int i = 0; i < _counters.Length; i++)
+        {
+            _counters[i] += theirs[i];
+        }
+    }
+
+    public CountMinTable Clone() => new(Width, Depth, (long[])_counters.Clone());
+
+    private int Column(uint mixed) => (int)(((ulong)mixed * (ulong)Width) >> 32);
+}

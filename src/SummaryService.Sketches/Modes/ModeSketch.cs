@@ -1,0 +1,370 @@
+namespace SummaryService.Sketches.Modes;
+
+/// <summary>
+/// Most frequent values of a stream: exact counts while distinct keys are few, then a count-min
+/// table with conservative update plus a small set of tracked candidate keys.
+/// </summary>
+/// <remarks>
+/// Values are keyed by their exact bits, or by bins of width <see cref="Resolution"/> so that
+/// continuous measurements can have a mode. Nothing is allocated up front: the exact counter
+/// starts at a few slots and the count-min table appears only when the distinct keys exceed
+/// <see cref="ExactLimit"/>.
+/// </remarks>
+public sealed class ModeSketch
+{
+    /// <summary>Distinct keys counted exactly before switching to the count-min form.</summary>
+    public const int DefaultExactLimit = 128;
+
+    /// <summary>Count-min width: ε = e/136 ≈ 2% of the values counted.</summary>
+    public const int DefaultWidth = 136;
+
+    /// <summary>Count-min depth: δ = e^−5 ≈ 0.7% per key.</summary>
+    public const int DefaultDepth = 5;
+
+    /// <summary>Candidate keys tracked in the count-min form.</summary>
+    public const int DefaultCandidateLimit = 32;
+
+    private ExactCounter? _exact = new();
+    private CountMinTable? _table;
+    private long[] _candidateKeys = [];
+    private long[] _candidateCounts = [];
+    private int _candidateCount;
+    private long _candidateFloor;
+
+    /// <summary>Creates an empty sketch.</summary>
+    /// <param name="resolution">Bin width used to key values; 0 keys values by their exact bits.</param>
+    /// <param name="exactLimit">Distinct keys counted exactly before switching to count-min.</param>
+    /// <param name="width">Count-min width w = ⌈e/ε⌉.</param>
+    /// <param name="depth">Count-min depth d = ⌈ln(1/δ)⌉.</param>
+    /// <param name="candidateLimit">Candidate keys tracked once in count-min form.</param>
+    public ModeSketch(double resolution = 0, int exactLimit = DefaultExactLimit, int width = DefaultWidth, int depth = DefaultDepth, int candidateLimit = DefaultCandidateLimit)
+    {
+        if (!(resolution >= 0) || !double.IsFinite(resolution))
+        {
+            throw new ArgumentOutOfRangeException(nameof(resolution), resolution, "Resolution must be 0 (exact values) or a positive finite bin width.");
+        }
+
+        ArgumentOutOfRangeException.ThrowIfNegative(exactLimit);
+        ArgumentOutOfRangeException.ThrowIfLessThan(width, 2);
+        ArgumentOutOfRangeException.ThrowIfGreaterThan(width, 1 << 20);
+        ArgumentOutOfRangeException.ThrowIfLessThan(depth, 1);
+        ArgumentOutOfRangeException.ThrowIfGreaterThan(depth, 32);
+        ArgumentOutOfRangeException.ThrowIfLessThan(candidateLimit, 1);
+        ArgumentOutOfRangeException.ThrowIfGreaterThan(candidateLimit, 4096);
+        Resolution = resolution;
+        ExactLimit = exactLimit;
+        Width = width;
+        Depth = depth;
+        CandidateLimit = candidateLimit;
+    }
+
+    /// <summary>Bin width used to key values; 0 keys values by their exact bits.</summary>
+    public double Resolution { get; }
+
+    /// <summary>Distinct keys counted exactly before switching to count-min.</summary>
+    public int ExactLimit { get; }
+
+    /// <summary>Count-min width.</summary>
+    public int Width { get; }
+
+    /// <summary>Count-min depth.</summary>
+    public int Depth { get; }
+
+    /// <summary>Candidate keys tracked in count-min form.</summary>
+    public int CandidateLimit { get; }
+
+    /// <summary>Number of values counted.</summary>
+    public long Count { get; private set; }
+
+    /// <summary>True while every count is exact.</summary>
+    public bool IsExact => _exact is not null;
+
+    /// <summary>Largest over-count of any one estimate, at probability 1 − e^−d: ⌈εN⌉, or 0 while exact.</summary>
+    public long MaxOverCount => _table is null ? 0 : (long)Math.Ceiling(_table.Epsilon * Count);
+
+    /// <summary>Probability that one key's estimate over-counts by more than <see cref="MaxOverCount"/>.</summary>
+    public double FailureProbability => _table?.FailureProbability ?? 0;
+
+    /// <summary>Counts one finite value.</summary>
+    public void Add(double value)
+    {
+        FiniteValues.Require(value);
+        AddUnchecked(value);
+    }
+
+    /// <summary>Counts a span of finite values; a span with a NaN or infinity is rejected whole.</summary>
+    public void Add(ReadOnlySpan<double> values)
+    {
+        FiniteValues.Require(values);
+        AddUnchecked(values);
+    }
+
+    internal void AddUnchecked(double value) => AddKey(ModeKey.Of(value, Resolution), 1);
+
+    internal void AddUnchecked(ReadOnlySpan<double> values)
+    {
+        double resolution = Resolution;
+        foreach (double v in values)
+        {
+            AddKey(ModeKey.Of(v, resolution), 1);
+        }
+    }
+
+    /// <summary>Merges another sketch with the same keying and table shape into this one.</summary>
+    public void Merge(ModeSketch other)
+    {
+        ArgumentNullException.ThrowIfNull(other);
+        if (ReferenceEquals(other, this))
+        {
+            other = Clone();
+        }
+
+        if (other.Resolution.CompareTo(Resolution) != 0 || other.Width != Width || other.Depth != Depth)
+        {
+            throw new ArgumentException($"Cannot merge mode sketches keyed or shaped differently (resolution {Resolution} vs {other.Resolution}, table {Width}x{Depth} vs {other.Width}x{other.Depth}).", nameof(other));
+        }
+
+        if (other._exact is not null)
+        {
+            foreach ((long key, long count) in other._exact.SortedEntries())
+            {
+                AddKey(key, count);
+            }
+
+            return;
+        }
+
+        if (_table is null)
+        {
+            SwitchToTable();
+        }
+
+        _table!.AddTable(other._table!);
+        Count += other.Count;
+        var keys = new HashSet<long>(CandidateKeys().ToArray());
+        keys.UnionWith(other.CandidateKeys().ToArray());
+        RebuildCandidates(keys);
+    }
+
+    /// <summary>
+    /// Every value that could be the most frequent, most frequent first: each reported value's
+    /// count interval reaches the highest lower bound among all candidates. Exact ties are all listed.
+    /// </summary>
+    public ModeEstimate[] Modes(int maxModes)
+    {
+        ArgumentOutOfRangeException.ThrowIfLessThan(maxModes, 0);
+        var all = Estimates();
+        if (all.Count == 0 || maxModes == 0)
+        {
+            return [];
+        }
+
+        long floor = all.Max(e => e.CountLow);
+        return all.Where(e => e.CountHigh >= floor)
+            .OrderByDescending(e => e.Count)
+            .ThenBy(e => e.Value)
+            .Take(maxModes)
+            .ToArray();
+    }
+
+    /// <summary>Number of values that could be the mode, before any limit is applied.</summary>
+    public int ModeCandidateCount()
+    {
+        var all = Estimates();
+        if (all.Count == 0)
+        {
+            return 0;
+        }
+
+        long floor = all.Max(e => e.CountLow);
+        return all.Count(e => e.CountHigh >= floor);
+    }
+
+    /// <summary>Estimated count of one value's key with its interval.</summary>
+    public ModeEstimate Estimate(double value)
+    {
+        long key = ModeKey.Of(value, Resolution);
+        return EstimateOf(key);
+    }
+
+    /// <summary>Creates an independent copy.</summary>
+    public ModeSketch Clone()
+    {
+        var copy = (ModeSketch)MemberwiseClone();
+        copy._exact = _exact?.Clone();
+        copy._table = _table?.Clone();
+        copy._candidateKeys = (long[])_candidateKeys.Clone();
+        copy._candidateCounts = (long[])_candidateCounts.Clone();
+        return copy;
+    }
+
+    internal (long Key, long Count)[]? ExactEntries => _exact?.SortedEntries();
+
+    internal ReadOnlySpan<long> TableCounters => _table is null ? default : _table.Counters;
+
+    internal long[] SortedCandidateKeys()
+    {
+        long[] keys = CandidateKeys().ToArray();
+        Array.Sort(keys);
+        return keys;
+    }
+
+    /// <summary>Rebuilds a sketch from validated parts (see <c>SketchCodec</c>).</summary>
+    internal static ModeSketch Restore(ModeSketch empty, long count, (long Key, long Count)[]? exact, long[]? counters, long[] candidates)
+    {
+        if (exact is not null)
+        {
+            foreach ((long key, long c) in exact)
+            {
+                empty._exact!.Add(key, c);
+            }
+
+            empty.Count = count;
+            return empty;
+        }
+
+        empty._exact = null;
+        empty._table = new CountMinTable(empty.Width, empty.Depth, counters!);
+        empty.Count = count;
+        empty.RebuildCandidates(candidates);
+        return empty;
+    }
+
+    private void AddKey(long key, long count)
+    {
+        Count += count;
+        if (_exact is not null)
+        {
+            _exact.Add(key, count);
+            if (_exact.Distinct > ExactLimit)
+            {
+                SwitchToTable();
+            }
+
+            return;
+        }
+
+        long estimate = _table!.Add(key, count);
+        if (_candidateCount < CandidateLimit || estimate > _candidateFloor)
+        {
+            TrackCandidate(key, estimate);
+        }
+    }
+
+    private void TrackCandidate(long key, long estimate)
+    {
+        for (int i = 0; i < _candidateCount; i++)
+        {
+            if (_candidateKeys[i] == key)
+            {
+                bool wasFloor = _candidateCounts[i] == _candidateFloor;
+                _candidateCounts[i] = estimate;
+                if (wasFloor)
+                {
+                    RefreshFloor();
+                }
+
+                return;
+            }
+        }
+
+        if (_candidateCount < CandidateLimit)
+        {
+            if (_candidateCount == _candidateKeys.Length)
+            {
+                int grown = Math.Min(CandidateLimit, Math.Max(4, _candidateCount * 2));
+                Array.Resize(ref _candidateKeys, grown);
+                Array.Resize(ref _candidateCounts, grown);
+            }
+
+            _candidateKeys[_candidateCount] = key;
+            _candidateCounts[_candidateCount++] = estimate;
+            RefreshFloor();
+            return;
+        }
+
+        int weakest = 0;
+        for (int i = 1; i < _candidateCount; i++)
+        {
+            if (_candidateCounts[i] < _candidateCounts[weakest])
+            {
+                weakest = i;
+            }
+        }
+
+        _candidateKeys[weakest] = key;
+        _candidateCounts[weakest] = estimate;
+        RefreshFloor();
+    }
+
+    private void RefreshFloor()
+    {
+        long floor = long.MaxValue;
+        for (int i = 0; i < _candidateCount; i++)
+        {
+            floor = Math.Min(floor, _candidateCounts[i]);
+        }
+
+        _candidateFloor = _candidateCount == 0 ? 0 : floor;
+    }
+
+    private void SwitchToTable()
+    {
+        var entries = _exact!.SortedEntries();
+        _exact = null;
+        _table = new CountMinTable(Width, Depth);
+        foreach ((long key, long count) in entries)
+        {
+            _table.Add(key, count);
+        }
+
+        RebuildCandidates(entries.Select(e => e.Key));
+    }
+
+    // Candidates are re-estimated against the table and the strongest kept; ties go to the smaller key
+    // so that the outcome does not depend on set iteration order.
+    private void RebuildCandidates(IEnumerable<long> keys)
+    {
+        var ranked = keys.Select(k => (Key: k, Count: _table!.Estimate(k)))
+            .OrderByDescending(e => e.Count)
+            .ThenBy(e => e.Key)
+            .Take(CandidateLimit)
+            .ToArray();
+        _candidateKeys = ranked.Select(e => e.Key).ToArray();
+        _candidateCounts = ranked.Select(e => e.Count).ToArray();
+        _candidateCount = ranked.Length;
+        RefreshFloor();
+    }
+
+    private ReadOnlySpan<long> CandidateKeys() => _candidateKeys.AsSpan(0, _candidateCount);
+
+    private List<ModeEstimate> Estimates()
+    {
+        if (_exact is not null)
+        {
+            return _exact.SortedEntries()
+                .Select(e => new ModeEstimate(ModeKey.ValueOf(e.Key), e.Count, e.Count, e.Count))
+                .ToList();
+        }
+
+        var list = new List<ModeEstimate>(_candidateCount);
+        foreach (long key in CandidateKeys())
+        {
+            list.Add(EstimateOf(key));
+        }
+
+        return list;
+    }
+
+    private ModeEstimate EstimateOf(long key)
+    {
+        if (_exact is not null)
+        {
+            long exact = _exact.CountOf(key);
+            return new ModeEstimate(ModeKey.ValueOf(key), exact, exact, exact);
+        }
+
+        long estimate = _table!.Estimate(key);
+        return new ModeEstimate(ModeKey.ValueOf(key), estimate, Math.Max(0, estimate - MaxOverCount), estimate);
+    }
+}

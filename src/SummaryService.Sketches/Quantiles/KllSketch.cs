@@ -1,0 +1,505 @@
+namespace SummaryService.Sketches.Quantiles;
+
+/// <summary>
+/// KLL quantile sketch (Karnin, Lang &amp; Liberty, "Optimal Quantile Approximation in Streams",
+/// FOCS 2016) with lazy compaction: a level is compacted only when the whole sketch is full,
+/// and then the lowest level that has reached its capacity.
+/// </summary>
+/// <remarks>
+/// <para>Level h holds items that each stand for 2^h values. The top level may hold k items and
+/// each level below holds 2/3 of the one above (at least <see cref="MinLevelWidth"/>), so the
+/// sketch keeps about 3k items however long the stream. A compaction sorts a level and promotes
+/// every second item, from a random offset, to the level above.</para>
+/// <para>Error: one compaction at level h moves the estimated rank of any fixed point by 0 or
+/// ±2^h with zero mean. The sketch counts compactions per level (merges add the counts), so the
+/// rank error bound it reports is the data-dependent Hoeffding bound over the compactions that
+/// actually happened — exactly 0 while nothing has been compacted.</para>
+/// <para>Memory grows with the data: an empty sketch holds no item buffer and level buffers
+/// grow as they fill.</para>
+/// </remarks>
+public sealed class KllSketch
+{
+    /// <summary>Top-level capacity used when none is given.</summary>
+    public const int DefaultK = 200;
+
+    /// <summary>Smallest accepted k.</summary>
+    public const int MinK = 8;
+
+    /// <summary>Largest accepted k.</summary>
+    public const int MaxK = 1 << 16;
+
+    /// <summary>No level is narrower than this, so low levels still compact in useful batches.</summary>
+    public const int MinLevelWidth = 8;
+
+    /// <summary>Enough levels for 2^62 values at any k.</summary>
+    internal const int MaxLevels = 62;
+
+    private static readonly double[] s_shrink = BuildShrinkTable();
+
+    private double[][] _levels = [[]];
+    private int[] _sizes = new int[1];
+    private long[] _compactions = new long[1];
+    private int _levelCount = 1;
+    private int _retained;
+    private int _capacity;
+    private SplitMix64 _random;
+
+    /// <summary>Creates an empty sketch.</summary>
+    /// <param name="k">Top-level capacity; larger k means smaller error and more memory (about 3k items).</param>
+    /// <param name="seed">Seed of the compaction coin. Leave it out in production so that sketches
+    /// that will later be merged flip independent coins, which the error bound assumes; give it
+    /// in tests to make runs reproducible.</param>
+    public KllSketch(int k = DefaultK, ulong? seed = null)
+    {
+        if (k is < MinK or > MaxK)
+        {
+            throw new ArgumentOutOfRangeException(nameof(k), k, $"k must be between {MinK} and {MaxK}.");
+        }
+
+        K = k;
+        _random = new SplitMix64(seed ?? (ulong)Random.Shared.NextInt64());
+        _capacity = TotalCapacity(k, 1);
+        Min = Max = double.NaN;
+    }
+
+    /// <summary>Top-level capacity.</summary>
+    public int K { get; }
+
+    /// <summary>Number of values folded in.</summary>
+    public long Count { get; private set; }
+
+    /// <summary>Exact smallest value; <see cref="double.NaN"/> while empty.</summary>
+    public double Min { get; private set; }
+
+    /// <summary>Exact largest value; <see cref="double.NaN"/> while empty.</summary>
+    public double Max { get; private set; }
+
+    /// <summary>True while no compaction has happened: every value is retained with weight 1.</summary>
+    public bool IsExact
+    {
+        get
+        {
+            for (int h = 0; h < _levelCount; h++)
+            {
+                if (_compactions[h] != 0)
+                {
+                    return false;
+                }
+            }
+
+            return true;
+        }
+    }
+
+    /// <summary>Number of compactor levels in use.</summary>
+    public int LevelCount => _levelCount;
+
+    /// <summary>Number of items held across all levels.</summary>
+    public int RetainedItems => _retained;
+
+    /// <summary>
+    /// Σ over all compactions of (2^h)², the variance proxy of the rank error at any fixed point.
+    /// </summary>
+    public double RankErrorVarianceSum
+    {
+        get
+        {
+            double sum = 0;
+            for (int h = 0; h < _levelCount; h++)
+            {
+                sum += _compactions[h] * Math.ScaleB(1.0, 2 * h);
+            }
+
+            return sum;
+        }
+    }
+
+    /// <summary>
+    /// Largest error of an estimated rank, in values, that holds with probability at least
+    /// 1 − <paramref name="failureProbability"/> at any one point: Hoeffding's inequality over the
+    /// compactions so far, t = sqrt(2 · Σ4^h · ln(2/p)).
+    /// </summary>
+    public double RankErrorCount(double failureProbability)
+    {
+        double v = RankErrorVarianceSum;
+        return v == 0 ? 0 : Math.Sqrt(2.0 * v * Math.Log(2.0 / failureProbability));
+    }
+
+    /// <summary>Normalized rank error ε = t/n at the given confidence (for example 0.99).</summary>
+    public double RankError(double confidence)
+    {
+        Confidence.Require(confidence);
+        return Count == 0 ? 0 : RankErrorCount(1.0 - confidence) / Count;
+    }
+
+    /// <summary>Folds in one finite value.</summary>
+    public void Add(double value)
+    {
+        FiniteValues.Require(value);
+        AddUnchecked(value);
+    }
+
+    /// <summary>Folds in a span of finite values; a span with a NaN or infinity is rejected whole.</summary>
+    public void Add(ReadOnlySpan<double> values)
+    {
+        FiniteValues.Require(values);
+        AddUnchecked(values);
+    }
+
+    internal void AddUnchecked(double value)
+    {
+        if (_retained >= _capacity)
+        {
+            Compress();
+        }
+
+        EnsureRoom(0, 1);
+        _levels[0][_sizes[0]++] = value;
+        _retained++;
+        TrackRange(value, value, 1);
+    }
+
+    internal void AddUnchecked(ReadOnlySpan<double> values)
+    {
+        if (values.IsEmpty)
+        {
+            return;
+        }
+
+        double min = values[0];
+        double max = values[0];
+        int next = 0;
+        while (next < values.Length)
+        {
+            if (_retained >= _capacity)
+            {
+                Compress();
+            }
+
+            int take = Math.Min(_capacity - _retained, values.Length - next);
+            EnsureRoom(0, take);
+            ReadOnlySpan<double> chunk = values.Slice(next, take);
+            chunk.CopyTo(_levels[0].AsSpan(_sizes[0]));
+            foreach (double v in chunk)
+            {
+                min = Math.Min(min, v);
+                max = Math.Max(max, v);
+            }
+
+            _sizes[0] += take;
+            _retained += take;
+            next += take;
+        }
+
+        TrackRange(min, max, values.Length);
+    }
+
+    /// <summary>Merges another sketch into this one. The other sketch is left unchanged.</summary>
+    public void Merge(KllSketch other)
+    {
+        ArgumentNullException.ThrowIfNull(other);
+        if (ReferenceEquals(other, this))
+        {
+            other = Clone();
+        }
+
+        if (other.Count == 0)
+        {
+            return;
+        }
+
+        while (_levelCount < other._levelCount)
+        {
+            AddLevel();
+        }
+
+        for (int h = 0; h < other._levelCount; h++)
+        {
+            ReadOnlySpan<double> items = other._levels[h].AsSpan(0, other._sizes[h]);
+            if (h == 0)
+            {
+                EnsureRoom(0, items.Length);
+                items.CopyTo(_levels[0].AsSpan(_sizes[0]));
+                _sizes[0] += items.Length;
+            }
+            else
+            {
+                MergeSortedInto(h, items);
+            }
+
+            _compactions[h] += other._compactions[h];
+        }
+
+        _retained += other._retained;
+        TrackRange(other.Min, other.Max, other.Count);
+        while (_retained > _capacity)
+        {
+            Compress();
+        }
+    }
+
+    /// <summary>Creates an independent copy, including the state of its random source.</summary>
+    public KllSketch Clone()
+    {
+        var copy = (KllSketch)MemberwiseClone();
+        copy._levels = new double[_levels.Length][];
+        for (int h = 0; h < _levels.Length; h++)
+        {
+            copy._levels[h] = _levels[h].AsSpan(0, _sizes[h]).ToArray();
+        }
+
+        copy._sizes = (int[])_sizes.Clone();
+        copy._compactions = (long[])_compactions.Clone();
+        return copy;
+    }
+
+    /// <summary>Builds the sorted, weighted view that answers rank and quantile queries.</summary>
+    public KllSortedView CreateView()
+    {
+        var values = new double[_retained];
+        var weights = new long[_retained];
+        var scratchValues = new double[_retained];
+        var scratchWeights = new long[_retained];
+
+        // Level 0 is the only unsorted level; every level above is kept sorted, so the view is a
+        // sequence of linear merges rather than a sort of everything.
+        int filled = _sizes[0];
+        _levels[0].AsSpan(0, filled).CopyTo(values);
+        values.AsSpan(0, filled).Sort();
+        weights.AsSpan(0, filled).Fill(1);
+        for (int h = 1; h < _levelCount; h++)
+        {
+            int size = _sizes[h];
+            if (size == 0)
+            {
+                continue;
+            }
+
+            long weight = 1L << h;
+            MergeWeighted(values, weights, filled, _levels[h].AsSpan(0, size), weight, scratchValues, scratchWeights);
+            (values, scratchValues) = (scratchValues, values);
+            (weights, scratchWeights) = (scratchWeights, weights);
+            filled += size;
+        }
+
+        for (int i = 1; i < weights.Length; i++)
+        {
+            weights[i] += weights[i - 1];
+        }
+
+        return new KllSortedView(values, weights, Count, Min, Max);
+    }
+
+    /// <summary>Capacity of level <paramref name="level"/> when <paramref name="levelCount"/> levels are in use.</summary>
+    public static int LevelCapacity(int k, int level, int levelCount)
+    {
+        int depth = levelCount - 1 - level;
+        return Math.Max(MinLevelWidth, (int)Math.Ceiling(k * s_shrink[depth]));
+    }
+
+    internal ReadOnlySpan<double> LevelItems(int level) => _levels[level].AsSpan(0, _sizes[level]);
+
+    internal long LevelCompactions(int level) => _compactions[level];
+
+    internal ulong RandomState => _random.State;
+
+    /// <summary>Rebuilds a sketch from validated parts (see <c>SketchCodec</c>).</summary>
+    internal static KllSketch Restore(int k, long count, double min, double max, double[][] levels, long[] compactions, ulong randomState)
+    {
+        var sketch = new KllSketch(k, randomState)
+        {
+            Count = count,
+            Min = count == 0 ? double.NaN : min,
+            Max = count == 0 ? double.NaN : max,
+            _levelCount = levels.Length,
+            _levels = levels,
+            _sizes = levels.Select(l => l.Length).ToArray(),
+            _compactions = compactions,
+        };
+        sketch._retained = sketch._sizes.Sum();
+        sketch._capacity = TotalCapacity(k, levels.Length);
+        return sketch;
+    }
+
+    internal static int TotalCapacity(int k, int levelCount)
+    {
+        int total = 0;
+        for (int h = 0; h < levelCount; h++)
+        {
+            total += LevelCapacity(k, h, levelCount);
+        }
+
+        return total;
+    }
+
+    private void TrackRange(double min, double max, long count)
+    {
+        if (Count == 0)
+        {
+            Min = min;
+            Max = max;
+        }
+        else
+        {
+            Min = Math.Min(Min, min);
+            Max = Math.Max(Max, max);
+        }
+
+        Count += count;
+    }
+
+    private void Compress()
+    {
+        int h = 0;
+        while (_sizes[h] < LevelCapacity(K, h, _levelCount))
+        {
+            h++;
+        }
+
+        if (h == _levelCount - 1)
+        {
+            AddLevel();
+        }
+
+        CompactLevel(h);
+    }
+
+    private void CompactLevel(int h)
+    {
+        double[] items = _levels[h];
+        int size = _sizes[h];
+        if (h == 0)
+        {
+            items.AsSpan(0, size).Sort();
+        }
+
+        // An odd item out stays behind at this level with its weight; any even-sized sorted run
+        // may be compacted without changing the error argument.
+        int even = size & ~1;
+        bool odd = (size & 1) == 1;
+        double leftover = odd ? items[even] : 0;
+        int offset = _random.NextBit();
+        int half = even / 2;
+        for (int i = 0; i < half; i++)
+        {
+            items[i] = items[(2 * i) + offset];
+        }
+
+        MergeSortedInto(h + 1, items.AsSpan(0, half));
+        if (odd)
+        {
+            items[0] = leftover;
+        }
+
+        _sizes[h] = odd ? 1 : 0;
+        _compactions[h]++;
+        _retained -= half;
+    }
+
+    private void AddLevel()
+    {
+        if (_levelCount == MaxLevels)
+        {
+            throw new InvalidOperationException("KLL sketch cannot hold more levels.");
+        }
+
+        if (_levelCount == _levels.Length)
+        {
+            int grown = _levelCount + 4;
+            Array.Resize(ref _levels, grown);
+            Array.Resize(ref _sizes, grown);
+            Array.Resize(ref _compactions, grown);
+            for (int h = _levelCount; h < grown; h++)
+            {
+                _levels[h] = [];
+            }
+        }
+
+        _levelCount++;
+        _capacity = TotalCapacity(K, _levelCount);
+    }
+
+    private void EnsureRoom(int level, int extra)
+    {
+        double[] items = _levels[level];
+        int needed = _sizes[level] + extra;
+        if (needed <= items.Length)
+        {
+            return;
+        }
+
+        int grown = Math.Max(needed, Math.Max(MinLevelWidth, items.Length + (items.Length / 2)));
+        Array.Resize(ref _levels[level], grown);
+    }
+
+    // Merges sorted items into a sorted level in place, from the back, so no scratch buffer is needed.
+    private void MergeSortedInto(int level, ReadOnlySpan<double> incoming)
+    {
+        if (incoming.IsEmpty)
+        {
+            return;
+        }
+
+        EnsureRoom(level, incoming.Length);
+        double[] target = _levels[level];
+        int i = _sizes[level] - 1;
+        int j = incoming.Length - 1;
+        int write = _sizes[level] + incoming.Length - 1;
+        while (j >= 0)
+        {
+            if (i >= 0 && target[i] > incoming[j])
+            {
+                target[write--] = target[i--];
+            }
+            else
+            {
+                target[write--] = incoming[j--];
+            }
+        }
+
+        _sizes[level] += incoming.Length;
+    }
+
+    private static void MergeWeighted(double[] values, long[] weights, int filled, ReadOnlySpan<double> level, long weight, double[] outValues, long[] outWeights)
+    {
+        int i = 0;
+        int j = 0;
+        int write = 0;
+        while (i < filled && j < level.Length)
+        {
+            if (values[i] <= level[j])
+            {
+                outValues[write] = values[i];
+                outWeights[write++] = weights[i++];
+            }
+            else
+            {
+                outValues[write] = level[j++];
+                outWeights[write++] = weight;
+            }
+        }
+
+        while (i < filled)
+        {
+            outValues[write] = values[i];
+            outWeights[write++] = weights[i++];
+        }
+
+        while (j < level.Length)
+        {
+            outValues[write] = level[j++];
+            outWeights[write++] = weight;
+        }
+    }
+
+    private static double[] BuildShrinkTable()
+    {
+        var table = new double[MaxLevels + 1];
+        for (int depth = 0; depth < table.Length; depth++)
+        {
+            table[depth] = Math.Pow(2.0 / 3.0, depth);
+        }
+
+        return table;
+    }
+}

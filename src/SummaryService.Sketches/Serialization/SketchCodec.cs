@@ -1,0 +1,325 @@
+using Google.Protobuf;
+using SummaryService.Contract.V1;
+using SummaryService.Sketches.Modes;
+using SummaryService.Sketches.Moments;
+using SummaryService.Sketches.Quantiles;
+
+namespace SummaryService.Sketches.Serialization;
+
+/// <summary>
+/// Converts sketches to their <c>sketch.proto</c> messages and back. Writing then reading gives a
+/// sketch in the same state, whose own bytes are identical. Reading treats the bytes as untrusted
+/// (they arrive from clients and from disk) and rejects any state a sketch could not be in.
+/// </summary>
+public static class SketchCodec
+{
+    /// <summary>Version written into <see cref="SeriesSketchState.Version"/>.</summary>
+    public const uint FormatVersion = 1;
+
+    /// <summary>Serializes a series sketch.</summary>
+    public static byte[] Serialize(SeriesSketch sketch) => ToState(sketch).ToByteArray();
+
+    /// <summary>Reads a series sketch from bytes.</summary>
+    /// <exception cref="SketchFormatException">The bytes are not a valid series sketch.</exception>
+    public static SeriesSketch Deserialize(ReadOnlySpan<byte> bytes)
+    {
+        SeriesSketchState state;
+        try
+        {
+            state = SeriesSketchState.Parser.ParseFrom(bytes);
+        }
+        catch (InvalidProtocolBufferException ex)
+        {
+            throw new SketchFormatException($"Sketch bytes are not a SeriesSketchState message: {ex.Message}", ex);
+        }
+
+        return FromState(state);
+    }
+
+    /// <summary>The message form of a series sketch.</summary>
+    public static SeriesSketchState ToState(SeriesSketch sketch)
+    {
+        ArgumentNullException.ThrowIfNull(sketch);
+        return new SeriesSketchState
+        {
+            Version = FormatVersion,
+            Moments = ToState(sketch.Moments),
+            Quantiles = ToState(sketch.Quantiles),
+            Modes = ToState(sketch.Modes),
+        };
+    }
+
+    /// <summary>Rebuilds a series sketch from its message form.</summary>
+    /// <exception cref="SketchFormatException">The state is not one a series sketch can be in.</exception>
+    public static SeriesSketch FromState(SeriesSketchState state)
+    {
+        ArgumentNullException.ThrowIfNull(state);
+        Check(state.Version == FormatVersion, $"version is {state.Version}; this reader knows version {FormatVersion} only.");
+        Check(state.Moments is not null, "moments is missing.");
+        Check(state.Quantiles is not null, "quantiles is missing.");
+        Check(state.Modes is not null, "modes is missing.");
+        var moments = FromState(state.Moments!);
+        var quantiles = FromState(state.Quantiles!);
+        var modes = FromState(state.Modes!);
+        Check(
+            quantiles.Count == moments.Count && modes.Count == moments.Count,
+            $"counts disagree: moments.count {moments.Count}, quantiles.count {quantiles.Count}, modes.count {modes.Count}.");
+        return new SeriesSketch(moments, quantiles, modes);
+    }
+
+    /// <summary>The message form of a moment sketch.</summary>
+    public static MomentState ToState(MomentSketch sketch)
+    {
+        bool empty = sketch.Count == 0;
+        return new MomentState
+        {
+            Count = (ulong)sketch.Count,
+            Min = empty ? 0 : sketch.Min,
+            Max = empty ? 0 : sketch.Max,
+            Mean = empty ? 0 : sketch.Mean,
+            Sum = sketch.RawSum,
+            SumCompensation = sketch.RawSumCompensation,
+            M2 = sketch.M2,
+            M3 = sketch.M3,
+            M4 = sketch.M4,
+        };
+    }
+
+    /// <summary>Rebuilds a moment sketch, checking every field.</summary>
+    public static MomentSketch FromState(MomentState state)
+    {
+        ArgumentNullException.ThrowIfNull(state);
+        long count = CheckedCount(state.Count, "moments.count");
+        double[] fields = [state.Min, state.Max, state.Mean, state.Sum, state.SumCompensation, state.M2, state.M3, state.M4];
+        string[] names = ["min", "max", "mean", "sum", "sum_compensation", "m2", "m3", "m4"];
+        for (int i = 0; i < fields.Length; i++)
+        {
+            Check(double.IsFinite(fields[i]), $"moments.{names[i]} is {fields[i]}; it must be finite.");
+        }
+
+        Check(state.M2 >= 0, $"moments.m2 is {state.M2}; a sum of squares cannot be negative.");
+        Check(state.M4 >= 0, $"moments.m4 is {state.M4}; a sum of fourth powers cannot be negative.");
+        if (count == 0)
+        {
+            Check(
+                state.Min == 0 && state.Max == 0 && state.Mean == 0 && state.Sum == 0 && state.SumCompensation == 0 && state.M2 == 0 && state.M3 == 0 && state.M4 == 0,
+                "moments.count is 0 but other fields are set.");
+        }
+        else
+        {
+            Check(state.Min <= state.Max, $"moments.min {state.Min} exceeds moments.max {state.Max}.");
+            Check(count > 1 || state.M2 == 0, $"moments.m2 is {state.M2} for a single value.");
+        }
+
+        var sketch = new MomentSketch();
+        sketch.Restore(count, state.Min, state.Max, state.Sum, state.SumCompensation, state.Mean, state.M2, state.M3, state.M4);
+        return sketch;
+    }
+
+    /// <summary>The message form of a KLL sketch.</summary>
+    public static KllState ToState(KllSketch sketch)
+    {
+        bool empty = sketch.Count == 0;
+        var state = new KllState
+        {
+            K = (uint)sketch.K,
+            Count = (ulong)sketch.Count,
+            Min = empty ? 0 : sketch.Min,
+            Max = empty ? 0 : sketch.Max,
+            RandomState = sketch.RandomState,
+        };
+        for (int h = 0; h < sketch.LevelCount; h++)
+        {
+            var level = new KllLevel { Compactions = (ulong)sketch.LevelCompactions(h) };
+            level.Items.AddRange(sketch.LevelItems(h).ToArray());
+            state.Levels.Add(level);
+        }
+
+        return state;
+    }
+
+    /// <summary>Rebuilds a KLL sketch, checking k, counts, level sizes against capacity, ordering and finiteness.</summary>
+    public static KllSketch FromState(KllState state)
+    {
+        ArgumentNullException.ThrowIfNull(state);
+        Check(state.K is >= KllSketch.MinK and <= KllSketch.MaxK, $"quantiles.k is {state.K}; it must be between {KllSketch.MinK} and {KllSketch.MaxK}.");
+        int k = (int)state.K;
+        long count = CheckedCount(state.Count, "quantiles.count");
+        int levelCount = state.Levels.Count;
+        Check(levelCount is >= 1 and <= KllSketch.MaxLevels, $"quantiles.levels has {levelCount} levels; it must have between 1 and {KllSketch.MaxLevels}.");
+        Check(double.IsFinite(state.Min) && double.IsFinite(state.Max), $"quantiles.min/max are {state.Min}/{state.Max}; they must be finite.");
+        if (count == 0)
+        {
+            Check(state.Min == 0 && state.Max == 0, "quantiles.count is 0 but min/max are set.");
+        }
+        else
+        {
+            Check(state.Min <= state.Max, $"quantiles.min {state.Min} exceeds quantiles.max {state.Max}.");
+        }
+
+        int capacity = KllSketch.TotalCapacity(k, levelCount);
+        var levels = new double[levelCount][];
+        var compactions = new long[levelCount];
+        long retained = 0;
+        long weighted = 0;
+        for (int h = 0; h < levelCount; h++)
+        {
+            KllLevel level = state.Levels[h];
+            double[] items = level.Items.ToArray();
+            retained += items.Length;
+            Check(retained <= capacity, $"quantiles.levels hold more than the {capacity} items {levelCount} levels allow at k = {k}.");
+            for (int i = 0; i < items.Length; i++)
+            {
+                double v = items[i];
+                Check(double.IsFinite(v), $"quantiles.levels[{h}].items[{i}] is {v}; items must be finite.");
+                Check(v >= state.Min && v <= state.Max, $"quantiles.levels[{h}].items[{i}] is {v}, outside [min {state.Min}, max {state.Max}].");
+                Check(h == 0 || i == 0 || items[i - 1] <= v, $"quantiles.levels[{h}].items[{i}] is {v}, below the item before it; levels above 0 must be sorted.");
+            }
+
+            compactions[h] = CheckedCount(level.Compactions, $"quantiles.levels[{h}].compactions");
+            try
+            {
+                weighted = checked(weighted + (items.LongLength << h));
+            }
+            catch (OverflowException)
+            {
+                throw new SketchFormatException($"quantiles.levels[{h}] carries more weight than a count can hold.");
+            }
+
+            levels[h] = items;
+        }
+
+        Check(weighted == count, $"quantiles.count is {count} but the levels' items stand for {weighted} values.");
+        return KllSketch.Restore(k, count, state.Min, state.Max, levels, compactions, state.RandomState);
+    }
+
+    /// <summary>The message form of a mode sketch.</summary>
+    public static ModeState ToState(ModeSketch sketch)
+    {
+        var state = new ModeState
+        {
+            Resolution = sketch.Resolution,
+            Count = (ulong)sketch.Count,
+            ExactLimit = (uint)sketch.ExactLimit,
+            Width = (uint)sketch.Width,
+            Depth = (uint)sketch.Depth,
+            CandidateLimit = (uint)sketch.CandidateLimit,
+        };
+        if (sketch.ExactEntries is { } entries)
+        {
+            foreach ((long key, long count) in entries)
+            {
+                state.ExactKeys.Add(key);
+                state.ExactCounts.Add((ulong)count);
+            }
+        }
+        else
+        {
+            foreach (long counter in sketch.TableCounters)
+            {
+                state.Counters.Add((ulong)counter);
+            }
+
+            state.Candidates.AddRange(sketch.SortedCandidateKeys());
+        }
+
+        return state;
+    }
+
+    /// <summary>Rebuilds a mode sketch, checking its settings, keys, counts and table.</summary>
+    public static ModeSketch FromState(ModeState state)
+    {
+        ArgumentNullException.ThrowIfNull(state);
+        ModeSketch empty;
+        try
+        {
+            empty = new ModeSketch(state.Resolution, checked((int)state.ExactLimit), checked((int)state.Width), checked((int)state.Depth), checked((int)state.CandidateLimit));
+        }
+        catch (Exception ex) when (ex is ArgumentException or OverflowException)
+        {
+            throw new SketchFormatException($"modes settings are invalid: {ex.Message}", ex);
+        }
+
+        long count = CheckedCount(state.Count, "modes.count");
+        if (state.Counters.Count == 0)
+        {
+            Check(state.Candidates.Count == 0, "modes.candidates is set but the sketch has no count-min table.");
+            Check(state.ExactKeys.Count == state.ExactCounts.Count, $"modes.exact_keys has {state.ExactKeys.Count} entries but modes.exact_counts has {state.ExactCounts.Count}.");
+            Check(state.ExactKeys.Count <= empty.ExactLimit, $"modes.exact_keys has {state.ExactKeys.Count} keys, over modes.exact_limit {empty.ExactLimit}.");
+            var entries = new (long Key, long Count)[state.ExactKeys.Count];
+            long total = 0;
+            for (int i = 0; i < entries.Length; i++)
+            {
+                long key = state.ExactKeys[i];
+                CheckKey(key, $"modes.exact_keys[{i}]");
+                Check(i == 0 || state.ExactKeys[i - 1] < key, $"modes.exact_keys[{i}] is not above the key before it; keys must be strictly ascending.");
+                long c = CheckedCount(state.ExactCounts[i], $"modes.exact_counts[{i}]");
+                Check(c > 0, $"modes.exact_counts[{i}] is 0; counted keys have positive counts.");
+                total = CheckedSum(total, c, "modes.exact_counts");
+                entries[i] = (key, c);
+            }
+
+            Check(total == count, $"modes.count is {count} but the exact counts add up to {total}.");
+            return ModeSketch.Restore(empty, count, entries, null, []);
+        }
+
+        Check(state.ExactKeys.Count == 0 && state.ExactCounts.Count == 0, "modes has both exact counts and a count-min table.");
+        long cells = (long)empty.Width * empty.Depth;
+        Check(state.Counters.Count == cells, $"modes.counters has {state.Counters.Count} cells; a {empty.Width} x {empty.Depth} table has {cells}.");
+        var counters = new long[cells];
+        for (int row = 0; row < empty.Depth; row++)
+        {
+            long rowSum = 0;
+            for (int col = 0; col < empty.Width; col++)
+            {
+                int cell = (row * empty.Width) + col;
+                counters[cell] = CheckedCount(state.Counters[cell], $"modes.counters[{cell}]");
+                rowSum = CheckedSum(rowSum, counters[cell], $"modes.counters row {row}");
+            }
+
+            Check(rowSum <= count, $"modes.counters row {row} adds up to {rowSum}, more than modes.count {count}.");
+        }
+
+        Check(state.Candidates.Count <= empty.CandidateLimit, $"modes.candidates has {state.Candidates.Count} keys, over modes.candidate_limit {empty.CandidateLimit}.");
+        for (int i = 0; i < state.Candidates.Count; i++)
+        {
+            CheckKey(state.Candidates[i], $"modes.candidates[{i}]");
+            Check(i == 0 || state.Candidates[i - 1] < state.Candidates[i], $"modes.candidates[{i}] is not above the key before it; keys must be strictly ascending.");
+        }
+
+        return ModeSketch.Restore(empty, count, null, counters, state.Candidates.ToArray());
+    }
+
+    private static void CheckKey(long key, string field)
+    {
+        double value = ModeKey.ValueOf(key);
+        Check(double.IsFinite(value), $"{field} is the bits of {value}; keys must be finite values.");
+        Check(key != long.MinValue, $"{field} is the bits of -0; zero is keyed as +0.");
+    }
+
+    private static long CheckedCount(ulong value, string field)
+    {
+        Check(value <= long.MaxValue, $"{field} is {value}, beyond what a count can hold.");
+        return (long)value;
+    }
+
+    private static long CheckedSum(long a, long b, string field)
+    {
+        try
+        {
+            return checked(a + b);
+        }
+        catch (OverflowException)
+        {
+            throw new SketchFormatException($"{field} add up to more than a count can hold.");
+        }
+    }
+
+    private static void Check(bool condition, string message)
+    {
+        if (!condition)
+        {
+            throw new SketchFormatException(message);
+        }
+    }
+}

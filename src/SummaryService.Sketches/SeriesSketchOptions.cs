@@ -1,0 +1,29 @@
+using SummaryService.Sketches.Modes;
+using SummaryService.Sketches.Quantiles;
+
+namespace SummaryService.Sketches;
+
+/// <summary>Accuracy settings of a <see cref="SeriesSketch"/>; sketches merge only with sketches of the same mode settings.</summary>
+public sealed record SeriesSketchOptions
+{
+    /// <summary>The defaults: k = 200, modes by exact value, count-min 136 × 5.</summary>
+    public static readonly SeriesSketchOptions Default = new();
+
+    /// <summary>KLL top-level capacity.</summary>
+    public int K { get; init; } = KllSketch.DefaultK;
+
+    /// <summary>Bin width for modes; 0 counts exact values.</summary>
+    public double ModeResolution { get; init; }
+
+    /// <summary>Distinct keys counted exactly.</summary>
+    public int ModeExactLimit { get; init; } = ModeSketch.DefaultExactLimit;
+
+    /// <summary>Count-min width.</summary>
+    public int ModeWidth { get; init; } = ModeSketch.DefaultWidth;
+
+    /// <summary>Count-min depth.</summary>
+    public int ModeDepth { get; init; } = ModeSketch.DefaultDepth;
+
+    /// <summary>Candidate keys tracked once counting is approximate.</summary>
+    public int ModeCandidates { get; init; } = ModeSketch.DefaultCandidateLimit;
+}

@@ -1,0 +1,20 @@
+namespace SummaryService.Sketches.Summaries;
+
+/// <summary>Which histogram to build: explicit ascending edges, or a number of equal-width bins over [min, max].</summary>
+public sealed record HistogramSpec
+{
+    /// <summary>Bins used when neither edges nor a count are given.</summary>
+    public const int DefaultBinCount = 20;
+
+    /// <summary>Ascending, finite, distinct bin edges; empty for automatic edges.</summary>
+    public IReadOnlyList<double> Edges { get; init; } = [];
+
+    /// <summary>Equal-width bins over [min, max] when <see cref="Edges"/> is empty.</summary>
+    public int BinCount { get; init; } = DefaultBinCount;
+
+    /// <summary>Equal-width bins over the data's range.</summary>
+    public static HistogramSpec Automatic(int binCount = DefaultBinCount) => new() { BinCount = binCount };
+
+    /// <summary>Bins between the given edges.</summary>
+    public static HistogramSpec WithEdges(params double[] edges) => new() { Edges = edges };
+}
