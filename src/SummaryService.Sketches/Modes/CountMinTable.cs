@@ -8,8 +8,10 @@ namespace SummaryService.Sketches.Modes;
 /// </summary>
 /// <remarks>
 /// With width w = ⌈e/ε⌉ and depth d = ⌈ln(1/δ)⌉ an estimate exceeds the true count by more than
-/// εN with probability at most δ. Row indices come from one 64-bit hash split in two
-/// (Kirsch &amp; Mitzenmacher double hashing) and mapped onto the width by multiply-shift.
+/// εN with probability at most δ. The guarantee needs the rows to hash independently, so each row
+/// takes its own 32 bits of mixed hash output (two rows per 64-bit word), mapped onto the width by
+/// multiply-shift. Double hashing h1 + i·h2 is not used: with multiply-shift it only looks at the
+/// top bits of h1 and h2, so two keys that collide in two rows would collide in all of them.
 /// </remarks>
 internal sealed class CountMinTable
 {
@@ -43,13 +45,11 @@ internal sealed class CountMinTable
     public long Add(long key, long count)
     {
         ulong hash = ModeKey.Hash(key);
-        uint h1 = (uint)hash;
-        uint h2 = (uint)(hash >> 32) | 1;
         Span<int> cells = stackalloc int[Depth];
         long estimate = long.MaxValue;
         for (int row = 0; row < Depth; row++)
         {
-            int cell = (row * Width) + Column(h1 + ((uint)row * h2));
+            int cell = Cell(hash, row);
             cells[row] = cell;
             estimate = Math.Min(estimate, _counters[cell]);
         }
@@ -69,12 +69,10 @@ internal sealed class CountMinTable
     public long Estimate(long key)
     {
         ulong hash = ModeKey.Hash(key);
-        uint h1 = (uint)hash;
-        uint h2 = (uint)(hash >> 32) | 1;
         long estimate = long.MaxValue;
         for (int row = 0; row < Depth; row++)
         {
-            estimate = Math.Min(estimate, _counters[(row * Width) + Column(h1 + ((uint)row * h2))]);
+            estimate = Math.Min(estimate, _counters[Cell(hash, row)]);
         }
 
         return estimate;
@@ -92,5 +90,11 @@ internal sealed class CountMinTable
 
     public CountMinTable Clone() => new(Width, Depth, (long[])_counters.Clone());
 
-    private int Column(uint mixed) => (int)(((ulong)mixed * (ulong)Width) >> 32);
+    private int Cell(ulong hash, int row)
+    {
+        int pair = row >> 1;
+        ulong word = pair == 0 ? hash : SplitMix64.Mix(hash + ((ulong)pair * 0x9E3779B97F4A7C15UL));
+        uint bits = (row & 1) == 0 ? (uint)word : (uint)(word >> 32);
+        return (row * Width) + (int)(((ulong)bits * (ulong)Width) >> 32);
+    }
 }

@@ -12,8 +12,11 @@ namespace SummaryService.Sketches.Modes;
 /// </remarks>
 public sealed class ModeSketch
 {
-    /// <summary>Distinct keys counted exactly before switching to the count-min form.</summary>
-    public const int DefaultExactLimit = 128;
+    /// <summary>
+    /// Distinct keys counted exactly before switching to the count-min form: above the default KLL k,
+    /// so that a bucket whose quantiles are still exact has exact modes too.
+    /// </summary>
+    public const int DefaultExactLimit = 256;
 
     /// <summary>Count-min width: ε = e/136 ≈ 2% of the values counted.</summary>
     public const int DefaultWidth = 136;

@@ -1,0 +1,164 @@
+using SummaryService.Sketches.Modes;
+using SummaryService.Sketches.Tests.Support;
+
+namespace SummaryService.Sketches.Tests.Modes;
+
+/// <summary>Modes are exact while distinct values are few, and bounded by the count-min guarantee after.</summary>
+public class ModeSketchTests
+{
+    [Fact]
+    public void Counting_is_exact_while_distinct_values_are_few()
+    {
+        // Response status codes: a handful of distinct values over a million requests.
+        var rng = new Random(41);
+        double[] codes = [200, 201, 204, 301, 404, 429, 500, 503];
+        double[] weights = [0.80, 0.05, 0.03, 0.02, 0.05, 0.02, 0.02, 0.01];
+        var values = Enumerable.Range(0, 1_000_000).Select(_ => Pick(codes, weights, rng)).ToArray();
+        var sketch = new ModeSketch();
+        sketch.Add(values);
+
+        Assert.True(sketch.IsExact);
+        foreach (double code in codes)
+        {
+            long truth = values.LongCount(v => v == code);
+            Assert.Equal(new ModeEstimate(code, truth, truth, truth), sketch.Estimate(code));
+        }
+
+        var modes = sketch.Modes(5);
+        Assert.Equal(200, Assert.Single(modes).Value);
+    }
+
+    [Fact]
+    public void Every_value_tied_for_the_most_frequent_is_listed()
+    {
+        var sketch = new ModeSketch();
+        sketch.Add([3, 1, 3, 2, 1, 5, 2, 4]);
+        var modes = sketch.Modes(10);
+
+        // Counting by hand (common practice): 1, 2 and 3 each occur twice.
+        Assert.Equal([1.0, 2.0, 3.0], modes.Select(m => m.Value));
+        Assert.All(modes, m => Assert.Equal((2L, 2L, 2L), (m.Count, m.CountLow, m.CountHigh)));
+        Assert.Equal(3, sketch.ModeCandidateCount());
+        Assert.Equal(2, sketch.Modes(2).Length);
+    }
+
+    [Fact]
+    public void Minus_zero_and_plus_zero_are_one_value()
+    {
+        var sketch = new ModeSketch();
+        sketch.Add([-0.0, 0.0, 1]);
+        Assert.Equal(2, sketch.Estimate(0).Count);
+    }
+
+    [Fact]
+    public void Resolution_bins_continuous_values_so_they_can_have_a_mode()
+    {
+        // Latencies in seconds binned to 1 ms: 0.1204 and 0.1196 both count as 0.120.
+        var sketch = new ModeSketch(resolution: 0.001);
+        sketch.Add([0.1204, 0.1196, 0.1201, 0.2503, 0.0004]);
+        var mode = Assert.Single(sketch.Modes(3));
+        Assert.Equal(0.12, mode.Value, 12);
+        Assert.Equal(3, mode.Count);
+    }
+
+    [Fact]
+    public void A_value_holding_five_percent_of_a_million_is_always_the_mode()
+    {
+        for (int seed = 0; seed < 20; seed++)
+        {
+            var rng = new Random(seed);
+            var values = Enumerable.Range(0, 1_000_000).Select(_ => rng.NextDouble() < 0.05 ? 123.0 : rng.NextDouble() * 1000).ToArray();
+            var sketch = new ModeSketch();
+            sketch.Add(values);
+
+            Assert.False(sketch.IsExact);
+            var mode = Assert.Single(sketch.Modes(10));
+            Assert.Equal(123.0, mode.Value);
+            long truth = values.LongCount(v => v == 123.0);
+            Assert.InRange(truth, mode.CountLow, mode.CountHigh);
+        }
+    }
+
+    [Fact]
+    public void Count_intervals_hold_the_true_counts_at_the_stated_probability()
+    {
+        // Zipf-like key popularity over 20,000 distinct keys: many light keys collide in the table.
+        var rng = new Random(43);
+        var values = Enumerable.Range(0, 1_000_000).Select(_ => Math.Floor(Math.Exp(rng.NextDouble() * Math.Log(20_000)))).ToArray();
+        var truth = values.GroupBy(v => v).ToDictionary(g => g.Key, g => (long)g.Count());
+        var sketch = new ModeSketch();
+        sketch.Add(values);
+        Assert.False(sketch.IsExact);
+
+        // Count-min guarantee (Cormode & Muthukrishnan 2005, Theorem 1): estimate ≥ truth always, and
+        // estimate ≤ truth + εN with probability ≥ 1 − δ, ε = e/w, δ = e^−d.
+        int misses = 0;
+        foreach (var (value, count) in truth)
+        {
+            var estimate = sketch.Estimate(value);
+            Assert.True(estimate.CountHigh >= count, $"estimate {estimate.CountHigh} below the true count {count} for {value}");
+            if (estimate.CountLow > count)
+            {
+                misses++;
+            }
+        }
+
+        double share = (double)misses / truth.Count;
+        Assert.True(share <= sketch.FailureProbability, $"{share:P3} of keys fell outside their interval; δ = {sketch.FailureProbability:P3}");
+
+        // Keys never seen are bounded the same way.
+        var absent = Enumerable.Range(0, 10_000).Select(i => -1.0 - i).Select(sketch.Estimate);
+        Assert.All(absent, e => Assert.Equal(0, e.CountLow));
+    }
+
+    [Fact]
+    public void Merged_sketches_keep_exact_counts_and_bounded_estimates()
+    {
+        var exactParts = Enumerable.Range(0, 4).Select(_ => new ModeSketch()).ToArray();
+        var big = new ModeSketch();
+        var rng = new Random(44);
+        var values = Enumerable.Range(0, 400_000).Select(_ => rng.NextDouble() < 0.1 ? 7.0 : Math.Round(rng.NextDouble() * 5000)).ToArray();
+        for (int i = 0; i < values.Length; i++)
+        {
+            exactParts[i % 4].Add(values[i]);
+        }
+
+        big.Add(values);
+        var merged = new ModeSketch();
+        foreach (var part in exactParts)
+        {
+            merged.Merge(part);
+        }
+
+        long truth = values.LongCount(v => v == 7.0);
+        var estimate = merged.Estimate(7.0);
+        Assert.InRange(truth, estimate.CountLow, estimate.CountHigh);
+        Assert.Equal(values.Length, merged.Count);
+        Assert.Equal(7.0, merged.Modes(3)[0].Value);
+        Assert.Equal(big.Modes(3)[0].Value, merged.Modes(3)[0].Value);
+    }
+
+    [Fact]
+    public void A_ten_value_sketch_allocates_no_count_min_table()
+    {
+        var sketch = new ModeSketch();
+        sketch.Add([1, 2, 3, 4, 5, 6, 7, 8, 9, 10]);
+        Assert.True(sketch.IsExact);
+        Assert.True(sketch.TableCounters.IsEmpty);
+    }
+
+    private static double Pick(double[] values, double[] weights, Random rng)
+    {
+        double u = rng.NextDouble();
+        for (int i = 0; i < values.Length; i++)
+        {
+            u -= weights[i];
+            if (u < 0)
+            {
+                return values[i];
+            }
+        }
+
+        return values[^1];
+    }
+}
