@@ -1,8 +1,9 @@
 namespace SummaryService.Sketches;
 
 /// <summary>Guards the one precondition every sketch shares: values are finite.</summary>
-internal static class FiniteValues
+public static class FiniteValues
 {
+    /// <summary>Throws <see cref="ArgumentOutOfRangeException"/> for NaN or an infinity.</summary>
     public static void Require(double value)
     {
         if (!double.IsFinite(value))

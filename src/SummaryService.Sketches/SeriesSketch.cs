@@ -41,6 +41,9 @@ public sealed class SeriesSketch
     /// <summary>Number of values folded in.</summary>
     public long Count => Moments.Count;
 
+    /// <summary>Approximate heap bytes of the whole composite (moments ~100 B plus the two sketches).</summary>
+    public long EstimatedBytes => 24 + 104 + Quantiles.EstimatedBytes + Modes.EstimatedBytes;
+
     /// <summary>Folds in one finite value.</summary>
     public void Add(double value)
     {

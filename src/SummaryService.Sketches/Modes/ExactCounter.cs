@@ -17,6 +17,8 @@ internal sealed class ExactCounter
 
     public int Distinct { get; private set; }
 
+    public long EstimatedBytes => 32 + 48 + (16L * _keys.Length);
+
     public void Add(long key, long count)
     {
         int mask = _keys.Length - 1;

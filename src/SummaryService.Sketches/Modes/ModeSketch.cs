@@ -88,6 +88,10 @@ public sealed class ModeSketch
     /// <summary>Probability that one key's estimate over-counts by more than <see cref="MaxOverCount"/>.</summary>
     public double FailureProbability => _table?.FailureProbability ?? 0;
 
+    /// <summary>Approximate heap bytes: object, exact counter or count-min table, candidates.</summary>
+    public long EstimatedBytes =>
+        96 + (_exact?.EstimatedBytes ?? 0) + (_table is null ? 0 : 48 + (8L * _table.Counters.Length)) + 48 + (16L * _candidateKeys.Length);
+
     /// <summary>Counts one finite value.</summary>
     public void Add(double value)
     {

@@ -97,6 +97,22 @@ public sealed class KllSketch
     /// <summary>Number of items held across all levels.</summary>
     public int RetainedItems => _retained;
 
+    /// <summary>Approximate heap bytes: object, level arrays (by their allocated length) and bookkeeping.</summary>
+    public long EstimatedBytes
+    {
+        get
+        {
+            // Object header and fields ~72 B; each array carries a 24 B header.
+            long bytes = 72 + (3 * 24) + (_levels.Length * (8 + 4 + 8));
+            foreach (double[] level in _levels)
+            {
+                bytes += 24 + (8L * level.Length);
+            }
+
+            return bytes;
+        }
+    }
+
     /// <summary>
     /// Σ over all compactions of (2^h)², the variance proxy of the rank error at any fixed point.
     /// </summary>

@@ -1,0 +1,103 @@
+using SummaryService.Sketches;
+
+namespace SummaryService.Store;
+
+/// <summary>Checks a batch completely before any of it is applied, so a rejected batch changes nothing.</summary>
+internal sealed class BatchValidator(StoreOptions options)
+{
+    /// <summary>Resolves every value's timestamp, checking names, labels, values and times.</summary>
+    public long[] Validate(SeriesBatch batch, long nowMs)
+    {
+        ValidateName(batch.Metric);
+        if (batch.Labels.Count > options.MaxLabels)
+        {
+            throw new StoreRejectedException(RejectReason.TooManyLabels, "labels", $"labels has {batch.Labels.Count} entries; at most {options.MaxLabels} are allowed.");
+        }
+
+        foreach (var (name, value) in batch.Labels)
+        {
+            ValidateLabel(name, value);
+        }
+
+        ReadOnlySpan<double> values = batch.Values.Span;
+        if (values.Length == 0 || values.Length > options.MaxValuesPerBatch)
+        {
+            throw new StoreRejectedException(RejectReason.InvalidBatchSize, "values", $"values has {values.Length} entries; a batch carries 1 to {options.MaxValuesPerBatch}.");
+        }
+
+        int bad = FiniteValues.IndexOfNonFinite(values);
+        if (bad >= 0)
+        {
+            throw new StoreRejectedException(RejectReason.NonFiniteValue, $"values[{bad}]", $"values[{bad}] is {values[bad]}; values must be finite numbers.");
+        }
+
+        ReadOnlySpan<long> perValue = batch.ValueTimesUnixMs.Span;
+        if (perValue.Length != 0 && perValue.Length != values.Length)
+        {
+            throw new StoreRejectedException(RejectReason.InvalidBatchSize, "value_times_unix_ms", $"value_times_unix_ms has {perValue.Length} entries for {values.Length} values; give one per value or none.");
+        }
+
+        var times = new long[values.Length];
+        long oldest = nowMs - options.TotalRetentionMs;
+        long newest = nowMs + (long)options.MaxFuture.TotalMilliseconds;
+        for (int i = 0; i < times.Length; i++)
+        {
+            long raw = perValue.Length == 0 ? batch.TimeUnixMs : perValue[i];
+            long t = raw == 0 ? nowMs : raw;
+            string field = perValue.Length == 0 ? "time_unix_ms" : $"value_times_unix_ms[{i}]";
+            if (t < oldest)
+            {
+                throw new StoreRejectedException(RejectReason.TooOld, field, $"{field} is {t}, older than the retention limit {oldest} ({TimeSpan.FromMilliseconds(options.TotalRetentionMs)} before now).");
+            }
+
+            if (t > newest)
+            {
+                throw new StoreRejectedException(RejectReason.TooFarInFuture, field, $"{field} is {t}, more than {options.MaxFuture} ahead of the store's clock ({nowMs}).");
+            }
+
+            times[i] = t;
+        }
+
+        return times;
+    }
+
+    private void ValidateName(string metric)
+    {
+        if (string.IsNullOrEmpty(metric) || metric.Length > options.MaxMetricLength || !IsName(metric, allowDot: true))
+        {
+            throw new StoreRejectedException(RejectReason.InvalidMetric, "metric", $"metric '{metric}' is invalid: use 1 to {options.MaxMetricLength} characters from letters, digits, '_', '-', '.', ':' and '/', starting with a letter.");
+        }
+    }
+
+    private void ValidateLabel(string name, string value)
+    {
+        if (string.IsNullOrEmpty(name) || name.Length > options.MaxLabelLength || !IsName(name, allowDot: false))
+        {
+            throw new StoreRejectedException(RejectReason.InvalidLabel, $"labels[{name}]", $"label name '{name}' is invalid: use 1 to {options.MaxLabelLength} letters, digits or '_', starting with a letter or '_'.");
+        }
+
+        if (value is null || value.Length == 0 || value.Length > options.MaxLabelLength || value.Any(char.IsControl))
+        {
+            throw new StoreRejectedException(RejectReason.InvalidLabel, $"labels[{name}]", $"label '{name}' has value '{value}'; values are 1 to {options.MaxLabelLength} printable characters.");
+        }
+    }
+
+    private static bool IsName(string text, bool allowDot)
+    {
+        if (!(char.IsAsciiLetter(text[0]) || (!allowDot && text[0] == '_')))
+        {
+            return false;
+        }
+
+        foreach (char c in text)
+        {
+            bool ok = char.IsAsciiLetterOrDigit(c) || c == '_' || (allowDot && (c is '.' or '-' or ':' or '/'));
+            if (!ok)
+            {
+                return false;
+            }
+        }
+
+        return true;
+    }
+}

@@ -1,0 +1,12 @@
+namespace SummaryService.Store;
+
+/// <summary>One shard: its series and the single lock that guards them.</summary>
+internal sealed class SeriesShard
+{
+    public object Gate { get; } = new();
+
+    public Dictionary<SeriesKey, SeriesTimeline> Series { get; } = [];
+
+    /// <summary>Estimated bytes of every sketch in the shard: written under <see cref="Gate"/>, read without it for the budget check.</summary>
+    public long EstimatedBytes;
+}

@@ -1,0 +1,209 @@
+using SummaryService.Sketches;
+
+namespace SummaryService.Store;
+
+/// <summary>
+/// One series' buckets, tier by tier. Every value lives in exactly one bucket: the finest tier
+/// whose bucket for its timestamp has not yet aged out. Not thread-safe; the owning shard locks.
+/// </summary>
+internal sealed class SeriesTimeline(SeriesKey key, StoreOptions options)
+{
+    private readonly SortedList<long, SeriesSketch>[] _tiers = CreateTiers(options.Tiers.Count);
+
+    public SeriesKey Key { get; } = key;
+
+    public int BucketCount => _tiers.Sum(t => t.Count);
+
+    public IReadOnlyList<SortedList<long, SeriesSketch>> Tiers => _tiers;
+
+    /// <summary>Adds values whose timestamps the validator has resolved; returns the change in estimated bytes.</summary>
+    public long Add(ReadOnlySpan<double> values, ReadOnlySpan<long> times, long nowMs)
+    {
+        long grown = 0;
+        int start = 0;
+        while (start < values.Length)
+        {
+            var (tier, bucketStart) = Locate(times[start], nowMs);
+            int end = start + 1;
+            while (end < values.Length && Locate(times[end], nowMs) == (tier, bucketStart))
+            {
+                end++;
+            }
+
+            grown += AddToBucket(tier, bucketStart, values[start..end]);
+            start = end;
+        }
+
+        return grown;
+    }
+
+    /// <summary>Estimated bytes a batch would add at most: one fresh bucket per distinct bucket it touches.</summary>
+    public long NewBucketsFor(ReadOnlySpan<long> times, long nowMs)
+    {
+        long fresh = 0;
+        (int, long) last = (-1, 0);
+        foreach (long t in times)
+        {
+            var where = Locate(t, nowMs);
+            if (where != last && !_tiers[where.Tier].ContainsKey(where.BucketStart))
+            {
+                fresh++;
+            }
+
+            last = where;
+        }
+
+        return fresh;
+    }
+
+    /// <summary>Moves buckets that aged out of a tier into the next one and drops those past the last; returns the change in estimated bytes.</summary>
+    public long Roll(long nowMs)
+    {
+        long change = 0;
+        for (int i = 0; i < _tiers.Length; i++)
+        {
+            var tier = _tiers[i];
+            long width = options.Tiers[i].WidthMs;
+            long horizon = nowMs - options.Tiers[i].RetentionMs;
+            while (tier.Count > 0 && tier.Keys[0] + width <= horizon)
+            {
+                long bucketStart = tier.Keys[0];
+                SeriesSketch sketch = tier.Values[0];
+                tier.RemoveAt(0);
+                change -= sketch.EstimatedBytes;
+                if (i + 1 < _tiers.Length)
+                {
+                    long coarse = AlignDown(bucketStart, options.Tiers[i + 1].WidthMs);
+                    var next = _tiers[i + 1];
+                    if (next.TryGetValue(coarse, out var target))
+                    {
+                        long before = target.EstimatedBytes;
+                        target.Merge(sketch);
+                        change += target.EstimatedBytes - before;
+                    }
+                    else
+                    {
+                        next.Add(coarse, sketch);
+                        change += sketch.EstimatedBytes;
+                    }
+                }
+            }
+        }
+
+        return change;
+    }
+
+    /// <summary>
+    /// Widens <paramref name="range"/> until no bucket of this series straddles its edges: every
+    /// bucket overlapping the result lies inside it. Tiers nest (each width a multiple of the one
+    /// below), so this settles after at most one pass per tier.
+    /// </summary>
+    public void WidenToBuckets(ref TimeRange range)
+    {
+        bool widened = true;
+        while (widened)
+        {
+            widened = false;
+            for (int i = 0; i < _tiers.Length; i++)
+            {
+                long width = options.Tiers[i].WidthMs;
+                IList<long> starts = _tiers[i].Keys;
+                int first = FirstEndingAfter(starts, range.FromUnixMs, width);
+                if (first < starts.Count && starts[first] < range.FromUnixMs && starts[first] < range.ToUnixMs)
+                {
+                    range = range with { FromUnixMs = starts[first] };
+                    widened = true;
+                }
+
+                int last = FirstEndingAfter(starts, range.ToUnixMs - 1, width);
+                if (last < starts.Count && starts[last] < range.ToUnixMs && starts[last] + width > range.ToUnixMs)
+                {
+                    range = range with { ToUnixMs = starts[last] + width };
+                    widened = true;
+                }
+            }
+        }
+    }
+
+    /// <summary>Copies of every bucket overlapping <paramref name="range"/>.</summary>
+    public void CopyOverlapping(TimeRange range, List<SeriesSketch> into)
+    {
+        for (int i = 0; i < _tiers.Length; i++)
+        {
+            var tier = _tiers[i];
+            IList<long> starts = tier.Keys;
+            for (int j = FirstEndingAfter(starts, range.FromUnixMs, options.Tiers[i].WidthMs); j < starts.Count && starts[j] < range.ToUnixMs; j++)
+            {
+                into.Add(tier.Values[j].Clone());
+            }
+        }
+    }
+
+    public long EstimatedBytes => _tiers.Sum(t => t.Values.Sum(s => s.EstimatedBytes));
+
+    public long EstimatedBytesOfTier(int tier) => _tiers[tier].Values.Sum(s => s.EstimatedBytes);
+
+    internal static long AlignDown(long t, long width) => t - (((t % width) + width) % width);
+
+    private (int Tier, long BucketStart) Locate(long t, long nowMs)
+    {
+        for (int i = 0; i < _tiers.Length; i++)
+        {
+            long width = options.Tiers[i].WidthMs;
+            long start = AlignDown(t, width);
+            if (start + width > nowMs - options.Tiers[i].RetentionMs || i == _tiers.Length - 1)
+            {
+                return (i, start);
+            }
+        }
+
+        throw new InvalidOperationException("unreachable: the last tier always accepts");
+    }
+
+    private long AddToBucket(int tier, long bucketStart, ReadOnlySpan<double> values)
+    {
+        var buckets = _tiers[tier];
+        if (!buckets.TryGetValue(bucketStart, out var sketch))
+        {
+            sketch = new SeriesSketch(options.Sketch);
+            buckets.Add(bucketStart, sketch);
+            sketch.Add(values);
+            return sketch.EstimatedBytes;
+        }
+
+        long previous = sketch.EstimatedBytes;
+        sketch.Add(values);
+        return sketch.EstimatedBytes - previous;
+    }
+
+    private static int FirstEndingAfter(IList<long> starts, long from, long width)
+    {
+        int lo = 0;
+        int hi = starts.Count;
+        while (lo < hi)
+        {
+            int mid = (lo + hi) >>> 1;
+            if (starts[mid] + width <= from)
+            {
+                lo = mid + 1;
+            }
+            else
+            {
+                hi = mid;
+            }
+        }
+
+        return lo;
+    }
+
+    private static SortedList<long, SeriesSketch>[] CreateTiers(int count)
+    {
+        var tiers = new SortedList<long, SeriesSketch>[count];
+        for (int i = 0; i < count; i++)
+        {
+            tiers[i] = [];
+        }
+
+        return tiers;
+    }
+}

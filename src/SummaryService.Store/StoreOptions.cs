@@ -1,0 +1,92 @@
+using SummaryService.Sketches;
+
+namespace SummaryService.Store;
+
+/// <summary>Shape, limits and accuracy of a series store.</summary>
+public sealed record StoreOptions
+{
+    /// <summary>10 s buckets for 6 h, 1 min for 7 days, 1 h for 90 days.</summary>
+    public static readonly IReadOnlyList<TierOptions> DefaultTiers =
+    [
+        new(TimeSpan.FromSeconds(10), TimeSpan.FromHours(6)),
+        new(TimeSpan.FromMinutes(1), TimeSpan.FromDays(7)),
+        new(TimeSpan.FromHours(1), TimeSpan.FromDays(90)),
+    ];
+
+    /// <summary>Number of shards, a power of two.</summary>
+    public int ShardCount { get; init; } = 16;
+
+    /// <summary>Tiers from finest to coarsest.</summary>
+    public IReadOnlyList<TierOptions> Tiers { get; init; } = DefaultTiers;
+
+    /// <summary>Accuracy of every bucket's sketch.</summary>
+    public SeriesSketchOptions Sketch { get; init; } = SeriesSketchOptions.Default;
+
+    /// <summary>Most series the store holds.</summary>
+    public int MaxSeries { get; init; } = 100_000;
+
+    /// <summary>Most series one tenant holds; the tenant is the metric name up to its first '.'.</summary>
+    public int MaxSeriesPerTenant { get; init; } = 20_000;
+
+    /// <summary>Most labels on one series.</summary>
+    public int MaxLabels { get; init; } = 16;
+
+    /// <summary>Longest metric name.</summary>
+    public int MaxMetricLength { get; init; } = 200;
+
+    /// <summary>Longest label name or value.</summary>
+    public int MaxLabelLength { get; init; } = 200;
+
+    /// <summary>Most values in one batch.</summary>
+    public int MaxValuesPerBatch { get; init; } = 1_000_000;
+
+    /// <summary>How far ahead of the store's clock a timestamp may lie.</summary>
+    public TimeSpan MaxFuture { get; init; } = TimeSpan.FromMinutes(5);
+
+    /// <summary>Approximate bytes all sketches may occupy; new buckets are refused beyond it.</summary>
+    public long MemoryBudgetBytes { get; init; } = 2L << 30;
+
+    /// <summary>Total retention: the last tier's horizon.</summary>
+    public long TotalRetentionMs => Tiers[^1].RetentionMs;
+
+    /// <summary>Checks the options and names the first bad setting.</summary>
+    public void Validate()
+    {
+        if (ShardCount < 1 || (ShardCount & (ShardCount - 1)) != 0)
+        {
+            throw new ArgumentOutOfRangeException(nameof(ShardCount), ShardCount, "ShardCount must be a power of two.");
+        }
+
+        if (Tiers.Count == 0)
+        {
+            throw new ArgumentException("Tiers must list at least one tier.", nameof(Tiers));
+        }
+
+        for (int i = 0; i < Tiers.Count; i++)
+        {
+            var tier = Tiers[i];
+            if (tier.WidthMs < 1 || tier.RetentionMs < tier.WidthMs)
+            {
+                throw new ArgumentOutOfRangeException(nameof(Tiers), tier, $"Tiers[{i}] needs a width of at least 1 ms and a retention of at least one bucket.");
+            }
+
+            if (i > 0 && tier.RetentionMs <= Tiers[i - 1].RetentionMs)
+            {
+                throw new ArgumentOutOfRangeException(nameof(Tiers), tier, $"Tiers[{i}].Retention must exceed Tiers[{i - 1}].Retention: each tier keeps buckets up to an older age.");
+            }
+
+            if (i > 0 && tier.WidthMs % Tiers[i - 1].WidthMs != 0)
+            {
+                throw new ArgumentOutOfRangeException(nameof(Tiers), tier, $"Tiers[{i}].BucketWidth must be a multiple of Tiers[{i - 1}].BucketWidth so that buckets roll up whole.");
+            }
+        }
+
+        foreach (var (name, value) in new[] { (nameof(MaxSeries), MaxSeries), (nameof(MaxSeriesPerTenant), MaxSeriesPerTenant), (nameof(MaxLabels), MaxLabels), (nameof(MaxMetricLength), MaxMetricLength), (nameof(MaxLabelLength), MaxLabelLength), (nameof(MaxValuesPerBatch), MaxValuesPerBatch) })
+        {
+            if (value < 1)
+            {
+                throw new ArgumentOutOfRangeException(name, value, $"{name} must be at least 1.");
+            }
+        }
+    }
+}

@@ -1,0 +1,39 @@
+using Microsoft.Extensions.Time.Testing;
+using SummaryService.Sketches.Summaries;
+
+namespace SummaryService.Store.Tests;
+
+/// <summary>A store on a test clock with small tiers so that rollup and retention happen within a test.</summary>
+internal sealed class StoreFixture
+{
+    /// <summary>1 s buckets for 20 s, 5 s for 2 min, 30 s for 10 min.</summary>
+    public static readonly IReadOnlyList<TierOptions> SmallTiers =
+    [
+        new(TimeSpan.FromSeconds(1), TimeSpan.FromSeconds(20)),
+        new(TimeSpan.FromSeconds(5), TimeSpan.FromMinutes(2)),
+        new(TimeSpan.FromSeconds(30), TimeSpan.FromMinutes(10)),
+    ];
+
+    public StoreFixture(StoreOptions? options = null)
+    {
+        Clock = new FakeTimeProvider(DateTimeOffset.FromUnixTimeMilliseconds(1_800_000_000_000));
+        Store = new ShardedSeriesStore(options ?? new StoreOptions { Tiers = SmallTiers, ShardCount = 4 }, Clock);
+    }
+
+    public FakeTimeProvider Clock { get; }
+
+    public ShardedSeriesStore Store { get; }
+
+    public long NowMs => Clock.GetUtcNow().ToUnixTimeMilliseconds();
+
+    public static SeriesBatch Batch(string metric, double[] values, long timeMs = 0, params (string Key, string Value)[] labels) => new()
+    {
+        Metric = metric,
+        Labels = labels.ToDictionary(l => l.Key, l => l.Value),
+        Values = values,
+        TimeUnixMs = timeMs,
+    };
+
+    public WindowSummary Query(string metric, long fromMs, long toMs, params string[] groupBy) =>
+        Store.Summarize(new Selector(metric), new TimeRange(fromMs, toMs), groupBy, new SummaryOptions());
+}
