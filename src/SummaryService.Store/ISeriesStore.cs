@@ -8,8 +8,11 @@ namespace SummaryService.Store;
 /// </summary>
 public interface ISeriesStore
 {
-    /// <summary>Validates and applies one batch completely, or throws <see cref="StoreRejectedException"/> and changes nothing.</summary>
-    AppendResult Append(SeriesBatch batch);
+    /// <summary>
+    /// Validates and applies one batch completely, or throws <see cref="StoreRejectedException"/> and
+    /// changes nothing. Completes once the batch is as durable as the store's durability mode promises.
+    /// </summary>
+    ValueTask<AppendResult> AppendAsync(SeriesBatch batch, CancellationToken cancellationToken = default);
 
     /// <summary>Summary of the selected series over the window, one per combination of the group-by labels' values.</summary>
     WindowSummary Summarize(Selector selector, TimeRange window, IReadOnlyList<string> groupBy, SummaryOptions options);

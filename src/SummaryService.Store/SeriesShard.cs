@@ -9,4 +9,7 @@ internal sealed class SeriesShard
 
     /// <summary>Estimated bytes of every sketch in the shard: written under <see cref="Gate"/>, read without it for the budget check.</summary>
     public long EstimatedBytes;
+
+    /// <summary>Log sequence number of the last batch applied to this shard.</summary>
+    public ulong AppliedLsn { get; set; }
 }

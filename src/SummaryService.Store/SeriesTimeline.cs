@@ -1,3 +1,4 @@
+using System.Numerics;
 using SummaryService.Sketches;
 
 namespace SummaryService.Store;
@@ -54,6 +55,26 @@ internal sealed class SeriesTimeline(SeriesKey key, StoreOptions options)
         }
 
         return fresh;
+    }
+
+    /// <summary>
+    /// Places a whole bucket read back from a snapshot, merging into a bucket already there; returns
+    /// the change in estimated bytes. With an unchanged tier layout the bucket goes back where it was
+    /// (rollup moves it on when due); otherwise where the current layout puts its start time.
+    /// </summary>
+    public long Place(int savedTier, long start, SeriesSketch sketch, long nowMs)
+    {
+        var (tier, bucketStart) = savedTier >= 0 ? (savedTier, start) : Locate(start, nowMs);
+        var buckets = _tiers[tier];
+        if (buckets.TryGetValue(bucketStart, out var existing))
+        {
+            long before = existing.EstimatedBytes;
+            existing.Merge(sketch);
+            return existing.EstimatedBytes - before;
+        }
+
+        buckets.Add(bucketStart, sketch);
+        return sketch.EstimatedBytes;
     }
 
     /// <summary>Moves buckets that aged out of a tier into the next one and drops those past the last; returns the change in estimated bytes.</summary>
@@ -165,7 +186,7 @@ internal sealed class SeriesTimeline(SeriesKey key, StoreOptions options)
         var buckets = _tiers[tier];
         if (!buckets.TryGetValue(bucketStart, out var sketch))
         {
-            sketch = new SeriesSketch(options.Sketch);
+            sketch = new SeriesSketch(options.Sketch, SeedFor(tier, bucketStart));
             buckets.Add(bucketStart, sketch);
             sketch.Add(values);
             return sketch.EstimatedBytes;
@@ -175,6 +196,11 @@ internal sealed class SeriesTimeline(SeriesKey key, StoreOptions options)
         sketch.Add(values);
         return sketch.EstimatedBytes - previous;
     }
+
+    // Each bucket's coin sequence comes from its own identity: independent across buckets, as the
+    // error bound needs, yet the same when a log replay rebuilds the bucket from the same values.
+    private ulong SeedFor(int tier, long bucketStart) =>
+        Key.Hash ^ BitOperations.RotateLeft((ulong)bucketStart * 0x9E3779B97F4A7C15UL, 17) ^ ((ulong)tier << 56);
 
     private static int FirstEndingAfter(IList<long> starts, long from, long width)
     {

@@ -11,7 +11,7 @@ namespace SummaryService.Store;
 /// Queries copy the overlapping buckets under the shard lock and merge the copies outside it, so
 /// ingest waits at most for a copy and stored sketches are never mutated by a read.
 /// </remarks>
-public sealed class ShardedSeriesStore : ISeriesStore
+public sealed partial class ShardedSeriesStore : ISeriesStore
 {
     private readonly StoreOptions _options;
     private readonly TimeProvider _time;
@@ -21,6 +21,7 @@ public sealed class ShardedSeriesStore : ISeriesStore
     private readonly Dictionary<string, int> _tenantSeries = new(StringComparer.Ordinal);
     private readonly object _catalogueGate = new();
     private int _seriesCount;
+    private long _lastLsn;
 
     /// <summary>Creates an empty store.</summary>
     public ShardedSeriesStore(StoreOptions options, TimeProvider time)
@@ -44,13 +45,14 @@ public sealed class ShardedSeriesStore : ISeriesStore
     internal ProducerSequences Producers => _producers;
 
     /// <inheritdoc/>
-    public AppendResult Append(SeriesBatch batch)
+    public async ValueTask<AppendResult> AppendAsync(SeriesBatch batch, CancellationToken cancellationToken = default)
     {
         ArgumentNullException.ThrowIfNull(batch);
         long now = NowMs();
         long[] times = _validator.Validate(batch, now);
         var key = new SeriesKey(batch.Metric, batch.Labels);
         SeriesShard shard = ShardOf(key);
+        Task? durable = null;
         lock (shard.Gate)
         {
             bool known = shard.Series.TryGetValue(key, out var timeline);
@@ -63,7 +65,7 @@ public sealed class ShardedSeriesStore : ISeriesStore
 
             if (!known)
             {
-                ReserveSeries(key);
+                ReserveSeries(key, enforceLimits: true);
             }
 
             if (!_producers.TryClaim(batch.Producer, batch.Sequence))
@@ -82,6 +84,19 @@ public sealed class ShardedSeriesStore : ISeriesStore
             }
 
             shard.EstimatedBytes += timeline.Add(batch.Values.Span, times, now);
+            ulong lsn = (ulong)Interlocked.Increment(ref _lastLsn);
+            shard.AppliedLsn = lsn;
+
+            // Written under the shard lock so that, within a shard, log order is apply order.
+            if (Journal is { } journal)
+            {
+                durable = journal(LogRecordOf(lsn, batch, times));
+            }
+        }
+
+        if (durable is not null)
+        {
+            await durable.WaitAsync(cancellationToken).ConfigureAwait(false);
         }
 
         return new AppendResult(batch.Values.Length, Duplicate: false);
@@ -117,15 +132,15 @@ public sealed class ShardedSeriesStore : ISeriesStore
             var groups = CopyGroups(selector, groupBy, ref covered);
             if (covered == atStart)
             {
-                var results = groups.Values.Select(g => MergeGroup(g.Labels, g.Copies, g.Series, options)).ToArray();
+                var results = groups.Values.Select(g => MergeGroup(g.Labels, g.Copies, options)).ToArray();
                 return new WindowSummary(results, covered);
             }
         }
     }
 
-    private SortedDictionary<string, (Dictionary<string, string> Labels, List<SeriesSketch> Copies, int Series)> CopyGroups(Selector selector, IReadOnlyList<string> groupBy, ref TimeRange covered)
+    private SortedDictionary<string, (Dictionary<string, string> Labels, List<(string Series, List<SeriesSketch> Buckets)> Copies)> CopyGroups(Selector selector, IReadOnlyList<string> groupBy, ref TimeRange covered)
     {
-        var groups = new SortedDictionary<string, (Dictionary<string, string> Labels, List<SeriesSketch> Copies, int Series)>(StringComparer.Ordinal);
+        var groups = new SortedDictionary<string, (Dictionary<string, string> Labels, List<(string Series, List<SeriesSketch> Buckets)> Copies)>(StringComparer.Ordinal);
         foreach (SeriesShard shard in _shards)
         {
             lock (shard.Gate)
@@ -141,12 +156,14 @@ public sealed class ShardedSeriesStore : ISeriesStore
                     string groupKey = string.Join('\u0001', groupBy.Select(name => labels[name]));
                     if (!groups.TryGetValue(groupKey, out var group))
                     {
-                        group = (labels, [], 0);
+                        group = (labels, []);
+                        groups.Add(groupKey, group);
                     }
 
                     timeline.WidenToBuckets(ref covered);
-                    timeline.CopyOverlapping(covered, group.Copies);
-                    groups[groupKey] = (group.Labels, group.Copies, group.Series + 1);
+                    var buckets = new List<SeriesSketch>();
+                    timeline.CopyOverlapping(covered, buckets);
+                    group.Copies.Add((key.Canonical, buckets));
                 }
             }
         }
@@ -154,15 +171,20 @@ public sealed class ShardedSeriesStore : ISeriesStore
         return groups;
     }
 
-    private GroupSummary MergeGroup(Dictionary<string, string> labels, List<SeriesSketch> copies, int series, SummaryOptions options)
+    // Merged in series-key order so that the same data always gives the same bits, whatever order
+    // the shards' dictionaries happen to hold their series in.
+    private GroupSummary MergeGroup(Dictionary<string, string> labels, List<(string Series, List<SeriesSketch> Buckets)> copies, SummaryOptions options)
     {
-        var merged = new SeriesSketch(_options.Sketch);
-        foreach (SeriesSketch copy in copies)
+        var merged = new SeriesSketch(_options.Sketch, seed: 0);
+        foreach (var (_, buckets) in copies.OrderBy(c => c.Series, StringComparer.Ordinal))
         {
-            merged.Merge(copy);
+            foreach (SeriesSketch bucket in buckets)
+            {
+                merged.Merge(bucket);
+            }
         }
 
-        return new GroupSummary(labels, merged.Summarize(options), series, merged);
+        return new GroupSummary(labels, merged.Summarize(options), copies.Count, merged);
     }
 
     /// <inheritdoc/>
@@ -304,24 +326,32 @@ public sealed class ShardedSeriesStore : ISeriesStore
         return dot < 0 ? key.Metric : key.Metric[..dot];
     }
 
-    private void ReserveSeries(SeriesKey key)
+    private void ReserveSeries(SeriesKey key, bool enforceLimits)
     {
         string tenant = TenantOf(key);
         lock (_catalogueGate)
         {
-            if (_seriesCount >= _options.MaxSeries)
-            {
-                throw new StoreRejectedException(RejectReason.SeriesLimit, "metric", $"the store holds {_seriesCount} series, its limit; {key} would be new.");
-            }
-
             int tenantCount = _tenantSeries.GetValueOrDefault(tenant);
-            if (tenantCount >= _options.MaxSeriesPerTenant)
+            if (enforceLimits)
             {
-                throw new StoreRejectedException(RejectReason.SeriesLimit, "metric", $"tenant '{tenant}' holds {tenantCount} series, its limit; {key} would be new.");
+                CheckSeriesLimits(key, tenant, tenantCount);
             }
 
             _seriesCount++;
             _tenantSeries[tenant] = tenantCount + 1;
+        }
+    }
+
+    private void CheckSeriesLimits(SeriesKey key, string tenant, int tenantCount)
+    {
+        if (_seriesCount >= _options.MaxSeries)
+        {
+            throw new StoreRejectedException(RejectReason.SeriesLimit, "metric", $"the store holds {_seriesCount} series, its limit; {key} would be new.");
+        }
+
+        if (tenantCount >= _options.MaxSeriesPerTenant)
+        {
+            throw new StoreRejectedException(RejectReason.SeriesLimit, "metric", $"tenant '{tenant}' holds {tenantCount} series, its limit; {key} would be new.");
         }
     }
 

@@ -27,10 +27,10 @@ public class AppendRulesTests
     public void A_bad_batch_is_rejected_with_its_field_and_changes_nothing(string name, RejectReason reason, string field)
     {
         var fixture = new StoreFixture(new StoreOptions { Tiers = StoreFixture.SmallTiers, MaxLabels = 3, MaxValuesPerBatch = 10, MaxMetricLength = 20 });
-        fixture.Store.Append(StoreFixture.Batch("svc.latency", [1, 2, 3], 0, ("route", "/a")));
+        fixture.Append(StoreFixture.Batch("svc.latency", [1, 2, 3], 0, ("route", "/a")));
         var before = Snapshot(fixture);
 
-        var error = Assert.Throws<StoreRejectedException>(() => fixture.Store.Append(BadBatch(name, fixture.NowMs)));
+        var error = Assert.Throws<StoreRejectedException>(() => fixture.Append(BadBatch(name, fixture.NowMs)));
         Assert.Equal(reason, error.Reason);
         Assert.Equal(field, error.Field);
         Assert.False(string.IsNullOrWhiteSpace(error.Message));
@@ -41,36 +41,36 @@ public class AppendRulesTests
     public void The_series_limit_refuses_new_series_and_keeps_old_ones_writable()
     {
         var fixture = new StoreFixture(new StoreOptions { Tiers = StoreFixture.SmallTiers, MaxSeries = 2 });
-        fixture.Store.Append(StoreFixture.Batch("a.x", [1]));
-        fixture.Store.Append(StoreFixture.Batch("b.x", [1]));
-        var error = Assert.Throws<StoreRejectedException>(() => fixture.Store.Append(StoreFixture.Batch("c.x", [1])));
+        fixture.Append(StoreFixture.Batch("a.x", [1]));
+        fixture.Append(StoreFixture.Batch("b.x", [1]));
+        var error = Assert.Throws<StoreRejectedException>(() => fixture.Append(StoreFixture.Batch("c.x", [1])));
         Assert.Equal(RejectReason.SeriesLimit, error.Reason);
         Assert.True(error.IsLimit);
         Assert.Equal(2, fixture.Store.GetStats().Series);
-        fixture.Store.Append(StoreFixture.Batch("a.x", [2]));
+        fixture.Append(StoreFixture.Batch("a.x", [2]));
     }
 
     [Fact]
     public void The_tenant_limit_counts_series_per_metric_prefix()
     {
         var fixture = new StoreFixture(new StoreOptions { Tiers = StoreFixture.SmallTiers, MaxSeriesPerTenant = 1 });
-        fixture.Store.Append(StoreFixture.Batch("payments.latency", [1]));
-        var error = Assert.Throws<StoreRejectedException>(() => fixture.Store.Append(StoreFixture.Batch("payments.errors", [1])));
+        fixture.Append(StoreFixture.Batch("payments.latency", [1]));
+        var error = Assert.Throws<StoreRejectedException>(() => fixture.Append(StoreFixture.Batch("payments.errors", [1])));
         Assert.Equal(RejectReason.SeriesLimit, error.Reason);
         Assert.Contains("payments", error.Message);
-        fixture.Store.Append(StoreFixture.Batch("search.latency", [1]));
+        fixture.Append(StoreFixture.Batch("search.latency", [1]));
     }
 
     [Fact]
     public void The_memory_budget_refuses_new_buckets()
     {
         var fixture = new StoreFixture(new StoreOptions { Tiers = StoreFixture.SmallTiers, MemoryBudgetBytes = 4000 });
-        fixture.Store.Append(StoreFixture.Batch("a.x", [1]));
+        fixture.Append(StoreFixture.Batch("a.x", [1]));
         var error = Assert.Throws<StoreRejectedException>(() =>
         {
             for (int i = 0; i < 100; i++)
             {
-                fixture.Store.Append(StoreFixture.Batch("a.x", [1], fixture.NowMs - (i * 1000)));
+                fixture.Append(StoreFixture.Batch("a.x", [1], fixture.NowMs - (i * 1000)));
             }
         });
         Assert.Equal(RejectReason.MemoryLimit, error.Reason);
@@ -81,9 +81,9 @@ public class AppendRulesTests
     {
         var fixture = new StoreFixture();
         var batch = StoreFixture.Batch("q.depth", [4, 5]) with { Producer = "worker-7", Sequence = 1 };
-        Assert.Equal(new AppendResult(2, false), fixture.Store.Append(batch));
-        Assert.Equal(new AppendResult(0, true), fixture.Store.Append(batch));
-        Assert.Equal(new AppendResult(1, false), fixture.Store.Append(batch with { Values = new double[] { 6 }, Sequence = 2 }));
+        Assert.Equal(new AppendResult(2, false), fixture.Append(batch));
+        Assert.Equal(new AppendResult(0, true), fixture.Append(batch));
+        Assert.Equal(new AppendResult(1, false), fixture.Append(batch with { Values = new double[] { 6 }, Sequence = 2 }));
         long now = fixture.NowMs;
         Assert.Equal(3, fixture.Query("q.depth", now - 1000, now + 1000).Groups[0].Summary.Count);
     }
@@ -93,7 +93,7 @@ public class AppendRulesTests
     {
         var fixture = new StoreFixture();
         long now = fixture.NowMs;
-        fixture.Store.Append(StoreFixture.Batch("late.x", [7], now - 300_000));
+        fixture.Append(StoreFixture.Batch("late.x", [7], now - 300_000));
         var old = fixture.Query("late.x", now - 301_000, now - 299_000);
         Assert.Equal(1, old.Groups[0].Summary.Count);
         Assert.Empty(fixture.Query("late.x", now - 1000, now + 1000).Groups[0].Summary.Quantiles);
@@ -103,7 +103,7 @@ public class AppendRulesTests
     public void Retention_drops_buckets_past_the_last_tier_and_then_the_series()
     {
         var fixture = new StoreFixture();
-        fixture.Store.Append(StoreFixture.Batch("gone.x", [1, 2, 3]));
+        fixture.Append(StoreFixture.Batch("gone.x", [1, 2, 3]));
         fixture.Clock.Advance(TimeSpan.FromMinutes(11));
         fixture.Store.Roll();
         Assert.Equal(0, fixture.Store.GetStats().Series);
@@ -114,10 +114,10 @@ public class AppendRulesTests
     public void Delete_removes_a_series_and_frees_its_slot()
     {
         var fixture = new StoreFixture(new StoreOptions { Tiers = StoreFixture.SmallTiers, MaxSeries = 1 });
-        fixture.Store.Append(StoreFixture.Batch("a.x", [1]));
+        fixture.Append(StoreFixture.Batch("a.x", [1]));
         Assert.True(fixture.Store.Delete(new SeriesKey("a.x")));
         Assert.False(fixture.Store.Delete(new SeriesKey("a.x")));
-        fixture.Store.Append(StoreFixture.Batch("b.x", [1]));
+        fixture.Append(StoreFixture.Batch("b.x", [1]));
         Assert.Equal("b.x", Assert.Single(fixture.Store.ListSeries()).Key.Metric);
     }
 

@@ -38,7 +38,7 @@ public class ConcurrencyTests
                     values[i] = rng.NextDouble() * 100;
                 }
 
-                fixture.Store.Append(StoreFixture.Batch("web.latency", values, 0, ("route", routes[route])));
+                fixture.Append(StoreFixture.Batch("web.latency", values, 0, ("route", routes[route])));
                 Interlocked.Add(ref written[route], values.Length);
             }
         }))).ToList();

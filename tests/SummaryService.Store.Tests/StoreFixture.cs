@@ -26,6 +26,8 @@ internal sealed class StoreFixture
 
     public long NowMs => Clock.GetUtcNow().ToUnixTimeMilliseconds();
 
+    public AppendResult Append(SeriesBatch batch) => Store.AppendAsync(batch).AsTask().GetAwaiter().GetResult();
+
     public static SeriesBatch Batch(string metric, double[] values, long timeMs = 0, params (string Key, string Value)[] labels) => new()
     {
         Metric = metric,

@@ -22,7 +22,7 @@ public class WindowQueryTests
             var values = Enumerable.Range(0, 50).Select(_ => Math.Exp(rng.NextDouble() * 4)).ToArray();
             long late = now - rng.Next(0, 90_000);
             var times = values.Select((_, i) => i % 5 == 0 ? late : now - rng.Next(0, 1000)).ToArray();
-            fixture.Store.Append(new SeriesBatch { Metric = "checkout.latency", Values = values, ValueTimesUnixMs = times });
+            fixture.Append(new SeriesBatch { Metric = "checkout.latency", Values = values, ValueTimesUnixMs = times });
             kept.AddRange(times.Zip(values));
             if (second % 7 == 0)
             {
@@ -77,8 +77,8 @@ public class WindowQueryTests
         var fixture = new StoreFixture();
         long now = fixture.NowMs;
         long bucket = now - (now % 1000);
-        fixture.Store.Append(StoreFixture.Batch("queue.depth", [1, 2, 3], bucket + 100));
-        fixture.Store.Append(StoreFixture.Batch("queue.depth", [10], bucket + 900));
+        fixture.Append(StoreFixture.Batch("queue.depth", [1, 2, 3], bucket + 100));
+        fixture.Append(StoreFixture.Batch("queue.depth", [10], bucket + 900));
 
         var answer = fixture.Query("queue.depth", bucket + 200, bucket + 300);
         Assert.Equal(new TimeRange(bucket, bucket + 1000), answer.Covered);
@@ -89,10 +89,10 @@ public class WindowQueryTests
     public void Group_by_splits_series_and_missing_labels_form_their_own_group()
     {
         var fixture = new StoreFixture();
-        fixture.Store.Append(StoreFixture.Batch("api.latency", [1, 2], 0, ("region", "north"), ("route", "/a")));
-        fixture.Store.Append(StoreFixture.Batch("api.latency", [3], 0, ("region", "north"), ("route", "/b")));
-        fixture.Store.Append(StoreFixture.Batch("api.latency", [4, 5, 6], 0, ("region", "south"), ("route", "/a")));
-        fixture.Store.Append(StoreFixture.Batch("api.latency", [7], 0, ("route", "/a")));
+        fixture.Append(StoreFixture.Batch("api.latency", [1, 2], 0, ("region", "north"), ("route", "/a")));
+        fixture.Append(StoreFixture.Batch("api.latency", [3], 0, ("region", "north"), ("route", "/b")));
+        fixture.Append(StoreFixture.Batch("api.latency", [4, 5, 6], 0, ("region", "south"), ("route", "/a")));
+        fixture.Append(StoreFixture.Batch("api.latency", [7], 0, ("route", "/a")));
 
         var now = fixture.NowMs;
         var answer = fixture.Query("api.latency", now - 1000, now + 1000, "region");
@@ -115,7 +115,7 @@ public class WindowQueryTests
         long from = fixture.NowMs - 60_000;
         for (int i = 0; i < 10; i++)
         {
-            fixture.Store.Append(StoreFixture.Batch("disk.io", [i, i + 0.5], fixture.NowMs));
+            fixture.Append(StoreFixture.Batch("disk.io", [i, i + 0.5], fixture.NowMs));
             fixture.Clock.Advance(TimeSpan.FromSeconds(1));
         }
 

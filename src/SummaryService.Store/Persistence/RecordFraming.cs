@@ -1,0 +1,66 @@
+using System.Buffers.Binary;
+using System.IO.Hashing;
+
+namespace SummaryService.Store.Persistence;
+
+/// <summary>
+/// Frames records as [u32 length][u32 CRC-32][payload], little-endian, so a reader can tell a
+/// complete record from a torn or damaged one and stop at the last good byte.
+/// </summary>
+internal static class RecordFraming
+{
+    public const int HeaderBytes = 8;
+
+    /// <summary>Longest payload accepted; a damaged length field must not make the reader allocate gigabytes.</summary>
+    public const int MaxPayloadBytes = 256 << 20;
+
+    public static void Write(Stream stream, ReadOnlySpan<byte> payload)
+    {
+        Span<byte> header = stackalloc byte[HeaderBytes];
+        BinaryPrimitives.WriteUInt32LittleEndian(header, (uint)payload.Length);
+        BinaryPrimitives.WriteUInt32LittleEndian(header[4..], Crc32.HashToUInt32(payload));
+        stream.Write(header);
+        stream.Write(payload);
+    }
+
+    /// <summary>
+    /// Reads framed records from <paramref name="data"/> until its end or the first record that is
+    /// incomplete or fails its CRC. <paramref name="goodLength"/> is the offset just past the last good record.
+    /// </summary>
+    public static List<ReadOnlyMemory<byte>> ReadAll(ReadOnlyMemory<byte> data, out long goodLength, out string? stopReason)
+    {
+        var records = new List<ReadOnlyMemory<byte>>();
+        int offset = 0;
+        stopReason = null;
+        ReadOnlySpan<byte> span = data.Span;
+        while (offset < span.Length)
+        {
+            if (span.Length - offset < HeaderBytes)
+            {
+                stopReason = $"torn record header at byte {offset}";
+                break;
+            }
+
+            uint length = BinaryPrimitives.ReadUInt32LittleEndian(span[offset..]);
+            uint crc = BinaryPrimitives.ReadUInt32LittleEndian(span[(offset + 4)..]);
+            if (length > MaxPayloadBytes || length > span.Length - offset - HeaderBytes)
+            {
+                stopReason = length > MaxPayloadBytes ? $"implausible record length {length} at byte {offset}" : $"torn record at byte {offset} (needs {length} bytes, {span.Length - offset - HeaderBytes} left)";
+                break;
+            }
+
+            ReadOnlySpan<byte> payload = span.Slice(offset + HeaderBytes, (int)length);
+            if (Crc32.HashToUInt32(payload) != crc)
+            {
+                stopReason = $"CRC mismatch in record at byte {offset}";
+                break;
+            }
+
+            records.Add(data.Slice(offset + HeaderBytes, (int)length));
+            offset += HeaderBytes + (int)length;
+        }
+
+        goodLength = offset;
+        return records;
+    }
+}

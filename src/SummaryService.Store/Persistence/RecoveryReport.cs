@@ -1,0 +1,40 @@
+namespace SummaryService.Store.Persistence;
+
+/// <summary>What start-up recovered from disk and what it had to drop.</summary>
+public sealed class RecoveryReport
+{
+    /// <summary>Generation of the snapshot loaded, or null when none was usable.</summary>
+    public ulong? SnapshotGeneration { get; set; }
+
+    /// <summary>Series and buckets read from the snapshot.</summary>
+    public int SnapshotSeries { get; set; }
+
+    /// <inheritdoc cref="SnapshotSeries"/>
+    public int SnapshotBuckets { get; set; }
+
+    /// <summary>Snapshot generations skipped because they were damaged or incomplete, with the reason.</summary>
+    public List<string> SnapshotsRejected { get; } = [];
+
+    /// <summary>Log records read, replayed, skipped because the snapshot already held them, or dropped as older than retention.</summary>
+    public int LogRecordsRead { get; set; }
+
+    /// <inheritdoc cref="LogRecordsRead"/>
+    public int LogRecordsReplayed { get; set; }
+
+    /// <inheritdoc cref="LogRecordsRead"/>
+    public int LogRecordsAlreadyInSnapshot { get; set; }
+
+    /// <summary>Values in replayed records that had aged past retention and were dropped.</summary>
+    public long ValuesPastRetention { get; set; }
+
+    /// <summary>Bytes cut from damaged or torn log tails.</summary>
+    public long LogBytesCut { get; set; }
+
+    /// <summary>Everything worth a warning, one line each.</summary>
+    public List<string> Warnings { get; } = [];
+
+    /// <inheritdoc/>
+    public override string ToString() =>
+        $"snapshot {(SnapshotGeneration?.ToString() ?? "none")} ({SnapshotSeries} series, {SnapshotBuckets} buckets; {SnapshotsRejected.Count} rejected), " +
+        $"log {LogRecordsRead} records read, {LogRecordsReplayed} replayed, {LogRecordsAlreadyInSnapshot} already in snapshot, {LogBytesCut} bytes cut, {ValuesPastRetention} values past retention";
+}

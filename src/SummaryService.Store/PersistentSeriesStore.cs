@@ -1,0 +1,243 @@
+using System.Diagnostics;
+using Microsoft.Extensions.Logging;
+using SummaryService.Sketches.Serialization;
+using SummaryService.Sketches.Summaries;
+using SummaryService.Store.Persistence;
+using SummaryService.Store.Persistence.Formats;
+
+namespace SummaryService.Store;
+
+/// <summary>
+/// A <see cref="ShardedSeriesStore"/> kept on disk: snapshot generations plus a write-ahead log.
+/// Start-up loads the newest valid snapshot (falling back to older ones) and replays the log;
+/// accepted batches are logged and fsynced before they are acknowledged when durability is
+/// <see cref="DurabilityMode.Wal"/>.
+/// </summary>
+public sealed class PersistentSeriesStore : ISeriesStore, IAsyncDisposable
+{
+    private readonly PersistenceOptions _persistence;
+    private readonly TimeProvider _time;
+    private readonly ILogger _logger;
+    private readonly WriteAheadLog? _log;
+    private readonly SemaphoreSlim _snapshotGate = new(1, 1);
+    private readonly List<(ulong Generation, ulong LogStart)> _kept;
+    private ulong _nextGeneration;
+    private bool _disposed;
+
+    private PersistentSeriesStore(ShardedSeriesStore inner, PersistenceOptions persistence, TimeProvider time, ILogger logger, RecoveryReport recovery, List<(ulong, ulong)> kept, ulong nextGeneration, Action<TimeSpan>? logSyncObserved)
+    {
+        Inner = inner;
+        _persistence = persistence;
+        _time = time;
+        _logger = logger;
+        Recovery = recovery;
+        _kept = kept;
+        _nextGeneration = nextGeneration;
+        if (persistence.Durability == DurabilityMode.Wal)
+        {
+            _log = new WriteAheadLog(LogDirectory(persistence), inner.LastLsn + 1, persistence.LogSyncInterval, logger, logSyncObserved);
+            inner.Journal = _log.Append;
+        }
+    }
+
+    /// <summary>The in-memory store underneath.</summary>
+    public ShardedSeriesStore Inner { get; }
+
+    /// <summary>What start-up recovered and dropped.</summary>
+    public RecoveryReport Recovery { get; }
+
+    /// <summary>Called with the duration of each snapshot; for telemetry.</summary>
+    public Action<TimeSpan>? SnapshotObserved { get; set; }
+
+    /// <summary>Opens the store in <see cref="PersistenceOptions.DataDirectory"/>, recovering whatever is there.</summary>
+    public static PersistentSeriesStore Open(StoreOptions options, PersistenceOptions persistence, TimeProvider time, ILogger logger, Action<TimeSpan>? logSyncObserved = null)
+    {
+        ArgumentNullException.ThrowIfNull(persistence);
+        var report = new RecoveryReport();
+        string snapshots = SnapshotDirectory(persistence);
+        Directory.CreateDirectory(snapshots);
+        Directory.CreateDirectory(LogDirectory(persistence));
+
+        ShardedSeriesStore? store = null;
+        SnapshotManifest? loaded = null;
+        var onDisk = SnapshotFiles.List(snapshots);
+        foreach (var (generation, path) in onDisk)
+        {
+            if (TryLoad(path, options, time, out store, out loaded, report, out string? problem))
+            {
+                report.SnapshotGeneration = generation;
+                break;
+            }
+
+            report.SnapshotsRejected.Add($"{generation}: {problem}");
+            logger.LogWarning("Snapshot {Generation} is unusable ({Problem}); trying an older one.", generation, problem);
+        }
+
+        store ??= new ShardedSeriesStore(options, time);
+        Func<SeriesKey, ulong> snapshotLsn = loaded is null
+            ? _ => 0
+            : key => loaded.ShardLsns[(int)(key.Hash & (ulong)(loaded.ShardCount - 1))];
+        foreach (LogRecord record in LogSegments.ReadAll(LogDirectory(persistence), logger, report))
+        {
+            store.Replay(record, snapshotLsn, report);
+        }
+
+        var kept = onDisk.Select(g => (g.Generation, LogStart: ReadLogStart(g.Path))).Where(g => g.LogStart.HasValue).Select(g => (g.Generation, g.LogStart!.Value)).ToList();
+        ulong next = onDisk.Count == 0 ? 1 : onDisk[0].Generation + 1;
+        logger.LogInformation("Recovered series store from {Directory}: {Report}.", persistence.DataDirectory, report);
+        return new PersistentSeriesStore(store, persistence, time, logger, report, kept, next, logSyncObserved);
+    }
+
+    /// <inheritdoc/>
+    public ValueTask<AppendResult> AppendAsync(SeriesBatch batch, CancellationToken cancellationToken = default) => Inner.AppendAsync(batch, cancellationToken);
+
+    /// <inheritdoc/>
+    public WindowSummary Summarize(Selector selector, TimeRange window, IReadOnlyList<string> groupBy, SummaryOptions options) => Inner.Summarize(selector, window, groupBy, options);
+
+    /// <inheritdoc/>
+    public IReadOnlyList<SeriesInfo> ListSeries(string? metric = null) => Inner.ListSeries(metric);
+
+    /// <inheritdoc/>
+    public bool Delete(SeriesKey key) => Inner.Delete(key);
+
+    /// <inheritdoc/>
+    public StoreStats GetStats() => Inner.GetStats();
+
+    /// <inheritdoc/>
+    public void Roll() => Inner.Roll();
+
+    /// <summary>Writes a new snapshot generation, prunes old ones and the log segments they no longer need.</summary>
+    public async Task<SnapshotInfo> TakeSnapshotAsync(CancellationToken cancellationToken = default)
+    {
+        await _snapshotGate.WaitAsync(cancellationToken).ConfigureAwait(false);
+        try
+        {
+            var watch = Stopwatch.StartNew();
+
+            // Producer marks first: every sequence they cover is then in a shard export or in the log after it.
+            var producers = Inner.Producers.Export();
+            ulong logStart = Inner.LastLsn + 1;
+            if (_log is not null)
+            {
+                await _log.RotateAsync(logStart).WaitAsync(cancellationToken).ConfigureAwait(false);
+            }
+
+            ulong generation = _nextGeneration++;
+            var manifest = new SnapshotManifest
+            {
+                FormatVersion = SnapshotFiles.FormatVersion,
+                Generation = generation,
+                CreatedUnixMs = _time.GetUtcNow().ToUnixTimeMilliseconds(),
+                ShardCount = (uint)Inner.ShardCount,
+                LogStart = logStart,
+            };
+            manifest.Producers.Add(producers);
+            var shards = new List<(ShardHeader, List<SeriesRecord>)>(Inner.ShardCount);
+            int series = 0;
+            for (int i = 0; i < Inner.ShardCount; i++)
+            {
+                var (lsn, records) = Inner.ExportShard(i);
+                manifest.ShardLsns.Add(lsn);
+                series += records.Count;
+                var header = new ShardHeader { FormatVersion = SnapshotFiles.FormatVersion, Generation = generation, Shard = (uint)i, ShardCount = (uint)Inner.ShardCount, AppliedLsn = lsn };
+                header.TierWidthsMs.AddRange(Inner.Options.Tiers.Select(t => t.WidthMs));
+                shards.Add((header, records));
+            }
+
+            string directory = await Task.Run(() => SnapshotFiles.Write(SnapshotDirectory(_persistence), manifest, shards), cancellationToken).ConfigureAwait(false);
+            _kept.Insert(0, (generation, logStart));
+            SnapshotFiles.Prune(SnapshotDirectory(_persistence), _persistence.SnapshotsKept, _logger);
+            _kept.RemoveRange(Math.Min(_kept.Count, _persistence.SnapshotsKept), Math.Max(0, _kept.Count - _persistence.SnapshotsKept));
+            LogSegments.DeleteBefore(LogDirectory(_persistence), _kept.Min(k => k.LogStart), _logger);
+            long bytes = Directory.EnumerateFiles(directory).Sum(f => new FileInfo(f).Length);
+            watch.Stop();
+            SnapshotObserved?.Invoke(watch.Elapsed);
+            _logger.LogInformation("Snapshot {Generation}: {Series} series, {Bytes} bytes in {Elapsed} ms.", generation, series, bytes, watch.ElapsedMilliseconds);
+            return new SnapshotInfo(generation, series, bytes, watch.Elapsed);
+        }
+        finally
+        {
+            _snapshotGate.Release();
+        }
+    }
+
+    /// <summary>Takes a final snapshot (unless durability is none) and closes the log.</summary>
+    public async ValueTask DisposeAsync()
+    {
+        if (_disposed)
+        {
+            return;
+        }
+
+        _disposed = true;
+        if (_persistence.Durability != DurabilityMode.None)
+        {
+            await TakeSnapshotAsync().ConfigureAwait(false);
+        }
+
+        if (_log is not null)
+        {
+            await _log.DisposeAsync().ConfigureAwait(false);
+        }
+
+        _snapshotGate.Dispose();
+    }
+
+    /// <summary>Closes the log without a final snapshot, as a crash right after the last fsync would leave things.</summary>
+    internal async ValueTask CloseWithoutSnapshotAsync()
+    {
+        _disposed = true;
+        if (_log is not null)
+        {
+            await _log.DisposeAsync().ConfigureAwait(false);
+        }
+
+        _snapshotGate.Dispose();
+    }
+
+    private static bool TryLoad(string path, StoreOptions options, TimeProvider time, out ShardedSeriesStore? store, out SnapshotManifest? manifest, RecoveryReport report, out string? problem)
+    {
+        store = null;
+        if (!SnapshotFiles.TryRead(path, out manifest, out var shards, out problem))
+        {
+            return false;
+        }
+
+        var candidate = new ShardedSeriesStore(options, time);
+        int series = 0;
+        int buckets = 0;
+        try
+        {
+            foreach (var (header, records) in shards)
+            {
+                bool sameLayout = candidate.HasTierWidths(header.TierWidthsMs);
+                foreach (SeriesRecord record in records)
+                {
+                    buckets += candidate.Load(record, header.AppliedLsn, sameLayout);
+                    series++;
+                }
+            }
+        }
+        catch (Exception ex) when (ex is SketchFormatException or ArgumentException)
+        {
+            problem = $"invalid series record: {ex.Message}";
+            return false;
+        }
+
+        candidate.Producers.Import(manifest!.Producers);
+        report.SnapshotSeries = series;
+        report.SnapshotBuckets = buckets;
+        store = candidate;
+        return true;
+    }
+
+    private static ulong? ReadLogStart(string path) =>
+        SnapshotFiles.TryRead(path, out var manifest, out _, out _) ? manifest!.LogStart : null;
+
+    private static string SnapshotDirectory(PersistenceOptions p) => Path.Combine(p.DataDirectory, "snapshots");
+
+    private static string LogDirectory(PersistenceOptions p) => Path.Combine(p.DataDirectory, "wal");
+}
+
+/// <summary>One snapshot written.</summary>
+public sealed record SnapshotInfo(ulong Generation, int Series, long Bytes, TimeSpan Elapsed);

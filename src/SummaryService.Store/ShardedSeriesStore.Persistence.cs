@@ -1,0 +1,167 @@
+using SummaryService.Contract.V1;
+using SummaryService.Sketches;
+using SummaryService.Sketches.Serialization;
+using SummaryService.Store.Persistence;
+using SummaryService.Store.Persistence.Formats;
+
+namespace SummaryService.Store;
+
+/// <summary>The hooks persistence uses: journaling accepted batches, exporting shards, loading and replaying.</summary>
+public sealed partial class ShardedSeriesStore
+{
+    /// <summary>Called under the shard lock for every applied batch; the returned task completes when the record is durable.</summary>
+    internal Func<LogRecord, Task>? Journal { get; set; }
+
+    internal int ShardCount => _shards.Length;
+
+    internal ulong LastLsn => (ulong)Interlocked.Read(ref _lastLsn);
+
+    /// <summary>The shard's series as snapshot records, copied under its lock.</summary>
+    internal (ulong AppliedLsn, List<SeriesRecord> Series) ExportShard(int index)
+    {
+        SeriesShard shard = _shards[index];
+        lock (shard.Gate)
+        {
+            var records = new List<SeriesRecord>(shard.Series.Count);
+            foreach (var (key, timeline) in shard.Series)
+            {
+                var record = new SeriesRecord { Metric = key.Metric };
+                foreach (var (name, value) in key.Labels)
+                {
+                    record.Labels.Add(name, value);
+                }
+
+                for (int tier = 0; tier < timeline.Tiers.Count; tier++)
+                {
+                    foreach (var (start, sketch) in timeline.Tiers[tier])
+                    {
+                        record.Buckets.Add(new BucketRecord { Tier = (uint)tier, StartUnixMs = start, Sketch = SketchCodec.ToState(sketch) });
+                    }
+                }
+
+                records.Add(record);
+            }
+
+            return (shard.AppliedLsn, records);
+        }
+    }
+
+    /// <summary>Puts a snapshot's series back; each bucket goes where the current tier layout puts its start time.</summary>
+    internal int Load(SeriesRecord record, ulong appliedLsn, bool sameTierLayout)
+    {
+        var key = new SeriesKey(record.Metric, record.Labels);
+        var sketches = record.Buckets.Select(b => (Tier: SavedTier(b, sameTierLayout), b.StartUnixMs, Sketch: SketchCodec.FromState(b.Sketch))).ToList();
+        SeriesShard shard = ShardOf(key);
+        lock (shard.Gate)
+        {
+            if (!shard.Series.TryGetValue(key, out var timeline))
+            {
+                timeline = new SeriesTimeline(key, _options);
+                shard.Series.Add(key, timeline);
+                ReserveSeries(key, enforceLimits: false);
+            }
+
+            long now = NowMs();
+            foreach (var (tier, start, sketch) in sketches)
+            {
+                shard.EstimatedBytes += timeline.Place(tier, start, sketch, now);
+            }
+
+            shard.AppliedLsn = Math.Max(shard.AppliedLsn, appliedLsn);
+            RaiseLsn(appliedLsn);
+        }
+
+        return sketches.Count;
+    }
+
+    /// <summary>Applies a logged batch unless the snapshot already holds it; values past retention are dropped and counted.</summary>
+    internal void Replay(LogRecord record, Func<SeriesKey, ulong> snapshotLsn, RecoveryReport report)
+    {
+        var key = new SeriesKey(record.Metric, record.Labels);
+        _producers.Import([new(record.Producer, record.Sequence)]);
+        RaiseLsn(record.Lsn);
+        if (record.Lsn <= snapshotLsn(key))
+        {
+            report.LogRecordsAlreadyInSnapshot++;
+            return;
+        }
+
+        long now = NowMs();
+        long oldest = now - _options.TotalRetentionMs;
+        var values = new List<double>(record.Values.Count);
+        var times = new List<long>(record.Values.Count);
+        for (int i = 0; i < record.Values.Count; i++)
+        {
+            long t = record.TimesUnixMs.Count == 1 ? record.TimesUnixMs[0] : record.TimesUnixMs[i];
+            if (t < oldest || !double.IsFinite(record.Values[i]))
+            {
+                report.ValuesPastRetention++;
+                continue;
+            }
+
+            values.Add(record.Values[i]);
+            times.Add(t);
+        }
+
+        report.LogRecordsReplayed++;
+        if (values.Count == 0)
+        {
+            return;
+        }
+
+        SeriesShard shard = ShardOf(key);
+        lock (shard.Gate)
+        {
+            if (!shard.Series.TryGetValue(key, out var timeline))
+            {
+                timeline = new SeriesTimeline(key, _options);
+                shard.Series.Add(key, timeline);
+                ReserveSeries(key, enforceLimits: false);
+            }
+
+            shard.EstimatedBytes += timeline.Add(values.ToArray(), times.ToArray(), now);
+            shard.AppliedLsn = Math.Max(shard.AppliedLsn, record.Lsn);
+        }
+    }
+
+    /// <summary>True when a snapshot's tier widths are this store's, so buckets can go back to their tiers.</summary>
+    internal bool HasTierWidths(IReadOnlyList<long> widths) =>
+        widths.SequenceEqual(_options.Tiers.Select(t => t.WidthMs));
+
+    private int SavedTier(BucketRecord bucket, bool sameTierLayout)
+    {
+        bool aligned = bucket.Tier < _options.Tiers.Count && SeriesTimeline.AlignDown(bucket.StartUnixMs, _options.Tiers[(int)bucket.Tier].WidthMs) == bucket.StartUnixMs;
+        return sameTierLayout && aligned ? (int)bucket.Tier : -1;
+    }
+
+    private static LogRecord LogRecordOf(ulong lsn, SeriesBatch batch, long[] times)
+    {
+        var record = new LogRecord { Lsn = lsn, Metric = batch.Metric, Producer = batch.Producer, Sequence = batch.Sequence };
+        foreach (var (name, value) in batch.Labels)
+        {
+            record.Labels.Add(name, value);
+        }
+
+        record.Values.AddRange(batch.Values.ToArray());
+        bool oneTime = batch.ValueTimesUnixMs.IsEmpty;
+        if (oneTime)
+        {
+            record.TimesUnixMs.Add(times[0]);
+        }
+        else
+        {
+            record.TimesUnixMs.AddRange(times);
+        }
+
+        return record;
+    }
+
+    private void RaiseLsn(ulong lsn)
+    {
+        long value = (long)lsn;
+        long current;
+        while ((current = Interlocked.Read(ref _lastLsn)) < value && Interlocked.CompareExchange(ref _lastLsn, value, current) != current)
+        {
+        }
+    }
+}
