@@ -209,15 +209,23 @@ public sealed class ModeSketch
 
     internal ReadOnlySpan<long> TableCounters => _table is null ? default : _table.Counters;
 
-    internal long[] SortedCandidateKeys()
+    /// <summary>Candidates with the counts they were last tracked at, in ascending key order.</summary>
+    internal (long Key, long Count)[] SortedCandidates()
     {
-        long[] keys = CandidateKeys().ToArray();
-        Array.Sort(keys);
-        return keys;
+        var candidates = new (long Key, long Count)[_candidateCount];
+        for (int i = 0; i < _candidateCount; i++)
+        {
+            candidates[i] = (_candidateKeys[i], _candidateCounts[i]);
+        }
+
+        Array.Sort(candidates, static (a, b) => a.Key.CompareTo(b.Key));
+        return candidates;
     }
 
+    internal long TableEstimate(long key) => _table!.Estimate(key);
+
     /// <summary>Rebuilds a sketch from validated parts (see <c>SketchCodec</c>).</summary>
-    internal static ModeSketch Restore(ModeSketch empty, long count, (long Key, long Count)[]? exact, long[]? counters, long[] candidates)
+    internal static ModeSketch Restore(ModeSketch empty, long count, (long Key, long Count)[]? exact, long[]? counters, (long Key, long Count)[] candidates)
     {
         if (exact is not null)
         {
@@ -233,7 +241,10 @@ public sealed class ModeSketch
         empty._exact = null;
         empty._table = new CountMinTable(empty.Width, empty.Depth, counters!);
         empty.Count = count;
-        empty.RebuildCandidates(candidates);
+        empty._candidateKeys = candidates.Select(c => c.Key).ToArray();
+        empty._candidateCounts = candidates.Select(c => c.Count).ToArray();
+        empty._candidateCount = candidates.Length;
+        empty.RefreshFloor();
         return empty;
     }
 
@@ -290,10 +301,12 @@ public sealed class ModeSketch
             return;
         }
 
+        // Lowest count, ties to the smallest key: a choice that depends on the set, not on the order
+        // it is held in, so a restored sketch evicts exactly what the original would have.
         int weakest = 0;
         for (int i = 1; i < _candidateCount; i++)
         {
-            if (_candidateCounts[i] < _candidateCounts[weakest])
+            if (_candidateCounts[i] < _candidateCounts[weakest] || (_candidateCounts[i] == _candidateCounts[weakest] && _candidateKeys[i] < _candidateKeys[weakest]))
             {
                 weakest = i;
             }

@@ -64,6 +64,9 @@ public static class SketchCodec
         Check(
             quantiles.Count == moments.Count && modes.Count == moments.Count,
             $"counts disagree: moments.count {moments.Count}, quantiles.count {quantiles.Count}, modes.count {modes.Count}.");
+        Check(
+            moments.Count == 0 || (moments.Min.Equals(quantiles.Min) && moments.Max.Equals(quantiles.Max)),
+            $"extremes disagree: moments.min/max are {moments.Min}/{moments.Max} but quantiles.min/max are {quantiles.Min}/{quantiles.Max}.");
         return new SeriesSketch(moments, quantiles, modes);
     }
 
@@ -109,6 +112,10 @@ public static class SketchCodec
         {
             Check(state.Min <= state.Max, $"moments.min {state.Min} exceeds moments.max {state.Max}.");
             Check(count > 1 || state.M2 == 0, $"moments.m2 is {state.M2} for a single value.");
+
+            // The running mean may drift a few ulps past the extremes; anything more is damage.
+            double slack = 1e-9 * Math.Max(Math.Abs(state.Min), Math.Abs(state.Max));
+            Check(state.Mean >= state.Min - slack && state.Mean <= state.Max + slack, $"moments.mean {state.Mean} lies outside [min {state.Min}, max {state.Max}].");
         }
 
         var sketch = new MomentSketch();
@@ -170,21 +177,29 @@ public static class SketchCodec
             Check(retained <= capacity, $"quantiles.levels hold more than the {capacity} items {levelCount} levels allow at k = {k}.");
             for (int i = 0; i < items.Length; i++)
             {
+                // Conditions first: formatting a message per item would dominate the cost of reading a sketch.
                 double v = items[i];
-                Check(double.IsFinite(v), $"quantiles.levels[{h}].items[{i}] is {v}; items must be finite.");
-                Check(v >= state.Min && v <= state.Max, $"quantiles.levels[{h}].items[{i}] is {v}, outside [min {state.Min}, max {state.Max}].");
-                Check(h == 0 || i == 0 || items[i - 1] <= v, $"quantiles.levels[{h}].items[{i}] is {v}, below the item before it; levels above 0 must be sorted.");
+                if (!double.IsFinite(v))
+                {
+                    Fail($"quantiles.levels[{h}].items[{i}] is {v}; items must be finite.");
+                }
+
+                if (!(v >= state.Min && v <= state.Max))
+                {
+                    Fail($"quantiles.levels[{h}].items[{i}] is {v}, outside [min {state.Min}, max {state.Max}].");
+                }
+
+                if (h > 0 && i > 0 && items[i - 1] > v)
+                {
+                    Fail($"quantiles.levels[{h}].items[{i}] is {v}, below the item before it; levels above 0 must be sorted.");
+                }
             }
 
             compactions[h] = CheckedCount(level.Compactions, $"quantiles.levels[{h}].compactions");
-            try
-            {
-                weighted = checked(weighted + (items.LongLength << h));
-            }
-            catch (OverflowException)
-            {
-                throw new SketchFormatException($"quantiles.levels[{h}] carries more weight than a count can hold.");
-            }
+
+            // Shifts are not overflow-checked, so the weight's size is checked before shifting.
+            Check(items.LongLength <= (long.MaxValue >> h) && weighted <= long.MaxValue - (items.LongLength << h), $"quantiles.levels[{h}] carries more weight than a count can hold.");
+            weighted += items.LongLength << h;
 
             levels[h] = items;
         }
@@ -220,7 +235,11 @@ public static class SketchCodec
                 state.Counters.Add((ulong)counter);
             }
 
-            state.Candidates.AddRange(sketch.SortedCandidateKeys());
+            foreach ((long key, long count) in sketch.SortedCandidates())
+            {
+                state.Candidates.Add(key);
+                state.CandidateCounts.Add((ulong)count);
+            }
         }
 
         return state;
@@ -281,13 +300,21 @@ public static class SketchCodec
         }
 
         Check(state.Candidates.Count <= empty.CandidateLimit, $"modes.candidates has {state.Candidates.Count} keys, over modes.candidate_limit {empty.CandidateLimit}.");
-        for (int i = 0; i < state.Candidates.Count; i++)
+        Check(state.CandidateCounts.Count == state.Candidates.Count, $"modes.candidate_counts has {state.CandidateCounts.Count} entries for {state.Candidates.Count} candidates.");
+        var restored = ModeSketch.Restore(empty, count, null, counters, []);
+        var candidates = new (long Key, long Count)[state.Candidates.Count];
+        for (int i = 0; i < candidates.Length; i++)
         {
-            CheckKey(state.Candidates[i], $"modes.candidates[{i}]");
-            Check(i == 0 || state.Candidates[i - 1] < state.Candidates[i], $"modes.candidates[{i}] is not above the key before it; keys must be strictly ascending.");
+            long key = state.Candidates[i];
+            CheckKey(key, $"modes.candidates[{i}]");
+            Check(i == 0 || state.Candidates[i - 1] < key, $"modes.candidates[{i}] is not above the key before it; keys must be strictly ascending.");
+            long tracked = CheckedCount(state.CandidateCounts[i], $"modes.candidate_counts[{i}]");
+            long estimate = restored.TableEstimate(key);
+            Check(tracked <= estimate, $"modes.candidate_counts[{i}] is {tracked}, above the table's estimate {estimate} for that key; tracked counts only trail the table.");
+            candidates[i] = (key, tracked);
         }
 
-        return ModeSketch.Restore(empty, count, null, counters, state.Candidates.ToArray());
+        return ModeSketch.Restore(restored, count, null, counters, candidates);
     }
 
     private static void CheckKey(long key, string field)
@@ -319,7 +346,9 @@ public static class SketchCodec
     {
         if (!condition)
         {
-            throw new SketchFormatException(message);
+            Fail(message);
         }
     }
+
+    private static void Fail(string message) => throw new SketchFormatException(message);
 }
