@@ -14,6 +14,12 @@ public interface ISeriesStore
     /// </summary>
     ValueTask<AppendResult> AppendAsync(SeriesBatch batch, CancellationToken cancellationToken = default);
 
+    /// <summary>
+    /// Validates an uploaded sketch and merges it into the bucket of its timestamp completely, or throws
+    /// <see cref="StoreRejectedException"/> and changes nothing. Durable like <see cref="AppendAsync"/>.
+    /// </summary>
+    ValueTask<AppendResult> MergeSketchAsync(SketchUpload upload, CancellationToken cancellationToken = default);
+
     /// <summary>Summary of the selected series over the window, one per combination of the group-by labels' values.</summary>
     WindowSummary Summarize(Selector selector, TimeRange window, IReadOnlyList<string> groupBy, SummaryOptions options);
 

@@ -92,6 +92,9 @@ public sealed class PersistentSeriesStore : ISeriesStore, IAsyncDisposable
     public ValueTask<AppendResult> AppendAsync(SeriesBatch batch, CancellationToken cancellationToken = default) => Inner.AppendAsync(batch, cancellationToken);
 
     /// <inheritdoc/>
+    public ValueTask<AppendResult> MergeSketchAsync(SketchUpload upload, CancellationToken cancellationToken = default) => Inner.MergeSketchAsync(upload, cancellationToken);
+
+    /// <inheritdoc/>
     public WindowSummary Summarize(Selector selector, TimeRange window, IReadOnlyList<string> groupBy, SummaryOptions options) => Inner.Summarize(selector, window, groupBy, options);
 
     /// <inheritdoc/>

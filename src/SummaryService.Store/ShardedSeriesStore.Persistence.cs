@@ -86,6 +86,12 @@ public sealed partial class ShardedSeriesStore
             return;
         }
 
+        if (record.Sketch is not null)
+        {
+            ReplayUpload(record, report);
+            return;
+        }
+
         long now = NowMs();
         long oldest = now - _options.TotalRetentionMs;
         var values = new List<double>(record.Values.Count);

@@ -35,6 +35,9 @@ public enum RejectReason
 
     /// <summary>A query option out of range.</summary>
     InvalidQuery,
+
+    /// <summary>An uploaded sketch that is empty or shaped differently from the store's.</summary>
+    InvalidSketch,
 }
 
 /// <summary>

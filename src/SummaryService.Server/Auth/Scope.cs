@@ -1,0 +1,35 @@
+namespace SummaryService.Server.Auth;
+
+/// <summary>What a key may do: each service needs exactly one scope.</summary>
+[Flags]
+public enum Scope
+{
+    /// <summary>Nothing.</summary>
+    None = 0,
+
+    /// <summary>Ingest: push batches and sketches.</summary>
+    Write = 1,
+
+    /// <summary>Query: summaries, series, watches, comparisons.</summary>
+    Read = 2,
+
+    /// <summary>Admin: catalogue, deletion, snapshots, figures.</summary>
+    Admin = 4,
+}
+
+/// <summary>Scope names as they appear in configuration.</summary>
+public static class ScopeNames
+{
+    /// <summary>Parses <c>write</c>, <c>read</c> or <c>admin</c> (any case).</summary>
+    public static bool TryParse(string text, out Scope scope)
+    {
+        scope = text.Trim().ToLowerInvariant() switch
+        {
+            "write" => Scope.Write,
+            "read" => Scope.Read,
+            "admin" => Scope.Admin,
+            _ => Scope.None,
+        };
+        return scope != Scope.None;
+    }
+}

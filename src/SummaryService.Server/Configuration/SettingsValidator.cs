@@ -1,0 +1,125 @@
+using Microsoft.Extensions.Options;
+using SummaryService.Server.Auth;
+
+namespace SummaryService.Server.Configuration;
+
+/// <summary>
+/// Start-up checks of every section, so a bad setting stops the server with a message naming it
+/// instead of surfacing later as a confusing runtime error.
+/// </summary>
+internal sealed class SettingsValidator :
+    IValidateOptions<StoreSettings>,
+    IValidateOptions<PersistenceSettings>,
+    IValidateOptions<ServerSettings>,
+    IValidateOptions<AuthSettings>
+{
+    /// <inheritdoc/>
+    public ValidateOptionsResult Validate(string? name, StoreSettings options)
+    {
+        try
+        {
+            options.ToStoreOptions().Validate();
+            if (options.SketchK is < Sketches.Quantiles.KllSketch.MinK or > Sketches.Quantiles.KllSketch.MaxK)
+            {
+                return Fail($"Store:SketchK is {options.SketchK}; it must lie in [{Sketches.Quantiles.KllSketch.MinK}, {Sketches.Quantiles.KllSketch.MaxK}].");
+            }
+
+            if (!(options.ModeResolution >= 0) || !double.IsFinite(options.ModeResolution))
+            {
+                return Fail($"Store:ModeResolution is {options.ModeResolution}; use 0 for exact values or a positive bin width.");
+            }
+
+            if (options.MaxFuture < TimeSpan.Zero || options.MemoryBudgetBytes < 1)
+            {
+                return Fail($"Store:MaxFuture ({options.MaxFuture}) must not be negative and Store:MemoryBudgetBytes ({options.MemoryBudgetBytes}) must be positive.");
+            }
+
+            return ValidateOptionsResult.Success;
+        }
+        catch (ArgumentException ex)
+        {
+            return Fail($"Store:{ex.ParamName}: {ex.Message}");
+        }
+    }
+
+    /// <inheritdoc/>
+    public ValidateOptionsResult Validate(string? name, PersistenceSettings options)
+    {
+        if (!Enum.IsDefined(options.Durability))
+        {
+            return Fail($"Persistence:Durability is {options.Durability}; use Wal, Snapshot or None.");
+        }
+
+        if (string.IsNullOrWhiteSpace(options.DataDirectory))
+        {
+            return Fail("Persistence:DataDirectory is empty; give a directory for snapshots and the log.");
+        }
+
+        if (options.SnapshotInterval < TimeSpan.FromSeconds(1))
+        {
+            return Fail($"Persistence:SnapshotInterval is {options.SnapshotInterval}; it must be at least 1 second.");
+        }
+
+        if (options.LogSyncInterval < TimeSpan.Zero || options.LogSyncInterval > TimeSpan.FromSeconds(1))
+        {
+            return Fail($"Persistence:LogSyncInterval is {options.LogSyncInterval}; it must lie between 0 and 1 second.");
+        }
+
+        if (options.SnapshotsKept < 1)
+        {
+            return Fail($"Persistence:SnapshotsKept is {options.SnapshotsKept}; at least 1 generation must be kept.");
+        }
+
+        if (options.RollupInterval < TimeSpan.FromMilliseconds(100))
+        {
+            return Fail($"Persistence:RollupInterval is {options.RollupInterval}; it must be at least 100 ms.");
+        }
+
+        return ValidateOptionsResult.Success;
+    }
+
+    /// <inheritdoc/>
+    public ValidateOptionsResult Validate(string? name, ServerSettings options)
+    {
+        if (options.MaxMessageBytes < 1024)
+        {
+            return Fail($"Server:MaxMessageBytes is {options.MaxMessageBytes}; it must be at least 1024.");
+        }
+
+        return options.MaxSeriesSteps < 1
+            ? Fail($"Server:MaxSeriesSteps is {options.MaxSeriesSteps}; it must be at least 1.")
+            : ValidateOptionsResult.Success;
+    }
+
+    /// <inheritdoc/>
+    public ValidateOptionsResult Validate(string? name, AuthSettings options)
+    {
+        for (int i = 0; i < options.Keys.Count; i++)
+        {
+            ApiKeySettings key = options.Keys[i];
+            if (key.Sha256.Length != 64 || !key.Sha256.All(char.IsAsciiHexDigit))
+            {
+                return Fail($"Auth:Keys:{i}:Sha256 is '{key.Sha256}'; give the 64 hexadecimal digits of the key's SHA-256 hash.");
+            }
+
+            foreach (string scope in key.Scopes)
+            {
+                if (!ScopeNames.TryParse(scope, out _))
+                {
+                    return Fail($"Auth:Keys:{i}:Scopes has '{scope}'; scopes are write, read and admin.");
+                }
+            }
+
+            if (key.Scopes.Count == 0)
+            {
+                return Fail($"Auth:Keys:{i}:Scopes is empty; give at least one of write, read, admin.");
+            }
+        }
+
+        return options.Enabled && options.Keys.Count == 0
+            ? Fail("Auth:Enabled is true but Auth:Keys is empty; no call could succeed.")
+            : ValidateOptionsResult.Success;
+    }
+
+    private static ValidateOptionsResult Fail(string message) => ValidateOptionsResult.Fail(message);
+}

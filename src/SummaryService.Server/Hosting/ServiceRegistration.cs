@@ -1,0 +1,77 @@
+using Microsoft.Extensions.Options;
+using OpenTelemetry;
+using OpenTelemetry.Metrics;
+using OpenTelemetry.Resources;
+using OpenTelemetry.Trace;
+using SummaryService.Server.Auth;
+using SummaryService.Server.Configuration;
+using SummaryService.Server.Services;
+using SummaryService.Server.Telemetry;
+using SummaryService.Server.Validation;
+
+namespace SummaryService.Server.Hosting;
+
+/// <summary>Everything the host needs, in one place, so Program stays a few lines.</summary>
+public static class ServiceRegistration
+{
+    /// <summary>Settings, store, background work, gRPC with its interceptors, health, reflection and telemetry.</summary>
+    public static WebApplicationBuilder AddSummaryService(this WebApplicationBuilder builder)
+    {
+        ArgumentNullException.ThrowIfNull(builder);
+        IServiceCollection services = builder.Services;
+        services.AddSingleton<SettingsValidator>();
+        Bind<StoreSettings>(services, builder.Configuration, StoreSettings.SectionName);
+        Bind<PersistenceSettings>(services, builder.Configuration, PersistenceSettings.SectionName);
+        Bind<ServerSettings>(services, builder.Configuration, ServerSettings.SectionName);
+        Bind<AuthSettings>(services, builder.Configuration, AuthSettings.SectionName);
+
+        services.AddSingleton(TimeProvider.System);
+        services.AddSingleton<ServerMetrics>();
+        services.AddSingleton<StoreHost>();
+        services.AddSingleton<ApiKeyRegistry>();
+        services.AddHostedService<StartupNotices>();
+        services.AddHostedService<SnapshotService>();
+        services.AddHostedService<RollupService>();
+
+        int maxMessage = builder.Configuration.GetSection(ServerSettings.SectionName).Get<ServerSettings>()?.MaxMessageBytes ?? new ServerSettings().MaxMessageBytes;
+        services.AddGrpc(options =>
+        {
+            options.MaxReceiveMessageSize = maxMessage;
+            options.MaxSendMessageSize = maxMessage;
+            options.Interceptors.Add<ApiKeyInterceptor>();
+            options.Interceptors.Add<ErrorMappingInterceptor>();
+        });
+        services.AddGrpcReflection();
+        services.AddGrpcHealthChecks().AddCheck<StoreHealthCheck>("store");
+
+        var telemetry = services.AddOpenTelemetry()
+            .ConfigureResource(resource => resource.AddService("summary-service"))
+            .WithTracing(tracing => tracing.AddAspNetCoreInstrumentation().AddSource(ServerMetrics.ActivitySourceName))
+            .WithMetrics(metrics => metrics.AddAspNetCoreInstrumentation().AddMeter(ServerMetrics.MeterName));
+        if (!string.IsNullOrWhiteSpace(builder.Configuration["OTEL_EXPORTER_OTLP_ENDPOINT"]))
+        {
+            telemetry.UseOtlpExporter();
+        }
+
+        return builder;
+    }
+
+    /// <summary>The gRPC services, health and reflection.</summary>
+    public static WebApplication MapSummaryService(this WebApplication app)
+    {
+        ArgumentNullException.ThrowIfNull(app);
+        app.MapGrpcService<IngestService>();
+        app.MapGrpcService<QueryService>();
+        app.MapGrpcService<AdminService>();
+        app.MapGrpcHealthChecksService();
+        app.MapGrpcReflectionService();
+        return app;
+    }
+
+    private static void Bind<T>(IServiceCollection services, IConfiguration configuration, string section)
+        where T : class
+    {
+        services.AddOptions<T>().Bind(configuration.GetSection(section)).ValidateOnStart();
+        services.AddSingleton<IValidateOptions<T>>(provider => (IValidateOptions<T>)(object)provider.GetRequiredService<SettingsValidator>());
+    }
+}

@@ -1,0 +1,46 @@
+using SummaryService.Contract.V1;
+using SummaryService.Sketches.Serialization;
+using SummaryService.Server.Validation;
+using SummaryService.Store;
+
+namespace SummaryService.Server.Mapping;
+
+/// <summary>Ingest messages to store inputs; the store validates names, labels, values and times.</summary>
+public static class IngestMapping
+{
+    /// <summary>The store batch of a wire batch.</summary>
+    public static SeriesBatch ToStore(Batch batch)
+    {
+        ArgumentNullException.ThrowIfNull(batch);
+        return new SeriesBatch
+        {
+            Metric = batch.Metric,
+            Labels = new Dictionary<string, string>(batch.Labels, StringComparer.Ordinal),
+            Values = batch.Values.ToArray(),
+            TimeUnixMs = batch.TimeUnixMs,
+            ValueTimesUnixMs = batch.ValueTimesUnixMs.ToArray(),
+            Producer = batch.Producer,
+            Sequence = batch.Sequence,
+        };
+    }
+
+    /// <summary>The store upload of a wire upload; a missing or malformed sketch is InvalidArgument naming the field at fault.</summary>
+    public static Store.SketchUpload ToStore(Contract.V1.SketchUpload upload)
+    {
+        ArgumentNullException.ThrowIfNull(upload);
+        if (upload.Sketch is null)
+        {
+            throw RpcErrors.Invalid("sketch", "sketch is missing; upload a SeriesSketchState.");
+        }
+
+        return new Store.SketchUpload
+        {
+            Metric = upload.Metric,
+            Labels = new Dictionary<string, string>(upload.Labels, StringComparer.Ordinal),
+            Sketch = SketchCodec.FromState(upload.Sketch),
+            TimeUnixMs = upload.TimeUnixMs,
+            Producer = upload.Producer,
+            Sequence = upload.Sequence,
+        };
+    }
+}

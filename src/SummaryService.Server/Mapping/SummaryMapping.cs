@@ -1,0 +1,94 @@
+using SummaryService.Contract.V1;
+using Domain = SummaryService.Sketches.Summaries;
+using StoreTimeRange = SummaryService.Store.TimeRange;
+
+namespace SummaryService.Server.Mapping;
+
+/// <summary>Sketch summaries to their wire form; absent statistics stay absent (proto3 optional), never 0.</summary>
+public static class SummaryMapping
+{
+    /// <summary>The wire form of a summary.</summary>
+    public static Summary ToProto(Domain.Summary summary)
+    {
+        ArgumentNullException.ThrowIfNull(summary);
+        var proto = new Summary
+        {
+            Count = (ulong)summary.Count,
+            Exact = summary.Exact,
+            RankError = summary.RankError,
+            Confidence = summary.Confidence,
+            ModesOmitted = (uint)summary.ModesOmitted,
+        };
+        Set(summary.Sum, v => proto.Sum = v);
+        Set(summary.Mean, v => proto.Mean = v);
+        Set(summary.Variance, v => proto.Variance = v);
+        Set(summary.PopulationVariance, v => proto.PopulationVariance = v);
+        Set(summary.StandardDeviation, v => proto.Stddev = v);
+        Set(summary.StandardError, v => proto.StandardError = v);
+        Set(summary.Skewness, v => proto.Skewness = v);
+        Set(summary.Kurtosis, v => proto.Kurtosis = v);
+        Set(summary.Min, v => proto.Min = v);
+        Set(summary.Max, v => proto.Max = v);
+        Set(summary.Range, v => proto.Range = v);
+        Set(summary.MeanLow, v => proto.MeanLow = v);
+        Set(summary.MeanHigh, v => proto.MeanHigh = v);
+        Set(summary.Iqr, v => proto.Iqr = v);
+        Set(summary.IqrLow, v => proto.IqrLow = v);
+        Set(summary.IqrHigh, v => proto.IqrHigh = v);
+        Set(summary.Mad, v => proto.Mad = v);
+        Set(summary.MadLow, v => proto.MadLow = v);
+        Set(summary.MadHigh, v => proto.MadHigh = v);
+        Set(summary.QuartileSkewness, v => proto.QuartileSkewness = v);
+        proto.Quantiles.AddRange(summary.Quantiles.Select(ToProto));
+        proto.Ranks.AddRange(summary.Ranks.Select(r => new RankEstimate { Value = r.Value, Fraction = r.Fraction, Low = r.Low, High = r.High }));
+        proto.Modes.AddRange(summary.Modes.Select(m => new ModeEstimate { Value = m.Value, Count = (ulong)m.Count, CountLow = (ulong)m.CountLow, CountHigh = (ulong)m.CountHigh }));
+        if (summary.FiveNumber is { } five)
+        {
+            proto.FiveNumber = new FiveNumberSummary { Min = five.Min, LowerQuartile = ToProto(five.LowerQuartile), Median = ToProto(five.Median), UpperQuartile = ToProto(five.UpperQuartile), Max = five.Max };
+        }
+
+        if (summary.Histogram is { } bins)
+        {
+            proto.Histogram = new Histogram();
+            proto.Histogram.Bins.AddRange(bins.Select(b => new HistogramBin { Lower = b.Lower, Upper = b.Upper, Count = b.Count, CountLow = b.CountLow, CountHigh = b.CountHigh }));
+        }
+
+        return proto;
+    }
+
+    /// <summary>The wire form of a quantile estimate.</summary>
+    public static QuantileEstimate ToProto(Domain.QuantileEstimate q) =>
+        new() { Q = q.Q, Value = q.Value, Low = q.Low, High = q.High, RankError = q.RankError };
+
+    /// <summary>The wire form of a time range.</summary>
+    public static TimeRange ToProto(StoreTimeRange range) => new() { FromUnixMs = range.FromUnixMs, ToUnixMs = range.ToUnixMs };
+
+    /// <summary>The wire form of a window query's answer.</summary>
+    public static SummarizeReply ToProto(Store.WindowSummary window)
+    {
+        ArgumentNullException.ThrowIfNull(window);
+        var reply = new SummarizeReply { Covered = ToProto(window.Covered) };
+        reply.Groups.AddRange(window.Groups.Select(ToProto));
+        return reply;
+    }
+
+    /// <summary>The wire form of one group.</summary>
+    public static GroupSummary ToProto(Store.GroupSummary group)
+    {
+        ArgumentNullException.ThrowIfNull(group);
+        var proto = new GroupSummary { Summary = ToProto(group.Summary), SeriesMerged = (uint)group.SeriesMerged };
+        foreach (var (name, value) in group.Labels)
+        {
+            proto.Labels[name] = value;
+        }
+        return proto;
+    }
+
+    private static void Set(double? value, Action<double> set)
+    {
+        if (value is { } v)
+        {
+            set(v);
+        }
+    }
+}

@@ -1,0 +1,128 @@
+using SummaryService.Contract.V1;
+using SummaryService.Sketches.Summaries;
+using StoreSelector = SummaryService.Store.Selector;
+using StoreTimeRange = SummaryService.Store.TimeRange;
+
+namespace SummaryService.Server.Validation;
+
+/// <summary>
+/// Checks query messages field by field and turns them into store arguments. Every refusal is
+/// InvalidArgument with the proto field's path and the offending value, before the store is asked.
+/// </summary>
+public static class QueryRequests
+{
+    /// <summary>The selector, which must name a metric.</summary>
+    public static StoreSelector SelectorOf(Contract.V1.Selector? selector, string field)
+    {
+        if (selector is null || string.IsNullOrEmpty(selector.Metric))
+        {
+            throw RpcErrors.Invalid($"{field}.metric", $"{field}.metric is empty; name the metric to read.");
+        }
+
+        return new StoreSelector(selector.Metric, new Dictionary<string, string>(selector.MatchLabels, StringComparer.Ordinal));
+    }
+
+    /// <summary>The window as a half-open range, measuring <c>last</c> back from <paramref name="nowMs"/>.</summary>
+    public static StoreTimeRange WindowOf(Window? window, string field, long nowMs)
+    {
+        switch (window?.SpanCase)
+        {
+            case Window.SpanOneofCase.Range:
+                var range = window.Range;
+                if (range.FromUnixMs >= range.ToUnixMs)
+                {
+                    throw RpcErrors.Invalid($"{field}.range", $"{field}.range from_unix_ms {range.FromUnixMs} is not before to_unix_ms {range.ToUnixMs}; windows are half-open [from, to).");
+                }
+
+                return new StoreTimeRange(range.FromUnixMs, range.ToUnixMs);
+            case Window.SpanOneofCase.Last:
+                TimeSpan last = DurationOf(window.Last, $"{field}.last");
+                if (last <= TimeSpan.Zero)
+                {
+                    throw RpcErrors.Invalid($"{field}.last", $"{field}.last is {last}; it must be positive.");
+                }
+
+                return new StoreTimeRange(nowMs - (long)last.TotalMilliseconds, nowMs);
+            default:
+                throw RpcErrors.Invalid(field, $"{field} is missing; give a range or a trailing duration (last).");
+        }
+    }
+
+    /// <summary>A duration that must be a valid protobuf duration.</summary>
+    public static TimeSpan DurationOf(Google.Protobuf.WellKnownTypes.Duration duration, string field)
+    {
+        ArgumentNullException.ThrowIfNull(duration);
+        if (duration.Seconds is < -315_576_000_000 or > 315_576_000_000 || duration.Nanos is <= -1_000_000_000 or >= 1_000_000_000)
+        {
+            throw RpcErrors.Invalid(field, $"{field} ({duration.Seconds} s, {duration.Nanos} ns) is not a valid duration.");
+        }
+
+        return duration.ToTimeSpan();
+    }
+
+    /// <summary>Summary options with the request's quantiles, confidence, thresholds, modes and histogram.</summary>
+    public static SummaryOptions OptionsOf(IReadOnlyList<double> quantiles, double confidence, IReadOnlyList<double> rankOf, uint maxModes, Contract.V1.HistogramSpec? histogram, IReadOnlyList<double>? defaultQuantiles = null)
+    {
+        ArgumentNullException.ThrowIfNull(quantiles);
+        ArgumentNullException.ThrowIfNull(rankOf);
+        for (int i = 0; i < quantiles.Count; i++)
+        {
+            if (!(quantiles[i] >= 0 && quantiles[i] <= 1))
+            {
+                throw RpcErrors.Invalid($"quantiles[{i}]", $"quantiles[{i}] is {quantiles[i]}; quantiles must lie in [0, 1].");
+            }
+        }
+
+        if (confidence != 0 && !(confidence > 0 && confidence < 1))
+        {
+            throw RpcErrors.Invalid("confidence", $"confidence is {confidence}; it must lie strictly between 0 and 1 (0 means {SummaryOptions.DefaultConfidence}).");
+        }
+
+        for (int i = 0; i < rankOf.Count; i++)
+        {
+            if (!double.IsFinite(rankOf[i]))
+            {
+                throw RpcErrors.Invalid($"rank_of[{i}]", $"rank_of[{i}] is {rankOf[i]}; thresholds must be finite.");
+            }
+        }
+
+        if (maxModes > 1000)
+        {
+            throw RpcErrors.Invalid("max_modes", $"max_modes is {maxModes}; at most 1000 modes are listed.");
+        }
+
+        return new SummaryOptions
+        {
+            Quantiles = quantiles.Count == 0 ? defaultQuantiles ?? SummaryOptions.DefaultQuantiles : quantiles.ToArray(),
+            Confidence = confidence == 0 ? SummaryOptions.DefaultConfidence : confidence,
+            RankOf = rankOf.ToArray(),
+            MaxModes = maxModes == 0 ? SummaryOptions.DefaultMaxModes : (int)maxModes,
+            Histogram = histogram is null ? null : HistogramOf(histogram),
+        };
+    }
+
+    private static Sketches.Summaries.HistogramSpec HistogramOf(Contract.V1.HistogramSpec spec)
+    {
+        for (int i = 0; i < spec.Edges.Count; i++)
+        {
+            if (!double.IsFinite(spec.Edges[i]) || (i > 0 && !(spec.Edges[i] > spec.Edges[i - 1])))
+            {
+                throw RpcErrors.Invalid($"histogram.edges[{i}]", $"histogram.edges[{i}] is {spec.Edges[i]}; edges must be finite and strictly ascending.");
+            }
+        }
+
+        if (spec.Edges.Count == 1)
+        {
+            throw RpcErrors.Invalid("histogram.edges", "histogram.edges has one edge; give at least two, or none for equal-width bins.");
+        }
+
+        if (spec.BinCount > 10_000)
+        {
+            throw RpcErrors.Invalid("histogram.bin_count", $"histogram.bin_count is {spec.BinCount}; at most 10000 bins.");
+        }
+
+        return spec.Edges.Count > 0
+            ? Sketches.Summaries.HistogramSpec.WithEdges(spec.Edges.ToArray())
+            : Sketches.Summaries.HistogramSpec.Automatic(spec.BinCount == 0 ? Sketches.Summaries.HistogramSpec.DefaultBinCount : (int)spec.BinCount);
+    }
+}

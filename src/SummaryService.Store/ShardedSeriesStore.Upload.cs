@@ -1,0 +1,132 @@
+using SummaryService.Sketches;
+using SummaryService.Sketches.Serialization;
+using SummaryService.Store.Persistence;
+using SummaryService.Store.Persistence.Formats;
+
+namespace SummaryService.Store;
+
+/// <summary>Merging client-side sketches into buckets, with the same checks, limits and journal as raw batches.</summary>
+public sealed partial class ShardedSeriesStore
+{
+    /// <summary>
+    /// Validates the upload completely, then merges its sketch into the bucket of its timestamp, or
+    /// throws <see cref="StoreRejectedException"/> and changes nothing.
+    /// </summary>
+    public async ValueTask<AppendResult> MergeSketchAsync(SketchUpload upload, CancellationToken cancellationToken = default)
+    {
+        ArgumentNullException.ThrowIfNull(upload);
+        ArgumentNullException.ThrowIfNull(upload.Sketch);
+        long now = NowMs();
+        RequireCompatible(upload.Sketch);
+
+        // The name, label and time rules are the batch rules: one stand-in value carries the timestamp.
+        long[] times = _validator.Validate(new SeriesBatch { Metric = upload.Metric, Labels = upload.Labels, Values = new double[] { 0 }, TimeUnixMs = upload.TimeUnixMs }, now);
+        var key = new SeriesKey(upload.Metric, upload.Labels);
+        SeriesSketch sketch = upload.Sketch.Clone();
+        SeriesShard shard = ShardOf(key);
+        Task? durable = null;
+        lock (shard.Gate)
+        {
+            bool known = shard.Series.TryGetValue(key, out var timeline);
+            timeline ??= new SeriesTimeline(key, _options);
+            if (timeline.NewBucketsFor(times, now) > 0 && TotalEstimatedBytes() + sketch.EstimatedBytes > _options.MemoryBudgetBytes)
+            {
+                throw new StoreRejectedException(RejectReason.MemoryLimit, "sketch", $"the store's memory budget of {_options.MemoryBudgetBytes} bytes is spent; no new bucket can be opened for {key}.");
+            }
+
+            if (!known)
+            {
+                ReserveSeries(key, enforceLimits: true);
+            }
+
+            if (!_producers.TryClaim(upload.Producer, upload.Sequence))
+            {
+                if (!known)
+                {
+                    ReleaseSeries(key);
+                }
+
+                return new AppendResult(0, Duplicate: true);
+            }
+
+            if (!known)
+            {
+                shard.Series.Add(key, timeline);
+            }
+
+            ulong lsn = (ulong)Interlocked.Increment(ref _lastLsn);
+            if (Journal is { } journal)
+            {
+                durable = journal(UploadRecordOf(lsn, upload, times[0], sketch));
+            }
+
+            shard.EstimatedBytes += timeline.Place(-1, times[0], sketch, now);
+            shard.AppliedLsn = lsn;
+        }
+
+        if (durable is not null)
+        {
+            await durable.WaitAsync(cancellationToken).ConfigureAwait(false);
+        }
+
+        return new AppendResult(upload.Sketch.Count, Duplicate: false);
+    }
+
+    /// <summary>Replays a logged upload; past retention it is dropped and its values counted as such.</summary>
+    private void ReplayUpload(LogRecord record, RecoveryReport report)
+    {
+        var key = new SeriesKey(record.Metric, record.Labels);
+        SeriesSketch sketch = SketchCodec.FromState(record.Sketch);
+        long now = NowMs();
+        long t = record.TimesUnixMs.Count > 0 ? record.TimesUnixMs[0] : now;
+        report.LogRecordsReplayed++;
+        if (t < now - _options.TotalRetentionMs)
+        {
+            report.ValuesPastRetention += sketch.Count;
+            return;
+        }
+
+        SeriesShard shard = ShardOf(key);
+        lock (shard.Gate)
+        {
+            if (!shard.Series.TryGetValue(key, out var timeline))
+            {
+                timeline = new SeriesTimeline(key, _options);
+                shard.Series.Add(key, timeline);
+                ReserveSeries(key, enforceLimits: false);
+            }
+
+            shard.EstimatedBytes += timeline.Place(-1, t, sketch, now);
+            shard.AppliedLsn = Math.Max(shard.AppliedLsn, record.Lsn);
+        }
+    }
+
+    private void RequireCompatible(SeriesSketch sketch)
+    {
+        if (sketch.Count == 0)
+        {
+            throw new StoreRejectedException(RejectReason.InvalidSketch, "sketch", "sketch holds no values; upload a sketch of at least one value.");
+        }
+
+        SeriesSketchOptions expected = _options.Sketch;
+        if (sketch.Modes.Resolution.CompareTo(expected.ModeResolution) != 0 || sketch.Modes.Width != expected.ModeWidth || sketch.Modes.Depth != expected.ModeDepth)
+        {
+            throw new StoreRejectedException(
+                RejectReason.InvalidSketch,
+                "sketch.modes",
+                $"sketch.modes has resolution {sketch.Modes.Resolution} and a {sketch.Modes.Width}x{sketch.Modes.Depth} table; this store uses resolution {expected.ModeResolution} and {expected.ModeWidth}x{expected.ModeDepth}.");
+        }
+    }
+
+    private static LogRecord UploadRecordOf(ulong lsn, SketchUpload upload, long time, SeriesSketch sketch)
+    {
+        var record = new LogRecord { Lsn = lsn, Metric = upload.Metric, Producer = upload.Producer, Sequence = upload.Sequence, Sketch = SketchCodec.ToState(sketch) };
+        foreach (var (name, value) in upload.Labels)
+        {
+            record.Labels.Add(name, value);
+        }
+
+        record.TimesUnixMs.Add(time);
+        return record;
+    }
+}
