@@ -1,3 +1,5 @@
+using System.Numerics;
+
 namespace SummaryService.Sketches.Modes;
 
 /// <summary>
@@ -269,21 +271,23 @@ public sealed class ModeSketch
         }
     }
 
+    // Candidate sets are tiny (32 by default) but touched on most updates of distinct-valued data,
+    // so membership and the weakest entry are found with vectorized span searches.
     private void TrackCandidate(long key, long estimate)
     {
-        for (int i = 0; i < _candidateCount; i++)
+        Span<long> keys = _candidateKeys.AsSpan(0, _candidateCount);
+        Span<long> counts = _candidateCounts.AsSpan(0, _candidateCount);
+        int found = keys.IndexOf(key);
+        if (found >= 0)
         {
-            if (_candidateKeys[i] == key)
+            bool wasFloor = counts[found] == _candidateFloor;
+            counts[found] = estimate;
+            if (wasFloor)
             {
-                bool wasFloor = _candidateCounts[i] == _candidateFloor;
-                _candidateCounts[i] = estimate;
-                if (wasFloor)
-                {
-                    RefreshFloor();
-                }
-
-                return;
+                RefreshFloor();
             }
+
+            return;
         }
 
         if (_candidateCount < CandidateLimit)
@@ -303,29 +307,61 @@ public sealed class ModeSketch
 
         // Lowest count, ties to the smallest key: a choice that depends on the set, not on the order
         // it is held in, so a restored sketch evicts exactly what the original would have.
-        int weakest = 0;
-        for (int i = 1; i < _candidateCount; i++)
+        int weakest = counts.IndexOf(_candidateFloor);
+        int next = weakest + 1;
+        while (next < counts.Length)
         {
-            if (_candidateCounts[i] < _candidateCounts[weakest] || (_candidateCounts[i] == _candidateCounts[weakest] && _candidateKeys[i] < _candidateKeys[weakest]))
+            int tie = counts[next..].IndexOf(_candidateFloor);
+            if (tie < 0)
             {
-                weakest = i;
+                break;
             }
+
+            next += tie;
+            if (keys[next] < keys[weakest])
+            {
+                weakest = next;
+            }
+
+            next++;
         }
 
-        _candidateKeys[weakest] = key;
-        _candidateCounts[weakest] = estimate;
+        keys[weakest] = key;
+        counts[weakest] = estimate;
         RefreshFloor();
     }
 
     private void RefreshFloor()
     {
-        long floor = long.MaxValue;
-        for (int i = 0; i < _candidateCount; i++)
+        ReadOnlySpan<long> counts = _candidateCounts.AsSpan(0, _candidateCount);
+        _candidateFloor = counts.IsEmpty ? 0 : MinOf(counts);
+    }
+
+    private static long MinOf(ReadOnlySpan<long> values)
+    {
+        int width = Vector<long>.Count;
+        long min = values[0];
+        int i = 0;
+        if (Vector.IsHardwareAccelerated && values.Length >= width)
         {
-            floor = Math.Min(floor, _candidateCounts[i]);
+            var lanes = new Vector<long>(values);
+            for (i = width; i + width <= values.Length; i += width)
+            {
+                lanes = Vector.Min(lanes, new Vector<long>(values[i..]));
+            }
+
+            for (int lane = 0; lane < width; lane++)
+            {
+                min = Math.Min(min, lanes[lane]);
+            }
         }
 
-        _candidateFloor = _candidateCount == 0 ? 0 : floor;
+        for (; i < values.Length; i++)
+        {
+            min = Math.Min(min, values[i]);
+        }
+
+        return min;
     }
 
     private void SwitchToTable()
