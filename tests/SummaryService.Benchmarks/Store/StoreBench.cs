@@ -1,0 +1,161 @@
+using System.Diagnostics;
+using Microsoft.Extensions.Logging.Abstractions;
+using Microsoft.Extensions.Time.Testing;
+using SummaryService.Sketches.Summaries;
+using SummaryService.Store;
+using SummaryService.Store.Persistence;
+
+namespace SummaryService.Benchmarks.Store;
+
+/// <summary>
+/// Store figures that take seconds rather than nanoseconds, so they run as a console bench:
+/// ingest rate by durability, window query latency, snapshot size and time, memory per series.
+/// </summary>
+/// <remarks>Run: <c>dotnet run -c Release --project tests/SummaryService.Benchmarks -- store [quick]</c>.</remarks>
+public static class StoreBench
+{
+    private const int Series = 1000;
+    private const int BatchValues = 1000;
+
+    public static void Run(TextWriter output, bool quick)
+    {
+        var duration = TimeSpan.FromSeconds(quick ? 1 : 4);
+        output.WriteLine($"# Store bench ({Environment.ProcessorCount} cores, {(quick ? "quick" : "full")})");
+        output.WriteLine();
+        output.WriteLine("| figure | value |");
+        output.WriteLine("|---|---|");
+        double none = IngestNone(duration);
+        output.WriteLine($"| append, durability none, 1 thread, {Series} series × {BatchValues}-value batches | {none / 1e6:F1} M values/s |");
+        var (wal, fsyncs, producers) = IngestWal(duration);
+        output.WriteLine($"| append, durability wal, {producers} concurrent producers, same batches | {wal / 1e6:F1} M values/s ({fsyncs:F0} fsyncs/s) |");
+        var (hourMedian, hourP99) = QueryLatency(TimeSpan.FromHours(1), quick);
+        output.WriteLine($"| Summarize 1 h window (360 full 10 s buckets) | median {hourMedian:F2} ms, p99 {hourP99:F2} ms |");
+        var (weekMedian, weekP99) = QueryLatency(TimeSpan.FromDays(7), quick);
+        output.WriteLine($"| Summarize 7 d window (2160 × 10 s + 9720 × 1 min buckets) | median {weekMedian:F1} ms, p99 {weekP99:F1} ms |");
+        var (seconds, bytes, series, buckets, perIdle) = Snapshot(quick ? 1000 : 10_000);
+        output.WriteLine($"| snapshot of {series} series × {buckets / series} buckets (5 values each) | {seconds:F1} s, {bytes / 1e6:F0} MB |");
+        output.WriteLine($"| memory per idle series (one bucket of one value), GC heap | {perIdle:F0} bytes |");
+    }
+
+    private static double[][] Batches(int count)
+    {
+        var rng = new Random(1);
+        return Enumerable.Range(0, count)
+            .Select(_ => Enumerable.Range(0, BatchValues).Select(_ => Math.Exp(3 + (0.8 * NextGaussian(rng)))).ToArray())
+            .ToArray();
+    }
+
+    private static double IngestNone(TimeSpan duration)
+    {
+        var store = new ShardedSeriesStore(new StoreOptions(), TimeProvider.System);
+        var batches = Batches(64);
+        var names = Enumerable.Range(0, Series).Select(i => $"bench.s{i}").ToArray();
+        long values = 0;
+        var watch = Stopwatch.StartNew();
+        for (int i = 0; watch.Elapsed < duration; i++)
+        {
+            var result = store.AppendAsync(new SeriesBatch { Metric = names[i % Series], Values = batches[i % batches.Length] });
+            values += result.Result.Accepted;
+        }
+
+        return values / watch.Elapsed.TotalSeconds;
+    }
+
+    private static (double ValuesPerSecond, double FsyncsPerSecond, int Producers) IngestWal(TimeSpan duration)
+    {
+        string dir = Path.Combine(Path.GetTempPath(), "summaryservice-bench", Guid.NewGuid().ToString("N"));
+        long fsyncs = 0;
+        var store = PersistentSeriesStore.Open(new StoreOptions(), new PersistenceOptions { DataDirectory = dir }, TimeProvider.System, NullLogger.Instance, _ => Interlocked.Increment(ref fsyncs));
+        var batches = Batches(64);
+        const int Producers = 32;
+        long values = 0;
+        var watch = Stopwatch.StartNew();
+        var tasks = Enumerable.Range(0, Producers).Select(p => Task.Run(async () =>
+        {
+            for (int i = p; watch.Elapsed < duration; i += Producers)
+            {
+                var result = await store.AppendAsync(new SeriesBatch { Metric = $"bench.s{i % Series}", Values = batches[i % batches.Length] });
+                Interlocked.Add(ref values, result.Accepted);
+            }
+        })).ToArray();
+        Task.WaitAll(tasks);
+        double elapsed = watch.Elapsed.TotalSeconds;
+        store.CloseWithoutSnapshotAsync().AsTask().Wait();
+        Directory.Delete(dir, recursive: true);
+        return (values / elapsed, fsyncs / elapsed, Producers);
+    }
+
+    private static (double MedianMs, double P99Ms) QueryLatency(TimeSpan window, bool quick)
+    {
+        var clock = new FakeTimeProvider(DateTimeOffset.FromUnixTimeMilliseconds(1_800_000_000_000));
+        var store = new ShardedSeriesStore(new StoreOptions(), clock);
+        long now = clock.GetUtcNow().ToUnixTimeMilliseconds();
+        var batches = Batches(16);
+        var buckets = new List<long>();
+        for (long t = now - (long)window.TotalMilliseconds; t < now; t += t < now - (6 * 3_600_000L) ? 60_000 : 10_000)
+        {
+            buckets.Add(t);
+        }
+
+        foreach (long t in buckets)
+        {
+            // Two thousand values per bucket: past k = 200, so every bucket is a full, compacted sketch.
+            store.AppendAsync(new SeriesBatch { Metric = "bench.q", Values = batches[0], TimeUnixMs = t }).AsTask().Wait();
+            store.AppendAsync(new SeriesBatch { Metric = "bench.q", Values = batches[1], TimeUnixMs = t }).AsTask().Wait();
+        }
+
+        var range = new TimeRange(now - (long)window.TotalMilliseconds, now);
+        var options = new SummaryOptions();
+        var samples = new List<double>();
+        int runs = quick ? 10 : 60;
+        for (int i = 0; i < runs + 3; i++)
+        {
+            var watch = Stopwatch.StartNew();
+            store.Summarize(new Selector("bench.q"), range, [], options);
+            if (i >= 3)
+            {
+                samples.Add(watch.Elapsed.TotalMilliseconds);
+            }
+        }
+
+        samples.Sort();
+        return (samples[samples.Count / 2], samples[(int)Math.Min(samples.Count - 1, Math.Ceiling(samples.Count * 0.99) - 1)]);
+    }
+
+    private static (double Seconds, long Bytes, int Series, long Buckets, double BytesPerIdleSeries) Snapshot(int seriesCount)
+    {
+        string dir = Path.Combine(Path.GetTempPath(), "summaryservice-bench", Guid.NewGuid().ToString("N"));
+        var clock = new FakeTimeProvider(DateTimeOffset.FromUnixTimeMilliseconds(1_800_000_000_000));
+        var store = PersistentSeriesStore.Open(new StoreOptions { MaxSeries = 1_000_000, MaxSeriesPerTenant = 1_000_000 }, new PersistenceOptions { DataDirectory = dir, Durability = DurabilityMode.Snapshot }, clock, NullLogger.Instance);
+        long now = clock.GetUtcNow().ToUnixTimeMilliseconds();
+        double[] five = [12, 15, 9, 30, 11];
+        for (int s = 0; s < seriesCount; s++)
+        {
+            for (int b = 0; b < 360; b++)
+            {
+                store.AppendAsync(new SeriesBatch { Metric = $"bench.snap{s}", Values = five, TimeUnixMs = now - (b * 10_000L) }).AsTask().Wait();
+            }
+        }
+
+        var info = store.TakeSnapshotAsync().Result;
+        long buckets = store.GetStats().Buckets;
+        store.CloseWithoutSnapshotAsync().AsTask().Wait();
+        Directory.Delete(dir, recursive: true);
+
+        // Idle series: measured on the GC heap after a full collection, before and after adding them.
+        var idle = new ShardedSeriesStore(new StoreOptions { MaxSeries = 1_000_000, MaxSeriesPerTenant = 1_000_000 }, clock);
+        GC.Collect();
+        long before = GC.GetTotalMemory(forceFullCollection: true);
+        for (int s = 0; s < 10_000; s++)
+        {
+            idle.AppendAsync(new SeriesBatch { Metric = $"bench.idle{s}", Values = new[] { 1.0 }, TimeUnixMs = now }).AsTask().Wait();
+        }
+
+        long after = GC.GetTotalMemory(forceFullCollection: true);
+        GC.KeepAlive(idle);
+        return (info.Elapsed.TotalSeconds, info.Bytes, seriesCount, buckets, (after - before) / 10_000.0);
+    }
+
+    private static double NextGaussian(Random rng) =>
+        Math.Sqrt(-2 * Math.Log(1 - rng.NextDouble())) * Math.Cos(2 * Math.PI * rng.NextDouble());
+}

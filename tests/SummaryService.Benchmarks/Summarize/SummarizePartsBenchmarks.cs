@@ -1,0 +1,57 @@
+using BenchmarkDotNet.Attributes;
+using MathNet.Numerics.Distributions;
+using SummaryService.Benchmarks.Workloads;
+using SummaryService.Sketches;
+using SummaryService.Sketches.Modes;
+using SummaryService.Sketches.Quantiles;
+using SummaryService.Sketches.Summaries;
+
+namespace SummaryService.Benchmarks.Summarize;
+
+/// <summary>
+/// The expensive steps of <see cref="SeriesSketch.Summarize"/> one by one on a full sketch, so that
+/// a summary over target can be traced to its cause.
+/// </summary>
+/// <remarks>Steps that are internal to the library are reached through its InternalsVisibleTo grant.</remarks>
+[MemoryDiagnoser]
+public class SummarizePartsBenchmarks
+{
+    private SeriesSketch _sketch = null!;
+    private RankBounds _bounds = null!;
+
+    [Params(Distribution.LogNormalLatency, Distribution.StatusCodes)]
+    public Distribution Distribution { get; set; }
+
+    [GlobalSetup]
+    public void Setup()
+    {
+        _sketch = FullSketch.Build(Distribution, dataSeed: 1, sketchSeed: 11);
+        _bounds = new RankBounds(_sketch.Quantiles, SummaryOptions.DefaultConfidence);
+    }
+
+    /// <summary>Sorted weighted view plus the four Hoeffding bounds; returned as object because the type is internal.</summary>
+    [Benchmark]
+    public object RankBoundsWithView() => new RankBounds(_sketch.Quantiles, SummaryOptions.DefaultConfidence);
+
+    [Benchmark]
+    public KllSortedView SortedViewOnly() => _sketch.Quantiles.CreateView();
+
+    [Benchmark]
+    public QuantileEstimate[] SevenQuantilesFromBounds() =>
+        SummaryOptions.DefaultQuantiles.Select(_bounds.Estimate).ToArray();
+
+    [Benchmark]
+    public (double Mad, double Low, double High) MadWithInterval() =>
+        MedianAbsoluteDeviation.Estimate(_bounds, _sketch.Quantiles.IsExact);
+
+    [Benchmark]
+    public ModeEstimate[] Modes() => _sketch.Modes.Modes(SummaryOptions.DefaultMaxModes);
+
+    [Benchmark]
+    public int ModeCandidateCount() => _sketch.Modes.ModeCandidateCount();
+
+    /// <summary>Critical value of the mean's interval, which the summary computes every time.</summary>
+    [Benchmark]
+    public double StudentTCriticalValue() =>
+        StudentT.InvCDF(0, 1, _sketch.Count - 1, 1 - ((1 - SummaryOptions.DefaultConfidence) / 2));
+}

@@ -1,0 +1,33 @@
+using BenchmarkDotNet.Attributes;
+using SummaryService.Benchmarks.Workloads;
+using SummaryService.Sketches;
+
+namespace SummaryService.Benchmarks.Updates;
+
+/// <summary>
+/// Amortized cost per value of <see cref="SeriesSketch.Add(double)"/>, one call per value, over the
+/// same 1e6-value fill as <see cref="CompositeSpanUpdateBenchmarks"/> so the two compare directly.
+/// </summary>
+[MemoryDiagnoser]
+public class CompositeSingleValueUpdateBenchmarks
+{
+    private double[] _values = [];
+
+    [Params(Distribution.LogNormalLatency, Distribution.StatusCodes)]
+    public Distribution Distribution { get; set; }
+
+    [GlobalSetup]
+    public void Setup() => _values = SampleData.Generate(Distribution, SampleData.FullSketchValues, seed: 42);
+
+    [Benchmark(OperationsPerInvoke = SampleData.FullSketchValues)]
+    public SeriesSketch AddOneAtATime()
+    {
+        var sketch = new SeriesSketch(seed: 7);
+        foreach (double value in _values)
+        {
+            sketch.Add(value);
+        }
+
+        return sketch;
+    }
+}
