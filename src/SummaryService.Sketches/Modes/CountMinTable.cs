@@ -44,23 +44,19 @@ internal sealed class CountMinTable
     /// <summary>Adds <paramref name="count"/> occurrences of a key and returns its new estimate.</summary>
     public long Add(long key, long count)
     {
-        ulong hash = ModeKey.Hash(key);
         Span<int> cells = stackalloc int[Depth];
+        FillCells(ModeKey.Hash(key), cells);
         long estimate = long.MaxValue;
-        for (int row = 0; row < Depth; row++)
+        foreach (int cell in cells)
         {
-            int cell = Cell(hash, row);
-            cells[row] = cell;
             estimate = Math.Min(estimate, _counters[cell]);
         }
 
         long raised = estimate + count;
         foreach (int cell in cells)
         {
-            if (_counters[cell] < raised)
-            {
-                _counters[cell] = raised;
-            }
+            // Branch-free raise: the comparison is unpredictable, the max is not.
+            _counters[cell] = Math.Max(_counters[cell], raised);
         }
 
         return raised;
@@ -68,11 +64,12 @@ internal sealed class CountMinTable
 
     public long Estimate(long key)
     {
-        ulong hash = ModeKey.Hash(key);
+        Span<int> cells = stackalloc int[Depth];
+        FillCells(ModeKey.Hash(key), cells);
         long estimate = long.MaxValue;
-        for (int row = 0; row < Depth; row++)
+        foreach (int cell in cells)
         {
-            estimate = Math.Min(estimate, _counters[Cell(hash, row)]);
+            estimate = Math.Min(estimate, _counters[cell]);
         }
 
         return estimate;
@@ -90,11 +87,19 @@ internal sealed class CountMinTable
 
     public CountMinTable Clone() => new(Width, Depth, (long[])_counters.Clone());
 
-    private int Cell(ulong hash, int row)
+    // Row r takes 32 bits of word r/2: the hash itself, then SplitMix64 steps from it, each mixed once.
+    private void FillCells(ulong hash, Span<int> cells)
     {
-        int pair = row >> 1;
-        ulong word = pair == 0 ? hash : SplitMix64.Mix(hash + ((ulong)pair * 0x9E3779B97F4A7C15UL));
-        uint bits = (row & 1) == 0 ? (uint)word : (uint)(word >> 32);
-        return (row * Width) + (int)(((ulong)bits * (ulong)Width) >> 32);
+        ulong word = hash;
+        for (int row = 0; row < cells.Length; row++)
+        {
+            if (row > 1 && (row & 1) == 0)
+            {
+                word = SplitMix64.Mix(hash + ((ulong)(row >> 1) * 0x9E3779B97F4A7C15UL));
+            }
+
+            uint bits = (row & 1) == 0 ? (uint)word : (uint)(word >> 32);
+            cells[row] = (row * Width) + (int)(((ulong)bits * (ulong)Width) >> 32);
+        }
     }
 }

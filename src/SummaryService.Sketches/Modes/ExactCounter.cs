@@ -9,7 +9,7 @@ internal sealed class ExactCounter
     private long[] _keys;
     private long[] _counts;
 
-    public ExactCounter(int initialSlots = 8)
+    public ExactCounter(int initialSlots = 16)
     {
         _keys = new long[initialSlots];
         _counts = new long[initialSlots];

@@ -150,8 +150,9 @@ public sealed class ModeSketch
 
         _table!.AddTable(other._table!);
         Count += other.Count;
-        var keys = new HashSet<long>(CandidateKeys().ToArray());
-        keys.UnionWith(other.CandidateKeys().ToArray());
+        var keys = new long[_candidateCount + other._candidateCount];
+        CandidateKeys().CopyTo(keys);
+        other.CandidateKeys().CopyTo(keys.AsSpan(_candidateCount));
         RebuildCandidates(keys);
     }
 
@@ -159,17 +160,23 @@ public sealed class ModeSketch
     /// Every value that could be the most frequent, most frequent first: each reported value's
     /// count interval reaches the highest lower bound among all candidates. Exact ties are all listed.
     /// </summary>
-    public ModeEstimate[] Modes(int maxModes)
+    public ModeEstimate[] Modes(int maxModes) => Modes(maxModes, out _);
+
+    /// <summary>As <see cref="Modes(int)"/>, also giving how many values could be the mode before the limit.</summary>
+    public ModeEstimate[] Modes(int maxModes, out int possibleModes)
     {
         ArgumentOutOfRangeException.ThrowIfLessThan(maxModes, 0);
         var all = Estimates();
-        if (all.Count == 0 || maxModes == 0)
+        if (all.Count == 0)
         {
+            possibleModes = 0;
             return [];
         }
 
         long floor = all.Max(e => e.CountLow);
-        return all.Where(e => e.CountHigh >= floor)
+        var possible = all.Where(e => e.CountHigh >= floor).ToList();
+        possibleModes = possible.Count;
+        return possible
             .OrderByDescending(e => e.Count)
             .ThenBy(e => e.Value)
             .Take(maxModes)
@@ -179,14 +186,8 @@ public sealed class ModeSketch
     /// <summary>Number of values that could be the mode, before any limit is applied.</summary>
     public int ModeCandidateCount()
     {
-        var all = Estimates();
-        if (all.Count == 0)
-        {
-            return 0;
-        }
-
-        long floor = all.Max(e => e.CountLow);
-        return all.Count(e => e.CountHigh >= floor);
+        Modes(0, out int possible);
+        return possible;
     }
 
     /// <summary>Estimated count of one value's key with its interval.</summary>
@@ -374,21 +375,40 @@ public sealed class ModeSketch
             _table.Add(key, count);
         }
 
-        RebuildCandidates(entries.Select(e => e.Key));
+        RebuildCandidates(entries.Select(e => e.Key).ToArray());
     }
 
     // Candidates are re-estimated against the table and the strongest kept; ties go to the smaller key
-    // so that the outcome does not depend on set iteration order.
-    private void RebuildCandidates(IEnumerable<long> keys)
+    // so that the outcome does not depend on the order the keys arrive in. Duplicates collapse.
+    private void RebuildCandidates(long[] keys)
     {
-        var ranked = keys.Select(k => (Key: k, Count: _table!.Estimate(k)))
-            .OrderByDescending(e => e.Count)
-            .ThenBy(e => e.Key)
-            .Take(CandidateLimit)
-            .ToArray();
-        _candidateKeys = ranked.Select(e => e.Key).ToArray();
-        _candidateCounts = ranked.Select(e => e.Count).ToArray();
-        _candidateCount = ranked.Length;
+        Array.Sort(keys);
+        int distinct = 0;
+        for (int i = 0; i < keys.Length; i++)
+        {
+            if (i == 0 || keys[i] != keys[i - 1])
+            {
+                keys[distinct++] = keys[i];
+            }
+        }
+
+        var ranked = new (long Count, long Key)[distinct];
+        for (int i = 0; i < distinct; i++)
+        {
+            ranked[i] = (-_table!.Estimate(keys[i]), keys[i]);
+        }
+
+        Array.Sort(ranked);
+        int kept = Math.Min(CandidateLimit, distinct);
+        _candidateKeys = new long[kept];
+        _candidateCounts = new long[kept];
+        for (int i = 0; i < kept; i++)
+        {
+            _candidateKeys[i] = ranked[i].Key;
+            _candidateCounts[i] = -ranked[i].Count;
+        }
+
+        _candidateCount = kept;
         RefreshFloor();
     }
 

@@ -252,6 +252,8 @@ public sealed class KllSketch
         {
             Compress();
         }
+
+        TrimLevels();
     }
 
     /// <summary>Creates an independent copy, including the state of its random source.</summary>
@@ -433,6 +435,22 @@ public sealed class KllSketch
 
         _levelCount++;
         _capacity = TotalCapacity(K, _levelCount);
+        TrimLevels();
+    }
+
+    // Buffers keep their high-water size: a young sketch's level 0 holds up to k items and a merge
+    // target briefly holds two sketches' worth. Shrinking whatever is over twice what its level can
+    // need keeps a long-lived sketch near its ~3k items; it runs only on level changes and merges.
+    private void TrimLevels()
+    {
+        for (int h = 0; h < _levelCount; h++)
+        {
+            int need = Math.Max(_sizes[h], LevelCapacity(K, h, _levelCount));
+            if (_levels[h].Length > 2 * need)
+            {
+                Array.Resize(ref _levels[h], need);
+            }
+        }
     }
 
     private void EnsureRoom(int level, int extra)

@@ -291,9 +291,16 @@ public static class SketchCodec
             long rowSum = 0;
             for (int col = 0; col < empty.Width; col++)
             {
+                // Conditions first; messages are formatted only for the cell at fault.
                 int cell = (row * empty.Width) + col;
-                counters[cell] = CheckedCount(state.Counters[cell], $"modes.counters[{cell}]");
-                rowSum = CheckedSum(rowSum, counters[cell], $"modes.counters row {row}");
+                ulong raw = state.Counters[cell];
+                if (raw > long.MaxValue || rowSum > long.MaxValue - (long)raw)
+                {
+                    Fail($"modes.counters[{cell}] is {raw}; the counters of row {row} add up to more than a count can hold.");
+                }
+
+                counters[cell] = (long)raw;
+                rowSum += (long)raw;
             }
 
             Check(rowSum <= count, $"modes.counters row {row} adds up to {rowSum}, more than modes.count {count}.");
@@ -320,8 +327,15 @@ public static class SketchCodec
     private static void CheckKey(long key, string field)
     {
         double value = ModeKey.ValueOf(key);
-        Check(double.IsFinite(value), $"{field} is the bits of {value}; keys must be finite values.");
-        Check(key != long.MinValue, $"{field} is the bits of -0; zero is keyed as +0.");
+        if (!double.IsFinite(value))
+        {
+            Fail($"{field} is the bits of {value}; keys must be finite values.");
+        }
+
+        if (key == long.MinValue)
+        {
+            Fail($"{field} is the bits of -0; zero is keyed as +0.");
+        }
     }
 
     private static long CheckedCount(ulong value, string field)

@@ -48,8 +48,10 @@ internal static class MedianAbsoluteDeviation
         double LowerEnd(double j) => LargestWhere(a => UpperCountCloserThan(a) < j, span);
         double UpperEnd(double j) => SmallestWhere(a => LowerCountWithin(a) >= j, span);
 
-        double low = LowerEnd(j0) + (f * (LowerEnd(j1) - LowerEnd(j0)));
-        double high = UpperEnd(j0) + (f * (UpperEnd(j1) - UpperEnd(j0)));
+        double low0 = LowerEnd(j0);
+        double high0 = UpperEnd(j0);
+        double low = f == 0 ? low0 : low0 + (f * (LowerEnd(j1) - low0));
+        double high = f == 0 ? high0 : high0 + (f * (UpperEnd(j1) - high0));
         return (mad, Math.Min(low, mad), Math.Max(high, mad));
     }
 

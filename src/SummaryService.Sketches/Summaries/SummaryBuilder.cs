@@ -23,7 +23,7 @@ internal static class SummaryBuilder
         var upperQuartile = bounds.Estimate(0.75);
         double iqr = upperQuartile.Value - lowerQuartile.Value;
         var (mad, madLow, madHigh) = MedianAbsoluteDeviation.Estimate(bounds, quantiles.IsExact);
-        var modeList = modes.Modes(options.MaxModes);
+        var modeList = modes.Modes(options.MaxModes, out int possibleModes);
 
         return MomentFigures(moments, options.Confidence) with
         {
@@ -38,7 +38,7 @@ internal static class SummaryBuilder
             QuartileSkewness = iqr > 0 ? (upperQuartile.Value + lowerQuartile.Value - (2 * median.Value)) / iqr : null,
             Ranks = options.RankOf.Select(bounds.ShareAtOrBelow).ToArray(),
             Modes = modeList,
-            ModesOmitted = modes.ModeCandidateCount() - modeList.Length,
+            ModesOmitted = possibleModes - modeList.Length,
             Histogram = options.Histogram is { } spec ? bounds.Histogram(HistogramEdges(spec, moments.Min, moments.Max)) : null,
             Exact = quantiles.IsExact && modes.IsExact,
             RankError = bounds.Epsilon,

@@ -1,0 +1,46 @@
+using Grpc.Core;
+using SummaryService.Contract.V1;
+using SummaryService.Server.Tests.Support;
+
+namespace SummaryService.Server.Tests.InProcess;
+
+public sealed class AdminTests
+{
+    [Fact]
+    public async Task Catalogue_deletion_snapshot_and_figures()
+    {
+        await using var server = new TestServer();
+        await server.Ingest.PushAsync(Requests.Batch("shop.a", [1, 2, 3], ("host", "x")));
+        await server.Ingest.PushAsync(Requests.Batch("shop.b", [4]));
+
+        var all = await server.Admin.ListSeriesAsync(new ListSeriesRequest());
+        Assert.Equal(["shop.a", "shop.b"], all.Series.Select(s => s.Metric));
+        Assert.Equal(3ul, all.Series[0].Count);
+        Assert.Equal("x", all.Series[0].Labels["host"]);
+        Assert.Single((await server.Admin.ListSeriesAsync(new ListSeriesRequest { Metric = "shop.b" })).Series);
+
+        var stats = await server.Admin.GetStatsAsync(new GetStatsRequest());
+        Assert.Equal(2u, stats.Series);
+        Assert.Equal(2ul, stats.Buckets);
+        Assert.Equal("Wal", stats.Durability);
+        Assert.Equal(3, stats.Tiers.Count);
+
+        var snapshot = await server.Admin.TakeSnapshotAsync(new TakeSnapshotRequest());
+        Assert.Equal(2u, snapshot.Series);
+        Assert.True(snapshot.Bytes > 0);
+
+        var deleted = await server.Admin.DeleteSeriesAsync(new DeleteSeriesRequest { Metric = "shop.a", Labels = { ["host"] = "x" } });
+        Assert.Equal(3ul, deleted.Count);
+        var again = await Assert.ThrowsAsync<RpcException>(async () => await server.Admin.DeleteSeriesAsync(new DeleteSeriesRequest { Metric = "shop.a", Labels = { ["host"] = "x" } }));
+        Assert.Equal(StatusCode.NotFound, again.StatusCode);
+        Assert.Equal(["shop.b"], (await server.Admin.ListSeriesAsync(new ListSeriesRequest())).Series.Select(s => s.Metric));
+    }
+
+    [Fact]
+    public async Task Snapshots_are_a_failed_precondition_without_durability()
+    {
+        await using var server = new TestServer(new Dictionary<string, string?> { ["Persistence:Durability"] = "None" });
+        var ex = await Assert.ThrowsAsync<RpcException>(async () => await server.Admin.TakeSnapshotAsync(new TakeSnapshotRequest()));
+        Assert.Equal(StatusCode.FailedPrecondition, ex.StatusCode);
+    }
+}

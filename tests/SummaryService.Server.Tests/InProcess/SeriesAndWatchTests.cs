@@ -1,0 +1,83 @@
+using Google.Protobuf.WellKnownTypes;
+using Grpc.Core;
+using MathNet.Numerics.Statistics;
+using SummaryService.Contract.V1;
+using SummaryService.Server.Tests.Support;
+
+namespace SummaryService.Server.Tests.InProcess;
+
+public sealed class SeriesAndWatchTests
+{
+    [Fact]
+    public async Task Series_gives_one_summary_per_step_with_that_steps_values()
+    {
+        await using var server = new TestServer();
+        long now = DateTimeOffset.UtcNow.ToUnixTimeMilliseconds();
+        long start = now - (now % 60_000) - (5 * 60_000);
+        double[] values = Requests.Latencies(300, 41);
+        long[] times = values.Select((_, i) => start + (i * 1_000L)).ToArray();
+        var batch = Requests.Batch("shop.plot", values);
+        batch.ValueTimesUnixMs.AddRange(times);
+        await server.Ingest.PushAsync(batch);
+
+        var reply = await server.Query.SeriesAsync(new SeriesRequest { Selector = Requests.Selector("shop.plot"), Window = Requests.Range(start, start + (5 * 60_000)), Step = Duration.FromTimeSpan(TimeSpan.FromMinutes(1)) });
+        Assert.Equal(5, reply.Points.Count);
+        for (int p = 0; p < 5; p++)
+        {
+            var point = reply.Points[p];
+            double[] inside = values.Where((_, i) => times[i] >= point.Step.FromUnixMs && times[i] < point.Step.ToUnixMs).ToArray();
+            Assert.Equal(60, inside.Length);
+            var summary = Assert.Single(point.Groups).Summary;
+            Assert.Equal(inside.Mean(), summary.Mean, 1e-9); // MathNet.Numerics
+            Assert.Equal(point.Step, point.Covered);
+        }
+    }
+
+    [Fact]
+    public async Task Watch_pushes_the_trailing_window_every_interval_until_it_stops()
+    {
+        await using var server = new TestServer();
+        await server.Ingest.PushAsync(Requests.Batch("shop.live", [1, 2, 3]));
+        var request = new WatchRequest
+        {
+            Query = new SummarizeRequest { Selector = Requests.Selector("shop.live"), Window = Requests.Last(TimeSpan.FromMinutes(5)) },
+            Interval = Duration.FromTimeSpan(TimeSpan.FromMilliseconds(150)),
+            MaxUpdates = 3,
+        };
+        using var call = server.Query.Watch(request);
+        var counts = new List<ulong>();
+        await foreach (var reply in call.ResponseStream.ReadAllAsync())
+        {
+            counts.Add(Assert.Single(reply.Groups).Summary.Count);
+            if (counts.Count == 1)
+            {
+                await server.Ingest.PushAsync(Requests.Batch("shop.live", [4, 5]));
+            }
+        }
+
+        Assert.Equal([3ul, 5ul, 5ul], counts);
+    }
+
+    [Fact]
+    public async Task Watch_ends_when_the_caller_cancels()
+    {
+        await using var server = new TestServer();
+        await server.Ingest.PushAsync(Requests.Batch("shop.live", [1]));
+        using var cancel = new CancellationTokenSource();
+        var request = new WatchRequest { Query = new SummarizeRequest { Selector = Requests.Selector("shop.live"), Window = Requests.Last(TimeSpan.FromMinutes(5)) }, Interval = Duration.FromTimeSpan(TimeSpan.FromMilliseconds(100)) };
+        using var call = server.Query.Watch(request, cancellationToken: cancel.Token);
+        int seen = 0;
+        var ex = await Assert.ThrowsAsync<RpcException>(async () =>
+        {
+            await foreach (var reply in call.ResponseStream.ReadAllAsync(cancel.Token))
+            {
+                if (++seen == 2)
+                {
+                    await cancel.CancelAsync();
+                }
+            }
+        });
+        Assert.Equal(StatusCode.Cancelled, ex.StatusCode);
+        Assert.Equal(2, seen);
+    }
+}
