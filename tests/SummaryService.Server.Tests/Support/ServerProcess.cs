@@ -1,0 +1,183 @@
+using System.Diagnostics;
+using System.Net;
+using System.Net.Sockets;
+using System.Text;
+using Grpc.Health.V1;
+using Grpc.Net.Client;
+
+namespace SummaryService.Server.Tests.Support;
+
+/// <summary>
+/// The real server as a child process on a free loopback port, configured through environment
+/// variables like an operator would. Stopped gracefully (SIGTERM) so the final snapshot runs.
+/// </summary>
+internal sealed class ServerProcess : IAsyncDisposable
+{
+    private readonly Process _process;
+    private readonly StringBuilder _output = new();
+
+    private ServerProcess(Process process, Uri address)
+    {
+        _process = process;
+        Address = address;
+        process.OutputDataReceived += (_, e) => Append(e.Data);
+        process.ErrorDataReceived += (_, e) => Append(e.Data);
+        process.BeginOutputReadLine();
+        process.BeginErrorReadLine();
+    }
+
+    public Uri Address { get; }
+
+    public string Output
+    {
+        get
+        {
+            lock (_output)
+            {
+                return _output.ToString();
+            }
+        }
+    }
+
+    public bool HasExited => _process.HasExited;
+
+    public int ExitCode => _process.ExitCode;
+
+    /// <summary>The server's build output, next to this test assembly's in the same configuration.</summary>
+    public static string ServerDll
+    {
+        get
+        {
+            string testDir = AppContext.BaseDirectory;
+            string configuration = new DirectoryInfo(testDir).Parent!.Name;
+            string root = Path.GetFullPath(Path.Combine(testDir, "..", "..", "..", "..", ".."));
+            return Path.Combine(root, "src", "SummaryService.Server", "bin", configuration, "net10.0", "SummaryService.Server.dll");
+        }
+    }
+
+    public static int FreePort()
+    {
+        using var listener = new TcpListener(IPAddress.Loopback, 0);
+        listener.Start();
+        return ((IPEndPoint)listener.LocalEndpoint).Port;
+    }
+
+    /// <summary>Starts the server; with <paramref name="waitForHealth"/> returns once its health service answers.</summary>
+    public static async Task<ServerProcess> StartAsync(IReadOnlyDictionary<string, string> environment, string scheme = "http", bool waitForHealth = true, Func<GrpcChannel>? channel = null, int? port = null)
+    {
+        int chosen = port ?? FreePort();
+        var address = new Uri($"{scheme}://127.0.0.1:{chosen}");
+        var info = new ProcessStartInfo("dotnet")
+        {
+            WorkingDirectory = Path.GetDirectoryName(ServerDll)!,
+            RedirectStandardOutput = true,
+            RedirectStandardError = true,
+            UseShellExecute = false,
+        };
+        info.ArgumentList.Add(ServerDll);
+        if (scheme == "http")
+        {
+            info.ArgumentList.Add("--urls");
+            info.ArgumentList.Add(address.ToString().TrimEnd('/'));
+        }
+
+        info.Environment["DOTNET_ENVIRONMENT"] = "Production";
+        info.Environment["Logging__LogLevel__Default"] = "Information";
+        info.Environment.Remove("OTEL_EXPORTER_OTLP_ENDPOINT");
+        foreach (var (key, value) in environment)
+        {
+            info.Environment[key] = value.Replace("{port}", chosen.ToString(System.Globalization.CultureInfo.InvariantCulture), StringComparison.Ordinal);
+        }
+
+        var server = new ServerProcess(Process.Start(info)!, address);
+        if (waitForHealth)
+        {
+            await server.WaitHealthyAsync(channel ?? (() => GrpcChannel.ForAddress(address)));
+        }
+
+        return server;
+    }
+
+    /// <summary>Waits for the process to exit by itself, at most the given time.</summary>
+    public async Task<bool> WaitForExitAsync(TimeSpan limit)
+    {
+        using var timeout = new CancellationTokenSource(limit);
+        try
+        {
+            await _process.WaitForExitAsync(timeout.Token);
+            return true;
+        }
+        catch (OperationCanceledException)
+        {
+            return false;
+        }
+    }
+
+    /// <summary>SIGTERM, then waits for the graceful shutdown (final snapshot) to finish.</summary>
+    public async Task StopAsync()
+    {
+        if (_process.HasExited)
+        {
+            return;
+        }
+
+        using (var kill = Process.Start("kill", ["-TERM", _process.Id.ToString(System.Globalization.CultureInfo.InvariantCulture)]))
+        {
+            await kill.WaitForExitAsync();
+        }
+
+        if (!await WaitForExitAsync(TimeSpan.FromSeconds(20)))
+        {
+            _process.Kill(entireProcessTree: true);
+        }
+    }
+
+    public async ValueTask DisposeAsync()
+    {
+        await StopAsync();
+        _process.Dispose();
+    }
+
+    private async Task WaitHealthyAsync(Func<GrpcChannel> channelFactory)
+    {
+        using GrpcChannel channel = channelFactory();
+        var health = new Health.HealthClient(channel);
+        for (int attempt = 0; attempt < 150; attempt++)
+        {
+            if (_process.HasExited)
+            {
+                throw new InvalidOperationException($"The server exited with {_process.ExitCode}:\n{Output}");
+            }
+
+            try
+            {
+                var reply = await health.CheckAsync(new HealthCheckRequest(), deadline: DateTime.UtcNow.AddSeconds(2));
+                if (reply.Status == HealthCheckResponse.Types.ServingStatus.Serving)
+                {
+                    return;
+                }
+            }
+            catch (Grpc.Core.RpcException)
+            {
+                // Not listening yet.
+            }
+
+            await Task.Delay(100);
+        }
+
+        throw new TimeoutException($"The server did not become healthy within 15 s:\n{Output}");
+    }
+
+    private void Append(string? line)
+    {
+        if (line is null)
+        {
+            return;
+        }
+
+        lock (_output)
+        {
+            _output.AppendLine(line);
+        }
+    }
+}
