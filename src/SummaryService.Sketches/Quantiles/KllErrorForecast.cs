@@ -42,7 +42,7 @@ public static class KllErrorForecast
         long remaining = values;
         while (remaining > 0)
         {
-            if (retained >= capacity)
+            if (retained >= capacity || sizes[0] >= KllSketch.Level0Limit(k, levelCount))
             {
                 // Same policy as KllSketch.Compress: the lowest level at capacity, a new level on top first.
                 int h = 0;
@@ -64,7 +64,7 @@ public static class KllErrorForecast
                 retained -= half;
             }
 
-            long take = Math.Min(capacity - retained, remaining);
+            long take = Math.Min(Math.Min(capacity - retained, KllSketch.Level0Limit(k, levelCount) - sizes[0]), remaining);
             sizes[0] += take;
             retained += take;
             remaining -= take;
