@@ -126,7 +126,7 @@ public static class StoreBench
     {
         string dir = Path.Combine(Path.GetTempPath(), "summaryservice-bench", Guid.NewGuid().ToString("N"));
         var clock = new FakeTimeProvider(DateTimeOffset.FromUnixTimeMilliseconds(1_800_000_000_000));
-        var store = PersistentSeriesStore.Open(new StoreOptions { MaxSeries = 1_000_000, MaxSeriesPerTenant = 1_000_000 }, new PersistenceOptions { DataDirectory = dir, Durability = DurabilityMode.Snapshot }, clock, NullLogger.Instance);
+        var store = PersistentSeriesStore.Open(new StoreOptions { MaxSeries = 1_000_000, MaxSeriesPerTenant = 1_000_000, MemoryBudgetBytes = 16L << 30 }, new PersistenceOptions { DataDirectory = dir, Durability = DurabilityMode.Snapshot }, clock, NullLogger.Instance);
         long now = clock.GetUtcNow().ToUnixTimeMilliseconds();
         double[] five = [12, 15, 9, 30, 11];
         for (int s = 0; s < seriesCount; s++)
