@@ -14,7 +14,7 @@ namespace SummaryService.Server.Hosting;
 /// <summary>Everything the host needs, in one place, so Program stays a few lines.</summary>
 public static class ServiceRegistration
 {
-    /// <summary>Settings, store, background work, gRPC with its interceptors, health, reflection and telemetry.</summary>
+    /// <summary>Settings, store, background work, gRPC (and its JSON routes) with its interceptors, health, reflection and telemetry.</summary>
     public static WebApplicationBuilder AddSummaryService(this WebApplicationBuilder builder)
     {
         ArgumentNullException.ThrowIfNull(builder);
@@ -40,7 +40,7 @@ public static class ServiceRegistration
             options.MaxSendMessageSize = maxMessage;
             options.Interceptors.Add<ApiKeyInterceptor>();
             options.Interceptors.Add<ErrorMappingInterceptor>();
-        });
+        }).AddJsonTranscoding(); // the google.api.http routes of the contract: JSON over HTTP/1.1 through the same interceptors
         services.AddGrpcReflection();
         services.AddGrpcHealthChecks().AddCheck<StoreHealthCheck>("store");
 

@@ -16,10 +16,11 @@ internal sealed class ServerProcess : IAsyncDisposable
     private readonly Process _process;
     private readonly StringBuilder _output = new();
 
-    private ServerProcess(Process process, Uri address)
+    private ServerProcess(Process process, Uri address, Uri httpAddress)
     {
         _process = process;
         Address = address;
+        HttpAddress = httpAddress;
         process.OutputDataReceived += (_, e) => Append(e.Data);
         process.ErrorDataReceived += (_, e) => Append(e.Data);
         process.BeginOutputReadLine();
@@ -27,6 +28,9 @@ internal sealed class ServerProcess : IAsyncDisposable
     }
 
     public Uri Address { get; }
+
+    /// <summary>The HTTP/1.1 endpoint: JSON routes and the page.</summary>
+    public Uri HttpAddress { get; }
 
     public string Output
     {
@@ -75,11 +79,13 @@ internal sealed class ServerProcess : IAsyncDisposable
             UseShellExecute = false,
         };
         info.ArgumentList.Add(ServerDll);
-        if (scheme == "http")
-        {
-            info.ArgumentList.Add("--urls");
-            info.ArgumentList.Add(address.ToString().TrimEnd('/'));
-        }
+
+        // Both configured endpoints move to free ports; with TLS the test's own Secure endpoint is
+        // the one under test and the cleartext gRPC endpoint just must not collide with anything.
+        int grpcPort = scheme == "http" ? chosen : FreePort();
+        var httpAddress = new Uri($"http://127.0.0.1:{FreePort()}");
+        info.Environment["Kestrel__Endpoints__Grpc__Url"] = $"http://127.0.0.1:{grpcPort}";
+        info.Environment["Kestrel__Endpoints__Http__Url"] = httpAddress.ToString().TrimEnd('/');
 
         info.Environment["DOTNET_ENVIRONMENT"] = "Production";
         info.Environment["Logging__LogLevel__Default"] = "Information";
@@ -89,7 +95,7 @@ internal sealed class ServerProcess : IAsyncDisposable
             info.Environment[key] = value.Replace("{port}", chosen.ToString(System.Globalization.CultureInfo.InvariantCulture), StringComparison.Ordinal);
         }
 
-        var server = new ServerProcess(Process.Start(info)!, address);
+        var server = new ServerProcess(Process.Start(info)!, address, httpAddress);
         if (waitForHealth)
         {
             await server.WaitHealthyAsync(channel ?? (() => GrpcChannel.ForAddress(address)));

@@ -44,6 +44,9 @@ internal sealed class TestServer : IAsyncDisposable
 
     public Admin.AdminClient Admin => new(Channel);
 
+    /// <summary>A plain HTTP/1.1 client for the JSON routes and the page.</summary>
+    public HttpClient CreateHttpClient() => _factory.CreateClient();
+
     /// <summary>Headers carrying an API key.</summary>
     public static Metadata Bearer(string key) => new() { { "authorization", $"Bearer {key}" } };
 
