@@ -9,13 +9,25 @@ namespace SummaryService.Store;
 /// </summary>
 internal sealed class SeriesTimeline(SeriesKey key, StoreOptions options)
 {
+    /// <summary>
+    /// Buckets per cached block, by level. Window answers merge the largest whole blocks that fit,
+    /// so an hour of 10 s buckets takes a few dozen merges instead of 360.
+    /// </summary>
+    internal static readonly int[] BlockFactors = [6, 60, 600];
+
     private readonly SortedList<long, SeriesSketch>[] _tiers = CreateTiers(options.Tiers.Count);
+    private readonly Dictionary<BlockKey, SeriesSketch> _blocks = [];
 
     public SeriesKey Key { get; } = key;
 
     public int BucketCount => _tiers.Sum(t => t.Count);
 
     public IReadOnlyList<SortedList<long, SeriesSketch>> Tiers => _tiers;
+
+    /// <summary>Changes whenever a cached block is dropped; a block built from copies taken at another epoch is not cached.</summary>
+    public long Epoch { get; private set; }
+
+    public int CachedBlocks => _blocks.Count;
 
     /// <summary>Adds values whose timestamps the validator has resolved; returns the change in estimated bytes.</summary>
     public long Add(ReadOnlySpan<double> values, ReadOnlySpan<long> times, long nowMs)
@@ -65,6 +77,7 @@ internal sealed class SeriesTimeline(SeriesKey key, StoreOptions options)
     public long Place(int savedTier, long start, SeriesSketch sketch, long nowMs)
     {
         var (tier, bucketStart) = savedTier >= 0 ? (savedTier, start) : Locate(start, nowMs);
+        Invalidate(tier, bucketStart);
         var buckets = _tiers[tier];
         if (buckets.TryGetValue(bucketStart, out var existing))
         {
@@ -91,10 +104,12 @@ internal sealed class SeriesTimeline(SeriesKey key, StoreOptions options)
                 long bucketStart = tier.Keys[0];
                 SeriesSketch sketch = tier.Values[0];
                 tier.RemoveAt(0);
+                Invalidate(i, bucketStart);
                 change -= sketch.EstimatedBytes;
                 if (i + 1 < _tiers.Length)
                 {
                     long coarse = AlignDown(bucketStart, options.Tiers[i + 1].WidthMs);
+                    Invalidate(i + 1, coarse);
                     var next = _tiers[i + 1];
                     if (next.TryGetValue(coarse, out var target))
                     {
@@ -146,23 +161,111 @@ internal sealed class SeriesTimeline(SeriesKey key, StoreOptions options)
         }
     }
 
-    /// <summary>Copies of every bucket overlapping <paramref name="range"/>.</summary>
-    public void CopyOverlapping(TimeRange range, List<SeriesSketch> into)
+    /// <summary>
+    /// The pieces that together hold exactly the buckets overlapping <paramref name="range"/>: the
+    /// largest blocks lying wholly inside it and wholly in the past (cached, or to be built from
+    /// copies), and copies of the buckets left over. Blocks still open to the present are never
+    /// cached, since ingest would drop them at once.
+    /// </summary>
+    public void PlanParts(TimeRange range, long nowMs, List<QueryPart> into)
     {
         for (int i = 0; i < _tiers.Length; i++)
         {
             var tier = _tiers[i];
+            long width = options.Tiers[i].WidthMs;
             IList<long> starts = tier.Keys;
-            for (int j = FirstEndingAfter(starts, range.FromUnixMs, options.Tiers[i].WidthMs); j < starts.Count && starts[j] < range.ToUnixMs; j++)
+            int j = FirstEndingAfter(starts, range.FromUnixMs, width);
+            while (j < starts.Count && starts[j] < range.ToUnixMs)
             {
-                into.Add(tier.Values[j].Clone());
+                long start = starts[j];
+                BlockKey? block = null;
+                for (int level = BlockFactors.Length - 1; level >= 0 && block is null; level--)
+                {
+                    long blockWidth = width * BlockFactors[level];
+                    long blockStart = AlignDown(start, blockWidth);
+                    long blockEnd = blockStart + blockWidth;
+                    if (blockStart >= range.FromUnixMs && blockEnd <= range.ToUnixMs && blockEnd <= nowMs)
+                    {
+                        block = new BlockKey(i, level, blockStart);
+                    }
+                }
+
+                if (block is not { } key)
+                {
+                    into.Add(QueryPart.Bucket(tier.Values[j].Clone()));
+                    j++;
+                    continue;
+                }
+
+                long end = key.Start + (width * BlockFactors[key.Level]);
+                if (_blocks.TryGetValue(key, out var cached))
+                {
+                    into.Add(QueryPart.Cached(key, cached));
+                    while (j < starts.Count && starts[j] < end)
+                    {
+                        j++;
+                    }
+
+                    continue;
+                }
+
+                var copies = new List<SeriesSketch>();
+                while (j < starts.Count && starts[j] < end)
+                {
+                    copies.Add(tier.Values[j].Clone());
+                    j++;
+                }
+
+                into.Add(QueryPart.ToBuild(key, copies));
             }
         }
     }
 
+    /// <summary>Keeps blocks built outside the lock, unless a block was dropped since their copies were taken.</summary>
+    public void CacheBlocks(IEnumerable<QueryPart> parts, long epochWhenPlanned)
+    {
+        if (Epoch != epochWhenPlanned)
+        {
+            return;
+        }
+
+        foreach (QueryPart part in parts)
+        {
+            if (part.Block is { } key && part.Buckets is not null && part.Ready is not null)
+            {
+                _blocks.TryAdd(key, part.Ready);
+            }
+        }
+    }
+
+    /// <summary>Seed of a block's quantile sketch, from its identity, so a rebuilt block is the same block.</summary>
+    public ulong SeedFor(BlockKey block) =>
+        SeedFor(block.Tier, block.Start) ^ ((ulong)(block.Level + 1) << 48);
+
+    public long CachedBlockBytes => _blocks.Values.Sum(b => b.EstimatedBytes);
+
     public long EstimatedBytes => _tiers.Sum(t => t.Values.Sum(s => s.EstimatedBytes));
 
     public long EstimatedBytesOfTier(int tier) => _tiers[tier].Values.Sum(s => s.EstimatedBytes);
+
+    // A change to a bucket drops every cached block that contains it.
+    private void Invalidate(int tier, long bucketStart)
+    {
+        if (_blocks.Count == 0)
+        {
+            return;
+        }
+
+        long width = options.Tiers[tier].WidthMs;
+        for (int level = 0; level < BlockFactors.Length; level++)
+        {
+            long blockWidth = width * BlockFactors[level];
+            if (_blocks.Remove(new BlockKey(tier, level, AlignDown(bucketStart, blockWidth))))
+            {
+                Epoch++;
+            }
+        }
+    }
 
     internal static long AlignDown(long t, long width) => t - (((t % width) + width) % width);
 
@@ -183,6 +286,7 @@ internal sealed class SeriesTimeline(SeriesKey key, StoreOptions options)
 
     private long AddToBucket(int tier, long bucketStart, ReadOnlySpan<double> values)
     {
+        Invalidate(tier, bucketStart);
         var buckets = _tiers[tier];
         if (!buckets.TryGetValue(bucketStart, out var sketch))
         {

@@ -138,9 +138,10 @@ public sealed partial class ShardedSeriesStore : ISeriesStore
         }
     }
 
-    private SortedDictionary<string, (Dictionary<string, string> Labels, List<(string Series, List<SeriesSketch> Buckets)> Copies)> CopyGroups(Selector selector, IReadOnlyList<string> groupBy, ref TimeRange covered)
+    private SortedDictionary<string, (Dictionary<string, string> Labels, List<SeriesParts> Copies)> CopyGroups(Selector selector, IReadOnlyList<string> groupBy, ref TimeRange covered)
     {
-        var groups = new SortedDictionary<string, (Dictionary<string, string> Labels, List<(string Series, List<SeriesSketch> Buckets)> Copies)>(StringComparer.Ordinal);
+        long now = NowMs();
+        var groups = new SortedDictionary<string, (Dictionary<string, string> Labels, List<SeriesParts> Copies)>(StringComparer.Ordinal);
         foreach (SeriesShard shard in _shards)
         {
             lock (shard.Gate)
@@ -161,9 +162,9 @@ public sealed partial class ShardedSeriesStore : ISeriesStore
                     }
 
                     timeline.WidenToBuckets(ref covered);
-                    var buckets = new List<SeriesSketch>();
-                    timeline.CopyOverlapping(covered, buckets);
-                    group.Copies.Add((key.Canonical, buckets));
+                    var parts = new List<QueryPart>();
+                    timeline.PlanParts(covered, now, parts);
+                    group.Copies.Add(new SeriesParts(key.Canonical, shard, timeline, timeline.Epoch, parts));
                 }
             }
         }
@@ -171,21 +172,32 @@ public sealed partial class ShardedSeriesStore : ISeriesStore
         return groups;
     }
 
-    // Merged in series-key order so that the same data always gives the same bits, whatever order
-    // the shards' dictionaries happen to hold their series in.
-    private GroupSummary MergeGroup(Dictionary<string, string> labels, List<(string Series, List<SeriesSketch> Buckets)> copies, SummaryOptions options)
+    // Merged in series-key order, each series' parts in time order, so that the same data always
+    // gives the same bits whether its blocks were cached or built for this query.
+    private GroupSummary MergeGroup(Dictionary<string, string> labels, List<SeriesParts> copies, SummaryOptions options)
     {
         var merged = new SeriesSketch(_options.Sketch, seed: 0);
-        foreach (var (_, buckets) in copies.OrderBy(c => c.Series, StringComparer.Ordinal))
+        foreach (SeriesParts series in copies.OrderBy(c => c.Series, StringComparer.Ordinal))
         {
-            foreach (SeriesSketch bucket in buckets)
+            foreach (QueryPart part in series.Parts)
             {
-                merged.Merge(bucket);
+                merged.Merge(part.Resolve(_options.Sketch, part.Block is { } block ? series.Timeline.SeedFor(block) : 0));
+            }
+
+            if (series.Parts.Any(p => p.Buckets is not null))
+            {
+                lock (series.Shard.Gate)
+                {
+                    series.Timeline.CacheBlocks(series.Parts, series.Epoch);
+                }
             }
         }
 
         return new GroupSummary(labels, merged.Summarize(options), copies.Count, merged);
     }
+
+    /// <summary>What one series contributes to a window answer, and where to cache the blocks built for it.</summary>
+    private sealed record SeriesParts(string Series, SeriesShard Shard, SeriesTimeline Timeline, long Epoch, List<QueryPart> Parts);
 
     /// <inheritdoc/>
     public IReadOnlyList<SeriesInfo> ListSeries(string? metric = null)

@@ -133,6 +133,38 @@ public class WindowQueryTests
         Assert.Equal(before.Quantiles, after.Quantiles);
     }
 
+    [Fact]
+    public void Cached_blocks_give_way_to_late_values_and_rollup()
+    {
+        var fixture = new StoreFixture();
+        long start = fixture.NowMs - 15_000;
+        for (int i = 0; i < 15; i++)
+        {
+            fixture.Append(StoreFixture.Batch("cache.x", [i, i + 0.25, i + 0.5], start + (i * 1000)));
+        }
+
+        var window = (From: start, To: fixture.NowMs);
+        var first = fixture.Query("cache.x", window.From, window.To).Groups[0].Summary;
+        var warm = fixture.Query("cache.x", window.From, window.To).Groups[0].Summary;
+        Assert.Equal(45, first.Count);
+        Assert.Equal(first.Quantiles, warm.Quantiles);
+        Assert.Equal(first.Mean, warm.Mean);
+        Assert.True(fixture.Store.ListSeries().Single().Buckets > 6);
+
+        // A late value inside a cached block must be counted at once.
+        fixture.Append(StoreFixture.Batch("cache.x", [100], start + 6500));
+        var afterLate = fixture.Query("cache.x", window.From, window.To).Groups[0].Summary;
+        Assert.Equal(46, afterLate.Count);
+        Assert.Equal(100, afterLate.Max);
+
+        // Rollup moves the buckets into the next tier; the answer keeps every value.
+        fixture.Clock.Advance(TimeSpan.FromSeconds(40));
+        fixture.Store.Roll();
+        var rolled = fixture.Query("cache.x", window.From - 5000, window.To + 5000).Groups[0].Summary;
+        Assert.Equal(46, rolled.Count);
+        Assert.Equal(afterLate.Mean!.Value, rolled.Mean!.Value, 12);
+    }
+
     // A value survives while the last-tier bucket holding it has not passed the retention horizon.
     private static bool BucketStillKept(long time, long horizon)
     {
