@@ -37,8 +37,9 @@ internal sealed class SeriesTimeline(SeriesKey key, StoreOptions options)
         while (start < values.Length)
         {
             var (tier, bucketStart) = Locate(times[start], nowMs);
+            // Most batches carry one timestamp, so equal neighbours skip the tier lookup.
             int end = start + 1;
-            while (end < values.Length && Locate(times[end], nowMs) == (tier, bucketStart))
+            while (end < values.Length && (times[end] == times[end - 1] || Locate(times[end], nowMs) == (tier, bucketStart)))
             {
                 end++;
             }
@@ -55,8 +56,14 @@ internal sealed class SeriesTimeline(SeriesKey key, StoreOptions options)
     {
         long fresh = 0;
         (int, long) last = (-1, 0);
-        foreach (long t in times)
+        for (int i = 0; i < times.Length; i++)
         {
+            long t = times[i];
+            if (i > 0 && t == times[i - 1])
+            {
+                continue;
+            }
+
             var where = Locate(t, nowMs);
             if (where != last && !_tiers[where.Tier].ContainsKey(where.BucketStart))
             {
