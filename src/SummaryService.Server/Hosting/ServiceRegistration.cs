@@ -56,7 +56,7 @@ public static class ServiceRegistration
         return builder;
     }
 
-    /// <summary>The gRPC services, health and reflection.</summary>
+    /// <summary>The gRPC services (with their JSON routes), health, reflection and the built-in page.</summary>
     public static WebApplication MapSummaryService(this WebApplication app)
     {
         ArgumentNullException.ThrowIfNull(app);
@@ -65,6 +65,7 @@ public static class ServiceRegistration
         app.MapGrpcService<AdminService>();
         app.MapGrpcHealthChecksService();
         app.MapGrpcReflectionService();
+        app.MapSummaryPage();
         return app;
     }
 
