@@ -1,0 +1,110 @@
+// Opens the built-in page in headless Chromium against a server that already holds known data,
+// picks the metric, window and step, and checks what the page drew against the server's own JSON.
+// Input (environment): PAGE_URL, METRIC, EXPECT_POINTS, EXPECT_BARS, SCREENSHOT.
+// Output: one JSON line of what was seen; exit code 0 only when every check held.
+import { mkdtempSync, rmSync } from "node:fs";
+import { tmpdir } from "node:os";
+import { join } from "node:path";
+import { chromium } from "playwright-core";
+
+const env = (name) => {
+  const value = process.env[name];
+  if (!value) throw new Error(`${name} is not set`);
+  return value;
+};
+const pageUrl = new URL(env("PAGE_URL"));
+if (pageUrl.hostname !== "127.0.0.1") throw new Error(`PAGE_URL must be on loopback, not ${pageUrl.hostname}`);
+const metric = env("METRIC");
+const expectPoints = Number(env("EXPECT_POINTS"));
+const expectBars = Number(env("EXPECT_BARS"));
+const screenshot = env("SCREENSHOT");
+
+// Everything here is bounded: a hung browser must fail the run, not stall it.
+const watchdog = setTimeout(() => { console.error("page test took longer than 90 s"); process.exit(3); }, 90_000);
+
+const failures = [];
+const check = (ok, what) => { if (!ok) failures.push(what); };
+
+const profile = mkdtempSync(join(tmpdir(), "summary-page-profile-"));
+let context;
+try {
+  context = await chromium.launchPersistentContext(profile, {
+    executablePath: process.env.CHROMIUM || "/usr/bin/chromium",
+    headless: true,
+    args: ["--headless", "--no-sandbox", "--disable-gpu", "--disable-background-networking", "--disable-component-update", "--disable-sync", "--no-first-run"],
+    viewport: { width: 1100, height: 1000 },
+    timeout: 30_000,
+  });
+  const page = context.pages()[0] ?? (await context.newPage());
+  page.setDefaultTimeout(20_000);
+
+  // The page may only talk to the server it came from.
+  const foreign = [];
+  await page.route("**/*", (route) => {
+    const url = new URL(route.request().url());
+    if (url.host !== pageUrl.host) { foreign.push(url.href); return route.abort(); }
+    return route.continue();
+  });
+  const pageErrors = [];
+  page.on("pageerror", (e) => pageErrors.push(String(e)));
+
+  await page.goto(pageUrl.href);
+  await page.waitForSelector(`#metric option[value="${metric}"]`, { state: "attached" });
+  await page.selectOption("#window", "3600");
+  await page.selectOption("#step", "900");
+  await page.selectOption("#metric", metric);
+  await page.click("#draw");
+  await page.waitForFunction(() => document.body.dataset.state === "drawn" && document.querySelectorAll("rect.bar").length > 0);
+
+  const seen = await page.evaluate(() => {
+    const count = (sel) => document.querySelectorAll(sel).length;
+    const row = (name) => document.querySelector(`#figures tr[data-figure="${name}"]`);
+    return {
+      points: { p50: count('circle.point[data-q="0.5"]'), p90: count('circle.point[data-q="0.9"]'), p99: count('circle.point[data-q="0.99"]') },
+      bands: count("polygon.band"),
+      bars: count("rect.bar"),
+      whiskers: count("line.whisker"),
+      mean: Number(row("mean")?.dataset.value),
+      meanText: row("mean")?.children[1].textContent,
+      meanInterval: row("mean")?.children[2].textContent,
+      count: Number(row("count")?.dataset.value),
+      countExact: row("count")?.querySelector(".exact") !== null,
+      p99: Number(row("p99")?.dataset.value),
+      p99Interval: row("p99")?.children[2].textContent,
+    };
+  });
+
+  // The server's own answer for the same window, asked directly over JSON.
+  const response = await fetch(new URL("/v1/summarize", pageUrl), {
+    method: "POST",
+    headers: { "content-type": "application/json" },
+    body: JSON.stringify({ selector: { metric }, window: { last: "3600s" }, quantiles: [0.99] }),
+  });
+  const server = (await response.json()).groups[0].summary;
+  const p99 = server.quantiles[0];
+
+  for (const [name, n] of Object.entries(seen.points)) check(n === expectPoints, `${name}: ${n} points drawn, expected ${expectPoints}`);
+  check(seen.bands === 3, `${seen.bands} shaded bands, expected 3`);
+  check(seen.bars === expectBars, `${seen.bars} bars, expected ${expectBars}`);
+  check(seen.whiskers === expectBars, `${seen.whiskers} count whiskers, expected ${expectBars}`);
+  check(seen.count === Number(server.count), `count shown ${seen.count}, server ${server.count}`);
+  check(seen.countExact, "count is not marked exact");
+  // The mean comes from exact moments, so the page must show the server's figure to the last bit.
+  check(seen.mean === server.mean, `mean shown ${seen.mean}, server ${server.mean}`);
+  check(/^\[.*\] at \d+%$/.test(seen.meanInterval ?? ""), `mean interval reads "${seen.meanInterval}"`);
+  // Quantiles of a compacted sketch come from random coins, so two answers need only agree within the interval.
+  check(seen.p99 >= p99.low && seen.p99 <= p99.high, `p99 shown ${seen.p99} outside the server's [${p99.low}, ${p99.high}]`);
+  check(foreign.length === 0, `requests left the server: ${foreign.join(", ")}`);
+  check(pageErrors.length === 0, `script errors: ${pageErrors.join("; ")}`);
+
+  await page.screenshot({ path: screenshot, fullPage: true });
+  console.log(JSON.stringify({ seen, server: { count: server.count, mean: server.mean, p99 }, failures }));
+} catch (e) {
+  failures.push(String(e && e.stack ? e.stack : e));
+  console.log(JSON.stringify({ failures }));
+} finally {
+  if (context) await context.close().catch(() => {});
+  rmSync(profile, { recursive: true, force: true });
+  clearTimeout(watchdog);
+}
+process.exit(failures.length === 0 ? 0 : 1);
