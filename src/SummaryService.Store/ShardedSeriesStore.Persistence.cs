@@ -54,12 +54,7 @@ public sealed partial class ShardedSeriesStore
         SeriesShard shard = ShardOf(key);
         lock (shard.Gate)
         {
-            if (!shard.Series.TryGetValue(key, out var timeline))
-            {
-                timeline = new SeriesTimeline(key, _options);
-                shard.Series.Add(key, timeline);
-                ReserveSeries(key, enforceLimits: false);
-            }
+            SeriesTimeline timeline = RecoveredTimeline(shard, key);
 
             long now = NowMs();
             foreach (var (tier, start, sketch) in sketches)
@@ -118,16 +113,24 @@ public sealed partial class ShardedSeriesStore
         SeriesShard shard = ShardOf(key);
         lock (shard.Gate)
         {
-            if (!shard.Series.TryGetValue(key, out var timeline))
-            {
-                timeline = new SeriesTimeline(key, _options);
-                shard.Series.Add(key, timeline);
-                ReserveSeries(key, enforceLimits: false);
-            }
+            SeriesTimeline timeline = RecoveredTimeline(shard, key);
 
             shard.EstimatedBytes += timeline.Add(values.ToArray(), times.ToArray(), now);
             shard.AppliedLsn = Math.Max(shard.AppliedLsn, record.Lsn);
         }
+    }
+
+    /// <summary>The series' timeline, created without limit checks: recovery restores what was once accepted. Call under the shard lock.</summary>
+    private SeriesTimeline RecoveredTimeline(SeriesShard shard, SeriesKey key)
+    {
+        if (!shard.Series.TryGetValue(key, out var timeline))
+        {
+            timeline = new SeriesTimeline(key, _options);
+            shard.Series.Add(key, timeline);
+            ReserveSeries(key, enforceLimits: false);
+        }
+
+        return timeline;
     }
 
     /// <summary>True when a snapshot's tier widths are this store's, so buckets can go back to their tiers.</summary>

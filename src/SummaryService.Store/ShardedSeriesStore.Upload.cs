@@ -89,12 +89,7 @@ public sealed partial class ShardedSeriesStore
         SeriesShard shard = ShardOf(key);
         lock (shard.Gate)
         {
-            if (!shard.Series.TryGetValue(key, out var timeline))
-            {
-                timeline = new SeriesTimeline(key, _options);
-                shard.Series.Add(key, timeline);
-                ReserveSeries(key, enforceLimits: false);
-            }
+            SeriesTimeline timeline = RecoveredTimeline(shard, key);
 
             shard.EstimatedBytes += timeline.Place(-1, t, sketch, now);
             shard.AppliedLsn = Math.Max(shard.AppliedLsn, record.Lsn);
