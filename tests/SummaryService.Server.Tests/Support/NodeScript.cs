@@ -10,9 +10,10 @@ internal static class NodeScript
 
     public static async Task<(int ExitCode, string Output)> RunAsync(string script, IReadOnlyDictionary<string, string> environment, TimeSpan limit)
     {
-        // Missing tools are a failure with a way out, never a silent pass: .ci/run installs them.
-        Assert.True(File.Exists("/usr/bin/chromium"), "chromium is missing: run `apt-get install -y chromium` (.ci/run does).");
-        Assert.True(Directory.Exists(Path.Combine(Folder, "node_modules", "playwright-core")), $"playwright-core is missing: run `npm ci` in {Folder} (.ci/run does).");
+        // Missing tools are a failure with a way out, never a silent pass.
+        await BrowserTools.EnsureAsync();
+        Assert.True(File.Exists("/usr/bin/chromium"), "chromium is missing: run `apt-get install -y chromium` as root (the tests do that themselves when run as root).");
+        Assert.True(Directory.Exists(Path.Combine(Folder, "node_modules", "playwright-core")), $"playwright-core is missing: run `npm ci` in {Folder}.");
 
         var info = new ProcessStartInfo("node") { WorkingDirectory = Folder, RedirectStandardOutput = true, RedirectStandardError = true, UseShellExecute = false };
         info.ArgumentList.Add(script);
