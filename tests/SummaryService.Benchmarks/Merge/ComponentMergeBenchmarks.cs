@@ -11,40 +11,27 @@ namespace SummaryService.Benchmarks.Merge;
 /// cost can be split between them (the moments are a handful of fields and need no breakdown).
 /// </summary>
 [MemoryDiagnoser]
-public class ComponentMergeBenchmarks
+public class ComponentMergeBenchmarks : TwoFullSketches
 {
-    private SeriesSketch _target = null!;
-    private SeriesSketch _source = null!;
-
-    [Params(Distribution.LogNormalLatency, Distribution.StatusCodes)]
-    public Distribution Distribution { get; set; }
-
-    [GlobalSetup]
-    public void Setup()
-    {
-        _target = FullSketch.Build(Distribution, dataSeed: 1, sketchSeed: 11);
-        _source = FullSketch.Build(Distribution, dataSeed: 2, sketchSeed: 12);
-    }
-
     [Benchmark]
-    public KllSketch QuantilesClone() => _target.Quantiles.Clone();
+    public KllSketch QuantilesClone() => Target.Quantiles.Clone();
 
     [Benchmark]
     public KllSketch QuantilesCloneThenMerge()
     {
-        KllSketch merged = _target.Quantiles.Clone();
-        merged.Merge(_source.Quantiles);
+        KllSketch merged = Target.Quantiles.Clone();
+        merged.Merge(Source.Quantiles);
         return merged;
     }
 
     [Benchmark]
-    public ModeSketch ModesClone() => _target.Modes.Clone();
+    public ModeSketch ModesClone() => Target.Modes.Clone();
 
     [Benchmark]
     public ModeSketch ModesCloneThenMerge()
     {
-        ModeSketch merged = _target.Modes.Clone();
-        merged.Merge(_source.Modes);
+        ModeSketch merged = Target.Modes.Clone();
+        merged.Merge(Source.Modes);
         return merged;
     }
 }

@@ -13,29 +13,16 @@ namespace SummaryService.Benchmarks.Merge;
 /// baseline. The two sketches see different data and different compaction coins, as two hosts would.
 /// </remarks>
 [MemoryDiagnoser]
-public class MergeBenchmarks
+public class MergeBenchmarks : TwoFullSketches
 {
-    private SeriesSketch _target = null!;
-    private SeriesSketch _source = null!;
-
-    [Params(Distribution.LogNormalLatency, Distribution.StatusCodes)]
-    public Distribution Distribution { get; set; }
-
-    [GlobalSetup]
-    public void Setup()
-    {
-        _target = FullSketch.Build(Distribution, dataSeed: 1, sketchSeed: 11);
-        _source = FullSketch.Build(Distribution, dataSeed: 2, sketchSeed: 12);
-    }
-
     [Benchmark(Baseline = true)]
-    public SeriesSketch Clone() => _target.Clone();
+    public SeriesSketch Clone() => Target.Clone();
 
     [Benchmark]
     public SeriesSketch CloneThenMerge()
     {
-        SeriesSketch merged = _target.Clone();
-        merged.Merge(_source);
+        SeriesSketch merged = Target.Clone();
+        merged.Merge(Source);
         return merged;
     }
 }

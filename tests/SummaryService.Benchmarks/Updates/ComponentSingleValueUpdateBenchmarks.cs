@@ -11,21 +11,13 @@ namespace SummaryService.Benchmarks.Updates;
 /// <see cref="CompositeSingleValueUpdateBenchmarks"/> can be split into its parts.
 /// </summary>
 [MemoryDiagnoser]
-public class ComponentSingleValueUpdateBenchmarks
+public class ComponentSingleValueUpdateBenchmarks : DistributionFill
 {
-    private double[] _values = [];
-
-    [Params(Distribution.LogNormalLatency, Distribution.StatusCodes)]
-    public Distribution Distribution { get; set; }
-
-    [GlobalSetup]
-    public void Setup() => _values = SampleData.Generate(Distribution, SampleData.FullSketchValues, seed: 42);
-
     [Benchmark(OperationsPerInvoke = SampleData.FullSketchValues)]
     public MomentSketch Moments()
     {
         var sketch = new MomentSketch();
-        foreach (double value in _values)
+        foreach (double value in Values)
         {
             sketch.Add(value);
         }
@@ -37,7 +29,7 @@ public class ComponentSingleValueUpdateBenchmarks
     public KllSketch Quantiles()
     {
         var sketch = new KllSketch(seed: 7);
-        foreach (double value in _values)
+        foreach (double value in Values)
         {
             sketch.Add(value);
         }
@@ -49,7 +41,7 @@ public class ComponentSingleValueUpdateBenchmarks
     public ModeSketch Modes()
     {
         var sketch = new ModeSketch();
-        foreach (double value in _values)
+        foreach (double value in Values)
         {
             sketch.Add(value);
         }

@@ -17,21 +17,13 @@ namespace SummaryService.Benchmarks.Updates;
 /// composite ≈ moments + quantiles + modes − 2 × finite check.
 /// </remarks>
 [MemoryDiagnoser]
-public class ComponentSpanUpdateBenchmarks
+public class ComponentSpanUpdateBenchmarks : DistributionFill
 {
-    private double[] _values = [];
-
-    [Params(Distribution.LogNormalLatency, Distribution.StatusCodes)]
-    public Distribution Distribution { get; set; }
-
-    [GlobalSetup]
-    public void Setup() => _values = SampleData.Generate(Distribution, SampleData.FullSketchValues, seed: 42);
-
     [Benchmark(OperationsPerInvoke = SampleData.FullSketchValues)]
     public MomentSketch Moments()
     {
         var sketch = new MomentSketch();
-        ReadOnlySpan<double> values = _values;
+        ReadOnlySpan<double> values = Values;
         for (int start = 0; start < values.Length; start += SampleData.SpanLength)
         {
             sketch.Add(values.Slice(start, SampleData.SpanLength));
@@ -44,7 +36,7 @@ public class ComponentSpanUpdateBenchmarks
     public KllSketch Quantiles()
     {
         var sketch = new KllSketch(seed: 7);
-        ReadOnlySpan<double> values = _values;
+        ReadOnlySpan<double> values = Values;
         for (int start = 0; start < values.Length; start += SampleData.SpanLength)
         {
             sketch.Add(values.Slice(start, SampleData.SpanLength));
@@ -57,7 +49,7 @@ public class ComponentSpanUpdateBenchmarks
     public ModeSketch Modes()
     {
         var sketch = new ModeSketch();
-        ReadOnlySpan<double> values = _values;
+        ReadOnlySpan<double> values = Values;
         for (int start = 0; start < values.Length; start += SampleData.SpanLength)
         {
             sketch.Add(values.Slice(start, SampleData.SpanLength));
@@ -70,7 +62,7 @@ public class ComponentSpanUpdateBenchmarks
     [Benchmark(OperationsPerInvoke = SampleData.FullSketchValues)]
     public int FiniteCheck()
     {
-        ReadOnlySpan<double> values = _values;
+        ReadOnlySpan<double> values = Values;
         int found = 0;
         for (int start = 0; start < values.Length; start += SampleData.SpanLength)
         {

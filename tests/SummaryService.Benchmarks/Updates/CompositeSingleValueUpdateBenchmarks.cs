@@ -9,21 +9,13 @@ namespace SummaryService.Benchmarks.Updates;
 /// same 1e6-value fill as <see cref="CompositeSpanUpdateBenchmarks"/> so the two compare directly.
 /// </summary>
 [MemoryDiagnoser]
-public class CompositeSingleValueUpdateBenchmarks
+public class CompositeSingleValueUpdateBenchmarks : DistributionFill
 {
-    private double[] _values = [];
-
-    [Params(Distribution.LogNormalLatency, Distribution.StatusCodes)]
-    public Distribution Distribution { get; set; }
-
-    [GlobalSetup]
-    public void Setup() => _values = SampleData.Generate(Distribution, SampleData.FullSketchValues, seed: 42);
-
     [Benchmark(OperationsPerInvoke = SampleData.FullSketchValues)]
     public SeriesSketch AddOneAtATime()
     {
         var sketch = new SeriesSketch(seed: 7);
-        foreach (double value in _values)
+        foreach (double value in Values)
         {
             sketch.Add(value);
         }

@@ -16,21 +16,13 @@ namespace SummaryService.Benchmarks.Updates;
 /// the <c>sizes</c> report gives the per-sketch figure.
 /// </remarks>
 [MemoryDiagnoser]
-public class CompositeSpanUpdateBenchmarks
+public class CompositeSpanUpdateBenchmarks : DistributionFill
 {
-    private double[] _values = [];
-
-    [Params(Distribution.LogNormalLatency, Distribution.StatusCodes)]
-    public Distribution Distribution { get; set; }
-
-    [GlobalSetup]
-    public void Setup() => _values = SampleData.Generate(Distribution, SampleData.FullSketchValues, seed: 42);
-
     [Benchmark(OperationsPerInvoke = SampleData.FullSketchValues)]
     public SeriesSketch AddSpansOf1000()
     {
         var sketch = new SeriesSketch(seed: 7);
-        FullSketch.FeedInSpans(sketch, _values);
+        FullSketch.FeedInSpans(sketch, Values);
         return sketch;
     }
 }
