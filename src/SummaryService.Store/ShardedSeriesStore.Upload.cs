@@ -27,31 +27,10 @@ public sealed partial class ShardedSeriesStore
         Task? durable = null;
         lock (shard.Gate)
         {
-            bool known = shard.Series.TryGetValue(key, out var timeline);
-            timeline ??= new SeriesTimeline(key, _options);
-            if (timeline.NewBucketsFor(times, now) > 0 && TotalEstimatedBytes() + sketch.EstimatedBytes > _options.MemoryBudgetBytes)
+            var timeline = Admit(shard, key, t => t.NewBucketsFor(times, now) > 0 ? sketch.EstimatedBytes : 0, "sketch", upload.Producer, upload.Sequence);
+            if (timeline is null)
             {
-                throw new StoreRejectedException(RejectReason.MemoryLimit, "sketch", $"the store's memory budget of {_options.MemoryBudgetBytes} bytes is spent; no new bucket can be opened for {key}.");
-            }
-
-            if (!known)
-            {
-                ReserveSeries(key, enforceLimits: true);
-            }
-
-            if (!_producers.TryClaim(upload.Producer, upload.Sequence))
-            {
-                if (!known)
-                {
-                    ReleaseSeries(key);
-                }
-
                 return new AppendResult(0, Duplicate: true);
-            }
-
-            if (!known)
-            {
-                shard.Series.Add(key, timeline);
             }
 
             ulong lsn = (ulong)Interlocked.Increment(ref _lastLsn);

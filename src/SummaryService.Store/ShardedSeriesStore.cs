@@ -55,32 +55,10 @@ public sealed partial class ShardedSeriesStore : ISeriesStore
         Task? durable = null;
         lock (shard.Gate)
         {
-            bool known = shard.Series.TryGetValue(key, out var timeline);
-            timeline ??= new SeriesTimeline(key, _options);
-            long freshBuckets = timeline.NewBucketsFor(times, now);
-            if (freshBuckets > 0 && TotalEstimatedBytes() + (freshBuckets * EmptyBucketBytes) > _options.MemoryBudgetBytes)
+            var timeline = Admit(shard, key, t => t.NewBucketsFor(times, now) * EmptyBucketBytes, "values", batch.Producer, batch.Sequence);
+            if (timeline is null)
             {
-                throw new StoreRejectedException(RejectReason.MemoryLimit, "values", $"the store's memory budget of {_options.MemoryBudgetBytes} bytes is spent; no new bucket can be opened for {key}.");
-            }
-
-            if (!known)
-            {
-                ReserveSeries(key, enforceLimits: true);
-            }
-
-            if (!_producers.TryClaim(batch.Producer, batch.Sequence))
-            {
-                if (!known)
-                {
-                    ReleaseSeries(key);
-                }
-
                 return new AppendResult(0, Duplicate: true);
-            }
-
-            if (!known)
-            {
-                shard.Series.Add(key, timeline);
             }
 
             shard.EstimatedBytes += timeline.Add(batch.Values.Span, times, now);
@@ -100,6 +78,44 @@ public sealed partial class ShardedSeriesStore : ISeriesStore
         }
 
         return new AppendResult(batch.Values.Length, Duplicate: false);
+    }
+
+    /// <summary>
+    /// Under the shard lock, the checks every write passes before it changes anything: the memory
+    /// budget for the buckets it would open, the series limits for a new series, and its producer
+    /// sequence. Returns the series' timeline (added to the shard if new), or null for a repeat.
+    /// </summary>
+    private SeriesTimeline? Admit(SeriesShard shard, SeriesKey key, Func<SeriesTimeline, long> newBucketBytes, string field, string producer, ulong sequence)
+    {
+        bool known = shard.Series.TryGetValue(key, out var timeline);
+        timeline ??= new SeriesTimeline(key, _options);
+        long needed = newBucketBytes(timeline);
+        if (needed > 0 && TotalEstimatedBytes() + needed > _options.MemoryBudgetBytes)
+        {
+            throw new StoreRejectedException(RejectReason.MemoryLimit, field, $"the store's memory budget of {_options.MemoryBudgetBytes} bytes is spent; no new bucket can be opened for {key}.");
+        }
+
+        if (!known)
+        {
+            ReserveSeries(key, enforceLimits: true);
+        }
+
+        if (!_producers.TryClaim(producer, sequence))
+        {
+            if (!known)
+            {
+                ReleaseSeries(key);
+            }
+
+            return null;
+        }
+
+        if (!known)
+        {
+            shard.Series.Add(key, timeline);
+        }
+
+        return timeline;
     }
 
     /// <inheritdoc/>
