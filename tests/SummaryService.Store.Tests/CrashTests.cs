@@ -1,3 +1,4 @@
+using SummaryService.TestSupport;
 using Microsoft.Extensions.Logging.Abstractions;
 using SummaryService.Store.Persistence;
 

@@ -1,3 +1,4 @@
+using SummaryService.TestSupport;
 using System.Text.Json;
 using Microsoft.Extensions.Logging.Abstractions;
 using Microsoft.Extensions.Time.Testing;

@@ -1,3 +1,4 @@
+using SummaryService.TestSupport;
 using Google.Protobuf.WellKnownTypes;
 using Grpc.Core;
 using Grpc.Net.Client;

@@ -1,3 +1,4 @@
+using SummaryService.TestSupport;
 using System.Net;
 using Grpc.Net.Client;
 using MathNet.Numerics.Statistics;

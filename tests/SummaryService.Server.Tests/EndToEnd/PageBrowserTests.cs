@@ -1,3 +1,4 @@
+using SummaryService.TestSupport;
 using System.Diagnostics;
 using System.Net;
 using SummaryService.Server.Tests.Json;

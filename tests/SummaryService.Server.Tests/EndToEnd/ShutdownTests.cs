@@ -1,3 +1,4 @@
+using SummaryService.TestSupport;
 using Grpc.Net.Client;
 using MathNet.Numerics.Statistics;
 using SummaryService.Contract.V1;

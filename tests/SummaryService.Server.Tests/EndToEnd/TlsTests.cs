@@ -1,3 +1,4 @@
+using SummaryService.TestSupport;
 using System.Security.Cryptography;
 using System.Security.Cryptography.X509Certificates;
 using Grpc.Net.Client;

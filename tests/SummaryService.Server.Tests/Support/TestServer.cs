@@ -1,3 +1,4 @@
+using SummaryService.TestSupport;
 using Grpc.Core;
 using Grpc.Net.Client;
 using Microsoft.AspNetCore.Hosting;

@@ -5,13 +5,13 @@ using System.Text;
 using Grpc.Health.V1;
 using Grpc.Net.Client;
 
-namespace SummaryService.Server.Tests.Support;
+namespace SummaryService.TestSupport;
 
 /// <summary>
 /// The real server as a child process on a free loopback port, configured through environment
 /// variables like an operator would. Stopped gracefully (SIGTERM) so the final snapshot runs.
 /// </summary>
-internal sealed class ServerProcess : IAsyncDisposable
+public sealed class ServerProcess : IAsyncDisposable
 {
     private readonly Process _process;
     private readonly StringBuilder _output = new();

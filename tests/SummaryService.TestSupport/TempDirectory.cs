@@ -1,7 +1,7 @@
-namespace SummaryService.Store.Tests;
+namespace SummaryService.TestSupport;
 
 /// <summary>A fresh directory under the system temp folder, removed on dispose.</summary>
-internal sealed class TempDirectory : IDisposable
+public sealed class TempDirectory : IDisposable
 {
     public TempDirectory()
     {
@@ -19,7 +19,7 @@ internal sealed class TempDirectory : IDisposable
         }
         catch (IOException)
         {
-            // A child process may still be releasing files; the OS cleans temp eventually.
+            // A child process (a stopping server) may still be releasing files; the OS cleans temp eventually.
         }
     }
 
