@@ -1,6 +1,6 @@
-using SummaryService.TestSupport;
 using Microsoft.Extensions.Logging.Abstractions;
 using SummaryService.Store.Persistence;
+using SummaryService.TestSupport;
 
 namespace SummaryService.Store.Tests;
 

@@ -1,7 +1,7 @@
-using SummaryService.TestSupport;
 using Microsoft.Extensions.Logging.Abstractions;
 using Microsoft.Extensions.Time.Testing;
 using SummaryService.Store.Persistence;
+using SummaryService.TestSupport;
 
 namespace SummaryService.Store.Tests;
 

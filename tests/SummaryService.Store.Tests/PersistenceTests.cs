@@ -1,9 +1,9 @@
-using SummaryService.TestSupport;
 using System.Text.Json;
 using Microsoft.Extensions.Logging.Abstractions;
 using Microsoft.Extensions.Time.Testing;
 using SummaryService.Sketches.Summaries;
 using SummaryService.Store.Persistence;
+using SummaryService.TestSupport;
 
 namespace SummaryService.Store.Tests;
 

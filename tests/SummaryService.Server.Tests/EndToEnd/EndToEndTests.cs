@@ -1,4 +1,3 @@
-using SummaryService.TestSupport;
 using Google.Protobuf.WellKnownTypes;
 using Grpc.Core;
 using Grpc.Net.Client;
@@ -8,6 +7,7 @@ using SummaryService.Contract.V1;
 using SummaryService.Server.Tests.Support;
 using SummaryService.Sketches;
 using SummaryService.Sketches.Serialization;
+using SummaryService.TestSupport;
 
 namespace SummaryService.Server.Tests.EndToEnd;
 

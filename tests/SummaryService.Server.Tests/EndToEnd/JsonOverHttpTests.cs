@@ -1,10 +1,10 @@
-using SummaryService.TestSupport;
 using System.Net;
 using Grpc.Net.Client;
 using MathNet.Numerics.Statistics;
 using SummaryService.Contract.V1;
 using SummaryService.Server.Tests.Json;
 using SummaryService.Server.Tests.Support;
+using SummaryService.TestSupport;
 
 namespace SummaryService.Server.Tests.EndToEnd;
 

@@ -1,8 +1,8 @@
-using SummaryService.TestSupport;
 using System.Diagnostics;
 using System.Net;
 using SummaryService.Server.Tests.Json;
 using SummaryService.Server.Tests.Support;
+using SummaryService.TestSupport;
 
 namespace SummaryService.Server.Tests.EndToEnd;
 

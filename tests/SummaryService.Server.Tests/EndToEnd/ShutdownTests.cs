@@ -1,8 +1,8 @@
-using SummaryService.TestSupport;
 using Grpc.Net.Client;
 using MathNet.Numerics.Statistics;
 using SummaryService.Contract.V1;
 using SummaryService.Server.Tests.Support;
+using SummaryService.TestSupport;
 
 namespace SummaryService.Server.Tests.EndToEnd;
 

@@ -1,9 +1,9 @@
-using SummaryService.TestSupport;
 using System.Security.Cryptography;
 using System.Security.Cryptography.X509Certificates;
 using Grpc.Net.Client;
 using SummaryService.Contract.V1;
 using SummaryService.Server.Tests.Support;
+using SummaryService.TestSupport;
 
 namespace SummaryService.Server.Tests.EndToEnd;
 

@@ -1,10 +1,10 @@
-using SummaryService.TestSupport;
 using Grpc.Core;
 using Grpc.Net.Client;
 using Microsoft.AspNetCore.Hosting;
 using Microsoft.AspNetCore.Mvc.Testing;
 using Microsoft.Extensions.DependencyInjection;
 using SummaryService.Contract.V1;
+using SummaryService.TestSupport;
 
 namespace SummaryService.Server.Tests.Support;
 
