@@ -1,6 +1,7 @@
 // Opens the built-in page in headless Chromium against a server that already holds known data,
 // picks the metric, window and step, and checks what the page drew against the server's own JSON.
-// Input (environment): PAGE_URL, METRIC, EXPECT_POINTS, EXPECT_BARS, SCREENSHOT.
+// Input (environment): PAGE_URL, METRIC, EXPECT_POINTS, EXPECT_BARS, SCREENSHOT; API_KEY when the
+// server has authentication on (the page must first refuse politely, then work once the key is typed).
 // Output: one JSON line of what was seen; exit code 0 only when every check held.
 import { mkdtempSync, rmSync } from "node:fs";
 import { tmpdir } from "node:os";
@@ -18,6 +19,7 @@ const metric = env("METRIC");
 const expectPoints = Number(env("EXPECT_POINTS"));
 const expectBars = Number(env("EXPECT_BARS"));
 const screenshot = env("SCREENSHOT");
+const apiKey = process.env.API_KEY || "";
 
 // Everything here is bounded: a hung browser must fail the run, not stall it.
 const watchdog = setTimeout(() => { console.error("page test took longer than 90 s"); process.exit(3); }, 90_000);
@@ -49,6 +51,14 @@ try {
   page.on("pageerror", (e) => pageErrors.push(String(e)));
 
   await page.goto(pageUrl.href);
+  if (apiKey) {
+    // Without a key nothing can be listed: the page must say so and ask for one, not fail silently.
+    await page.waitForFunction(() => document.body.dataset.state === "error");
+    const refusal = await page.textContent("#status");
+    check(/API key/.test(refusal ?? ""), `without a key the status reads "${refusal}"`);
+    await page.fill("#key", apiKey);
+    await page.dispatchEvent("#key", "change");
+  }
   await page.waitForSelector(`#metric option[value="${metric}"]`, { state: "attached" });
   await page.selectOption("#window", "3600");
   await page.selectOption("#step", "900");
@@ -77,7 +87,7 @@ try {
   // The server's own answer for the same window, asked directly over JSON.
   const response = await fetch(new URL("/v1/summarize", pageUrl), {
     method: "POST",
-    headers: { "content-type": "application/json" },
+    headers: { "content-type": "application/json", ...(apiKey ? { authorization: "Bearer " + apiKey } : {}) },
     body: JSON.stringify({ selector: { metric }, window: { last: "3600s" }, quantiles: [0.99] }),
   });
   const server = (await response.json()).groups[0].summary;

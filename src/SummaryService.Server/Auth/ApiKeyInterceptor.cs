@@ -40,9 +40,14 @@ public sealed class ApiKeyInterceptor(ApiKeyRegistry registry) : Interceptor
         return continuation(requestStream, responseStream, context);
     }
 
-    /// <summary>The scope a method of the contract needs, from its service name.</summary>
+    /// <summary>
+    /// The scope a method of the contract needs, from its service name. Listing the catalogue is a
+    /// read: a dashboard or an on-call engineer holding a read key must be able to find the series
+    /// they may query, while removal and store-wide operations stay with admin keys.
+    /// </summary>
     internal static Scope ScopeOf(string method) => method switch
     {
+        "/summary.v1.Admin/ListSeries" => Scope.Read,
         _ when method.StartsWith("/summary.v1.Ingest/", StringComparison.Ordinal) => Scope.Write,
         _ when method.StartsWith("/summary.v1.Query/", StringComparison.Ordinal) => Scope.Read,
         _ when method.StartsWith("/summary.v1.Admin/", StringComparison.Ordinal) => Scope.Admin,

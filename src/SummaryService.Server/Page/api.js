@@ -11,7 +11,10 @@ const Api = {
     const response = await fetch(path, { method, headers: Api.headers(), body: body === undefined ? undefined : JSON.stringify(body) });
     const json = await response.json().catch(() => ({}));
     // A refusal is a JSON status whose message names the field and the value at fault.
-    if (!response.ok) throw new Error(json.message || ("HTTP " + response.status));
+    if (!response.ok) {
+      const message = json.message || ("HTTP " + response.status);
+      throw new Error(response.status === 401 ? message + " Enter an API key with the read scope above." : message);
+    }
     return json;
   },
   listSeries() { return Api.call("GET", "/v1/admin/series"); },

@@ -61,5 +61,14 @@ async function draw() {
 
 document.getElementById("controls").addEventListener("submit", (e) => { e.preventDefault(); draw(); });
 for (const id of ["metric", "window", "step"]) document.getElementById(id).addEventListener("change", draw);
+// With authentication on, nothing can be listed before a key is given: each new key reads the
+// catalogue again, since what a key may see depends on its metric prefixes.
+function start() {
+  loadMetrics().then(draw).catch((e) => {
+    setStatus(e.message, true);
+    document.body.dataset.state = "error";
+  });
+}
+document.getElementById("key").addEventListener("change", start);
 drawLegend();
-loadMetrics().then(draw).catch((e) => setStatus(e.message, true));
+start();

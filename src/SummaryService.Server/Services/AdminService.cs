@@ -9,7 +9,10 @@ using SummaryService.Store;
 
 namespace SummaryService.Server.Services;
 
-/// <summary>Admin RPCs. A key limited to metric prefixes sees and deletes only its own series, and cannot run store-wide operations.</summary>
+/// <summary>
+/// Admin RPCs. Listing needs the read scope, the others admin. A key limited to metric prefixes
+/// sees and deletes only its own series, and cannot run store-wide operations.
+/// </summary>
 public sealed class AdminService(StoreHost host) : Admin.AdminBase
 {
     /// <inheritdoc/>
@@ -20,7 +23,7 @@ public sealed class AdminService(StoreHost host) : Admin.AdminBase
         string? metric = string.IsNullOrEmpty(request.Metric) ? null : request.Metric;
         if (metric is not null)
         {
-            access.Require(Scope.Admin, metric, "metric");
+            access.Require(Scope.Read, metric, "metric");
         }
 
         var reply = new ListSeriesReply();

@@ -11,6 +11,7 @@ public sealed class AuthTests
     private const string Writer = "writer-key-team-a";
     private const string Reader = "reader-key-team-a";
     private const string Operator = "operator-key";
+    private const string WriterAll = "writer-key-every-team";
 
     private static TestServer Start() => new(new Dictionary<string, string?>
     {
@@ -27,6 +28,9 @@ public sealed class AuthTests
         ["Auth:Keys:2:Sha256"] = ApiKeyRegistry.HashOf(Operator),
         ["Auth:Keys:2:Scopes:0"] = "admin",
         ["Auth:Keys:2:Scopes:1"] = "read",
+        ["Auth:Keys:3:Name"] = "shared-writer",
+        ["Auth:Keys:3:Sha256"] = ApiKeyRegistry.HashOf(WriterAll),
+        ["Auth:Keys:3:Scopes:0"] = "write",
     });
 
     public static TheoryData<string?, string, StatusCode> Refusals => new()
@@ -88,6 +92,22 @@ public sealed class AuthTests
         var readerAdmin = await Assert.ThrowsAsync<RpcException>(async () => await server.Admin.GetStatsAsync(new GetStatsRequest(), TestServer.Bearer(Reader)));
         Assert.Equal(StatusCode.PermissionDenied, readerAdmin.StatusCode);
         Assert.Equal(1u, (await server.Admin.GetStatsAsync(new GetStatsRequest(), TestServer.Bearer(Operator))).Series);
+    }
+
+    [Fact]
+    public async Task A_read_key_lists_the_series_inside_its_prefixes_and_nothing_else()
+    {
+        await using var server = Start();
+        await server.Ingest.PushAsync(Requests.Batch("team-a.latency", [1, 2, 3]), TestServer.Bearer(Writer));
+        await server.Ingest.PushAsync(Requests.Batch("team-b.latency", [4, 5]), TestServer.Bearer(WriterAll));
+
+        var listed = await server.Admin.ListSeriesAsync(new ListSeriesRequest(), TestServer.Bearer(Reader));
+        Assert.Equal(["team-a.latency"], listed.Series.Select(s => s.Metric));
+        var outside = await Assert.ThrowsAsync<RpcException>(async () => await server.Admin.ListSeriesAsync(new ListSeriesRequest { Metric = "team-b.latency" }, TestServer.Bearer(Reader)));
+        Assert.Equal(StatusCode.PermissionDenied, outside.StatusCode);
+        var writerListing = await Assert.ThrowsAsync<RpcException>(async () => await server.Admin.ListSeriesAsync(new ListSeriesRequest(), TestServer.Bearer(Writer)));
+        Assert.Equal(StatusCode.PermissionDenied, writerListing.StatusCode);
+        Assert.Equal(2, (await server.Admin.ListSeriesAsync(new ListSeriesRequest(), TestServer.Bearer(Operator))).Series.Count);
     }
 
     [Fact]
