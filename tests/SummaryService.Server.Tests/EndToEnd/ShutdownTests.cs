@@ -1,3 +1,4 @@
+using Grpc.Core;
 using Grpc.Net.Client;
 using MathNet.Numerics.Statistics;
 using SummaryService.Contract.V1;
@@ -41,6 +42,78 @@ public sealed class ShutdownTests
             Assert.Equal((ulong)values.Length, summary.Count);
             Assert.Equal(values.Mean(), summary.Mean, 1e-9); // MathNet.Numerics
         }
+    }
+
+    [Fact]
+    public async Task A_stop_during_a_busy_push_stream_answers_what_it_read_ends_the_stream_cleanly_and_keeps_every_acknowledged_batch()
+    {
+        using var data = new TempDirectory();
+        var environment = new Dictionary<string, string> { ["Persistence__DataDirectory"] = data.Path };
+        const int ValuesPerBatch = 100;
+        const int MaxBatches = 20_000; // bound on the writer; the stop comes long before
+        int acknowledged = 0;
+        StatusCode ending;
+        await using (var server = await ServerProcess.StartAsync(environment))
+        {
+            using var channel = GrpcChannel.ForAddress(server.Address);
+            using var stream = new Ingest.IngestClient(channel).PushStream();
+            double[] values = Requests.Latencies(ValuesPerBatch, 61);
+            using var writerStop = new CancellationTokenSource();
+            Task writer = Task.Run(async () =>
+            {
+                try
+                {
+                    for (ulong sequence = 1; sequence <= MaxBatches && !writerStop.IsCancellationRequested; sequence++)
+                    {
+                        Batch batch = Requests.Batch("ferry.drain.latency", values);
+                        batch.Producer = "drain-test";
+                        batch.Sequence = sequence;
+                        await stream.RequestStream.WriteAsync(batch);
+                    }
+                }
+                catch (Exception e) when (e is RpcException or InvalidOperationException or IOException)
+                {
+                    // The server ended the call: writing more is refused, which is the point.
+                }
+            });
+
+            Task stopping = Task.CompletedTask;
+            ulong expected = 1;
+            try
+            {
+                while (await stream.ResponseStream.MoveNext())
+                {
+                    PushReply reply = stream.ResponseStream.Current;
+                    Assert.Equal(expected++, reply.Sequence); // in order, none skipped
+                    Assert.Equal((ulong)ValuesPerBatch, reply.Accepted);
+                    if (++acknowledged == 200)
+                    {
+                        stopping = server.StopAsync(); // SIGTERM with batches still arriving
+                    }
+                }
+
+                ending = stream.GetStatus().StatusCode;
+            }
+            catch (RpcException e)
+            {
+                ending = e.StatusCode;
+            }
+
+            await writerStop.CancelAsync();
+            await writer;
+            await stopping;
+            Assert.Equal(0, server.ExitCode); // a hung stream would have kept the host past its stop limit
+        }
+
+        Assert.True(acknowledged >= 200 && acknowledged < MaxBatches, $"{acknowledged} batches acknowledged");
+        Assert.Equal(StatusCode.OK, ending); // the stream ends, it is not torn down
+
+        // Each batch read was applied and answered; batches still in flight were never read, so the
+        // store holds exactly the acknowledged ones.
+        await using var restarted = await ServerProcess.StartAsync(environment);
+        using var restartedChannel = GrpcChannel.ForAddress(restarted.Address);
+        var summary = Assert.Single((await new Query.QueryClient(restartedChannel).SummarizeAsync(Requests.Summarize("ferry.drain.latency"))).Groups).Summary;
+        Assert.Equal((ulong)(acknowledged * ValuesPerBatch), summary.Count);
     }
 
     [Fact]
