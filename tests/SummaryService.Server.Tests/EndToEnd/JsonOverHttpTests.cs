@@ -11,15 +11,14 @@ using SummaryService.TestSupport;
 namespace SummaryService.Server.Tests.EndToEnd;
 
 /// <summary>The real process: JSON on its HTTP/1.1 endpoint while gRPC keeps its HTTP/2 endpoint.</summary>
+/// <remarks>One process serves every test here; each test uses metrics of its own.</remarks>
 [Collection(nameof(EndToEndTests))]
-public sealed class JsonOverHttpTests
+public sealed class JsonOverHttpTests(JsonOverHttpTests.OneProcess process) : IClassFixture<JsonOverHttpTests.OneProcess>
 {
     [Fact]
     public async Task Json_pushed_over_http1_is_summarized_over_json_and_over_grpc()
     {
-        using var data = new TempDirectory();
-        await using var server = await ServerProcess.StartAsync(new Dictionary<string, string> { ["Persistence__DataDirectory"] = data.Path });
-        using var http = new HttpClient { BaseAddress = server.HttpAddress, DefaultRequestVersion = HttpVersion.Version11, Timeout = TimeSpan.FromSeconds(20) };
+        HttpClient http = process.Http;
         double[] values = Requests.Latencies(80, 95);
 
         using var pushed = await http.PostAsync("/v1/push", new { metric = "shop.e2e.json", values });
@@ -31,16 +30,14 @@ public sealed class JsonOverHttpTests
         Assert.Equal(values.Mean(), summary["mean"].Number(), 1e-9); // MathNet.Numerics
         Assert.Equal(values.StandardDeviation(), summary["stddev"].Number(), 1e-9); // MathNet.Numerics (sample standard deviation)
 
-        using GrpcChannel channel = GrpcChannel.ForAddress(server.Address);
+        using GrpcChannel channel = GrpcChannel.ForAddress(process.Server.Address);
         var reply = await new Query.QueryClient(channel).SummarizeAsync(Requests.Summarize("shop.e2e.json"));
         Assert.Equal(80ul, Assert.Single(reply.Groups).Summary.Count);
     }
     [Fact]
     public async Task Compare_over_json_flags_the_widened_tail_and_not_the_unchanged_median()
     {
-        using var data = new TempDirectory();
-        await using var server = await ServerProcess.StartAsync(new Dictionary<string, string> { ["Persistence__DataDirectory"] = data.Path });
-        using var http = new HttpClient { BaseAddress = server.HttpAddress, DefaultRequestVersion = HttpVersion.Version11, Timeout = TimeSpan.FromSeconds(20) };
+        HttpClient http = process.Http;
 
         // A made-up ferry booking service in two regions: the same bookings, except that in the
         // south the slowest 5% took three times as long. Every rank below 0.95 is the same value on
@@ -72,9 +69,7 @@ public sealed class JsonOverHttpTests
     [Fact]
     public async Task Watch_over_json_streams_one_summary_per_interval_until_its_limit()
     {
-        using var data = new TempDirectory();
-        await using var server = await ServerProcess.StartAsync(new Dictionary<string, string> { ["Persistence__DataDirectory"] = data.Path });
-        using var http = new HttpClient { BaseAddress = server.HttpAddress, DefaultRequestVersion = HttpVersion.Version11, Timeout = TimeSpan.FromSeconds(20) };
+        HttpClient http = process.Http;
         double[] values = Requests.Latencies(300, 23);
         using (var pushed = await http.PostAsync("/v1/push", new { metric = "ferry.checkin.latency", values }))
         {
@@ -102,6 +97,29 @@ public sealed class JsonOverHttpTests
             JsonNode summary = update["groups"]![0]!["summary"]!;
             Assert.Equal(values.Length, summary["count"].Number());
             Assert.Equal(values.Mean(), summary["mean"].Number(), 1e-9); // MathNet.Numerics
+        }
+    }
+
+    /// <summary>The real server process and an HTTP/1.1 client for its JSON endpoint.</summary>
+    public sealed class OneProcess : IAsyncLifetime
+    {
+        private readonly TempDirectory _data = new();
+
+        public ServerProcess Server { get; private set; } = null!;
+
+        public HttpClient Http { get; private set; } = null!;
+
+        public async Task InitializeAsync()
+        {
+            Server = await ServerProcess.StartAsync(new Dictionary<string, string> { ["Persistence__DataDirectory"] = _data.Path });
+            Http = new HttpClient { BaseAddress = Server.HttpAddress, DefaultRequestVersion = HttpVersion.Version11, Timeout = TimeSpan.FromSeconds(20) };
+        }
+
+        public async Task DisposeAsync()
+        {
+            Http.Dispose();
+            await Server.DisposeAsync();
+            _data.Dispose();
         }
     }
 }
