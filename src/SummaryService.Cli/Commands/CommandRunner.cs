@@ -54,6 +54,11 @@ public sealed class CommandRunner(CliConsole console, CommonOptions common, Time
         {
             return Fail(ExitCodes.Usage, $"error: {ex.Message}");
         }
+        catch (Exception ex) when (ex is InvalidOperationException or HttpRequestException or FormatException)
+        {
+            // Not a mistake of the caller's: still one line, with the exception's type so it can be reported.
+            return Fail(ExitCodes.ServerError, $"error: unexpected failure ({ex.GetType().Name}): {ex.Message}");
+        }
         finally
         {
             server?.Dispose();

@@ -71,8 +71,14 @@ public static class DemoCommand
 
             console.WriteLine($"back-filling {DurationText.Format(back)} at {perSecond} values/s per service; checkout's release lands at {TimePoint.Format(deployMs)} …");
             var clock = Stopwatch.StartNew();
-            await feed.FeedAsync(startMs, now, perSecond, deployMs, run.Cancellation);
-            await feed.FlushAsync();
+            const long chunk = 30 * 60_000;
+            for (long from = startMs; from < now; from += chunk)
+            {
+                long to = Math.Min(now, from + chunk);
+                await feed.FeedAsync(from, to, perSecond, deployMs, run.Cancellation);
+                console.WriteLine($"  … up to {TimePoint.Format(to)} ({feed.Accepted} values acknowledged)");
+            }
+
             console.WriteLine($"back-filled {TimePoint.Format(startMs)} → {TimePoint.Format(now)} in {clock.Elapsed.TotalSeconds:0.0} s.");
             PrintTryThis(run.Console, common, run, startMs, deployMs);
 
