@@ -1,5 +1,4 @@
 using System.CommandLine;
-using System.Diagnostics;
 using Spectre.Console;
 using SummaryService.Cli.Demo;
 using SummaryService.Cli.Parsing;
@@ -70,7 +69,7 @@ public static class DemoCommand
             }
 
             console.WriteLine($"back-filling {DurationText.Format(back)} at {perSecond} values/s per service; checkout's release lands at {TimePoint.Format(deployMs)} …");
-            var clock = Stopwatch.StartNew();
+            long started = run.Time.GetTimestamp();
             const long chunk = 30 * 60_000;
             for (long from = startMs; from < now; from += chunk)
             {
@@ -79,7 +78,7 @@ public static class DemoCommand
                 console.WriteLine($"  … up to {TimePoint.Format(to)} ({feed.Accepted} values acknowledged)");
             }
 
-            console.WriteLine($"back-filled {TimePoint.Format(startMs)} → {TimePoint.Format(now)} in {clock.Elapsed.TotalSeconds:0.0} s.");
+            console.WriteLine($"back-filled {TimePoint.Format(startMs)} → {TimePoint.Format(now)} in {run.Time.GetElapsedTime(started).TotalSeconds:0.0} s.");
             PrintTryThis(run.Console, common, run, startMs, deployMs);
 
             long until = live is null ? long.MaxValue : run.NowMs + (long)live.Value.TotalMilliseconds;
