@@ -143,16 +143,25 @@ public static class SendCommand
         ulong accepted = 0;
         int duplicates = 0;
         PushReply? failure = null;
-        await foreach (PushReply reply in call.ResponseStream.ReadAllAsync(run.Cancellation))
+        try
         {
-            if (reply.ErrorCode.Length > 0)
+            await foreach (PushReply reply in call.ResponseStream.ReadAllAsync(run.Cancellation))
             {
-                failure ??= reply;
-                continue;
-            }
+                if (reply.ErrorCode.Length > 0)
+                {
+                    failure ??= reply;
+                    continue;
+                }
 
-            accepted += reply.Accepted;
-            duplicates += reply.Duplicate ? 1 : 0;
+                accepted += reply.Accepted;
+                duplicates += reply.Duplicate ? 1 : 0;
+            }
+        }
+        catch (RpcException)
+        {
+            // The reading side reports the call's failure; the writing side fails the same way and is observed here.
+            _ = writing.ContinueWith(t => t.Exception, CancellationToken.None, TaskContinuationOptions.OnlyOnFaulted, TaskScheduler.Default);
+            throw;
         }
 
         await writing;

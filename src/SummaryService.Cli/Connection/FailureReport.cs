@@ -23,7 +23,8 @@ public static class FailureReport
             StatusCode.PermissionDenied => (ExitCodes.AuthRefused, $"error: the key may not do this: {detail}"),
             StatusCode.NotFound => (ExitCodes.NotFound, $"error: {detail} List what exists with 'sumq catalog'."),
             StatusCode.InvalidArgument => (ExitCodes.Usage, $"error: the server refused the request: {detail}"),
-            StatusCode.Cancelled => (ExitCodes.Ok, "stopped."),
+            // A cancellation the caller asked for never reaches here (CommandRunner ends those with 0): this one came from the server.
+            StatusCode.Cancelled => (ExitCodes.ServerError, $"error: the server ended the call: {detail}"),
             _ => (ExitCodes.ServerError, $"error: the server answered {failure.StatusCode}: {detail}"),
         };
     }
