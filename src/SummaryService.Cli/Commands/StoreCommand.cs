@@ -1,0 +1,79 @@
+using System.CommandLine;
+using Spectre.Console;
+using SummaryService.Cli.Connection;
+using SummaryService.Cli.Parsing;
+using SummaryService.Cli.Rendering;
+using SummaryService.Contract.V1;
+
+namespace SummaryService.Cli.Commands;
+
+/// <summary><c>store</c>: the server's own figures — series, buckets and estimated memory per tier and per shard.</summary>
+public static class StoreCommand
+{
+    /// <summary>Builds the command.</summary>
+    public static Command Create(CommandRunner runner)
+    {
+        ArgumentNullException.ThrowIfNull(runner);
+        var command = new Command("store", "Show the store's figures: series, buckets, estimated memory per tier and shard, durability.");
+        var shards = new Option<bool>("--shards") { Description = "Also list every shard." };
+        var json = CommonOptions.Json();
+        command.Add(shards);
+        command.Add(json);
+        runner.Bind(command, async run =>
+        {
+            GetStatsReply reply = await run.Server.Admin.GetStatsAsync(new GetStatsRequest(), ServerConnection.Unary(run.Cancellation));
+            if (run.Parse.GetValue(json))
+            {
+                JsonOutput.Write(run.Console, reply);
+                return ExitCodes.Ok;
+            }
+
+            IAnsiConsole console = run.Console.Out;
+            console.WriteLine($"{reply.Series} series, {reply.Buckets} buckets, about {Bytes(reply.EstimatedBytes)} of sketches; durability {reply.Durability}");
+            var tiers = new Table().Border(TableBorder.Rounded);
+            tiers.AddColumn(new TableColumn(new Text("tier (bucket width)")));
+            tiers.AddColumn(new TableColumn(new Text("buckets")).RightAligned());
+            tiers.AddColumn(new TableColumn(new Text("estimated memory")).RightAligned());
+            foreach (TierStats tier in reply.Tiers)
+            {
+                tiers.AddRow(new Text(DurationText.Format(tier.BucketWidth.ToTimeSpan())), new Text(Count(tier.Buckets)), new Text(Bytes(tier.EstimatedBytes)));
+            }
+
+            console.Write(tiers);
+            if (run.Parse.GetValue(shards))
+            {
+                var table = new Table().Border(TableBorder.Rounded);
+                table.AddColumn(new TableColumn(new Text("shard")).RightAligned());
+                table.AddColumn(new TableColumn(new Text("series")).RightAligned());
+                table.AddColumn(new TableColumn(new Text("buckets")).RightAligned());
+                table.AddColumn(new TableColumn(new Text("estimated memory")).RightAligned());
+                foreach (ShardStats shard in reply.Shards)
+                {
+                    table.AddRow(new Text(Count(shard.Shard)), new Text(Count(shard.Series)), new Text(Count(shard.Buckets)), new Text(Bytes(shard.EstimatedBytes)));
+                }
+
+                console.Write(table);
+            }
+
+            return ExitCodes.Ok;
+        });
+        return command;
+    }
+
+    /// <summary>Bytes in the largest binary unit that keeps the number at or above 1.</summary>
+    public static string Bytes(ulong bytes)
+    {
+        string[] units = ["B", "KiB", "MiB", "GiB", "TiB"];
+        double value = bytes;
+        int unit = 0;
+        while (value >= 1024 && unit < units.Length - 1)
+        {
+            value /= 1024;
+            unit++;
+        }
+
+        return $"{Figures.Of(Math.Round(value, 1))} {units[unit]}";
+    }
+
+    private static string Count(ulong n) => n.ToString(System.Globalization.CultureInfo.InvariantCulture);
+}
