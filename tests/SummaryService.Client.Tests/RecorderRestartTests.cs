@@ -65,6 +65,56 @@ public sealed class RecorderRestartTests
         Assert.Equal(all.Variance(), summary.Variance, 1e-6); // MathNet.Numerics
     }
 
+    [Fact]
+    public async Task Batches_applied_but_never_acknowledged_are_resent_and_counted_once()
+    {
+        await using LiveServer server = await LiveServer.StartAsync();
+        await using var proxy = new ReplyCuttingProxy(server.Port);
+        using var viaProxy = new SummaryClient(new SummaryClientOptions { Address = proxy.Address });
+        double[] first = Measurements.Eighths(500, seed: 14);
+        double[] unheard = Measurements.Eighths(1500, seed: 15);
+
+        await using (var recorder = new MeasurementRecorder(viaProxy, Measurements.Quick))
+        {
+            foreach (double value in first)
+            {
+                recorder.Record("northwind.cart.size", value);
+            }
+
+            await recorder.FlushAsync().WaitAsync(TimeSpan.FromSeconds(20));
+            proxy.SwallowReplies();
+            foreach (double value in unheard)
+            {
+                recorder.Record("northwind.cart.size", value);
+            }
+
+            // The server applies the batches (asked directly, not through the proxy) while the recorder hears nothing.
+            await WaitUntilAsync(async () => (await server.Client.SummaryOfAsync("northwind.cart.size")).Count == 2000, TimeSpan.FromSeconds(20));
+            Assert.Equal(unheard.Length, recorder.Statistics.ValuesHeld);
+
+            proxy.CutAndHeal();
+            await recorder.FlushAsync().WaitAsync(TimeSpan.FromSeconds(30));
+            RecorderStatistics stats = recorder.Statistics;
+            Assert.True(stats.DuplicateBatches >= 1, $"expected the resent batches to be answered as duplicates; {stats}");
+            Assert.True(stats.Reconnects >= 1);
+            Assert.Equal(2000, stats.ValuesAcknowledged);
+        }
+
+        double[] all = [.. first, .. unheard];
+        Summary summary = await server.Client.SummaryOfAsync("northwind.cart.size");
+        Assert.Equal(2000ul, summary.Count);
+        Assert.Equal(all.Sum(), summary.Sum); // plain arithmetic; eighths add exactly
+    }
+
+    private static async Task WaitUntilAsync(Func<Task<bool>> condition, TimeSpan limit)
+    {
+        using var timeout = new CancellationTokenSource(limit);
+        while (!await condition())
+        {
+            await Task.Delay(20, timeout.Token);
+        }
+    }
+
     private static async Task WaitUntilAsync(Func<bool> condition, TimeSpan limit)
     {
         using var timeout = new CancellationTokenSource(limit);
