@@ -10,7 +10,7 @@ namespace SummaryService.Client.Tests;
 [Collection(nameof(ServerCollection))]
 public sealed class ApiKeyTests
 {
-    private const string Key = "nw-producer-7f3a9c";
+    private const string Key = "tb-producer-7f3a9c";
 
     [Fact]
     public async Task A_known_key_reads_and_writes_and_an_unknown_key_is_refused_as_unauthenticated()
@@ -19,7 +19,7 @@ public sealed class ApiKeyTests
         await using LiveServer server = await LiveServer.StartAsync(new Dictionary<string, string>
         {
             ["Auth__Enabled"] = "true",
-            ["Auth__Keys__0__Name"] = "northwind-producer",
+            ["Auth__Keys__0__Name"] = "tallowbrook-producer",
             ["Auth__Keys__0__Sha256"] = hash,
             ["Auth__Keys__0__Scopes__0"] = "write",
             ["Auth__Keys__0__Scopes__1"] = "read",
@@ -29,19 +29,19 @@ public sealed class ApiKeyTests
         using var keyed = new SummaryClient(new SummaryClientOptions { Address = server.Address, ApiKey = Key });
         await using (var recorder = new MeasurementRecorder(keyed, Measurements.Quick))
         {
-            recorder.Record("northwind.login.latency", 12.5);
-            recorder.Record("northwind.login.latency", 14.0);
+            recorder.Record("tallowbrook.login.latency", 12.5);
+            recorder.Record("tallowbrook.login.latency", 14.0);
             await recorder.FlushAsync().WaitAsync(TimeSpan.FromSeconds(20));
         }
 
-        Assert.Equal(2ul, (await keyed.SummaryOfAsync("northwind.login.latency")).Count);
+        Assert.Equal(2ul, (await keyed.SummaryOfAsync("tallowbrook.login.latency")).Count);
         Assert.Single(await keyed.ListSeriesAsync());
 
-        var noKey = await Assert.ThrowsAsync<RpcException>(() => server.Client.SummaryOfAsync("northwind.login.latency"));
+        var noKey = await Assert.ThrowsAsync<RpcException>(() => server.Client.SummaryOfAsync("tallowbrook.login.latency"));
         Assert.Equal(StatusCode.Unauthenticated, noKey.StatusCode);
 
-        using var wrong = new SummaryClient(new SummaryClientOptions { Address = server.Address, ApiKey = "nw-producer-guessed" });
-        var refused = await Assert.ThrowsAsync<RpcException>(() => wrong.SummaryOfAsync("northwind.login.latency"));
+        using var wrong = new SummaryClient(new SummaryClientOptions { Address = server.Address, ApiKey = "tb-producer-guessed" });
+        var refused = await Assert.ThrowsAsync<RpcException>(() => wrong.SummaryOfAsync("tallowbrook.login.latency"));
         Assert.Equal(StatusCode.Unauthenticated, refused.StatusCode);
         Assert.Contains("not known", refused.Status.Detail, StringComparison.Ordinal);
 
@@ -56,7 +56,7 @@ public sealed class ApiKeyTests
                     rejections.Add(e);
                 }
             };
-            recorder.Record("northwind.login.latency", 99);
+            recorder.Record("tallowbrook.login.latency", 99);
             await recorder.FlushAsync().WaitAsync(TimeSpan.FromSeconds(20));
             Assert.Equal(1, recorder.Statistics.ValuesRejected);
             Assert.Equal(0, recorder.Statistics.ValuesHeld);
@@ -64,7 +64,7 @@ public sealed class ApiKeyTests
 
         RejectedBatchEventArgs rejection = Assert.Single(rejections);
         Assert.Equal("Unauthenticated", rejection.ErrorCode);
-        Assert.Equal("northwind.login.latency", rejection.Metric);
-        Assert.Equal(2ul, (await keyed.SummaryOfAsync("northwind.login.latency")).Count);
+        Assert.Equal("tallowbrook.login.latency", rejection.Metric);
+        Assert.Equal(2ul, (await keyed.SummaryOfAsync("tallowbrook.login.latency")).Count);
     }
 }

@@ -20,7 +20,7 @@ public sealed class PreAggregationTests
         long uploads;
         await using (var recorder = new MeasurementRecorder(server.Client, options))
         {
-            RecordedSeries series = recorder.Series("northwind.ads.latency", ("region", "west"));
+            RecordedSeries series = recorder.Series("tallowbrook.ads.latency", ("region", "west"));
             foreach (double value in values)
             {
                 series.Record(value);
@@ -34,7 +34,7 @@ public sealed class PreAggregationTests
         // One sketch per series and half-second interval: a handful of uploads, not hundreds of batches.
         Assert.InRange(uploads, 1, 20);
         double[] probabilities = [0.01, 0.25, 0.5, 0.9, 0.99];
-        Summary summary = await server.Client.SummaryOfAsync("northwind.ads.latency", new SummarizeOptions { Quantiles = probabilities, Confidence = 0.999 });
+        Summary summary = await server.Client.SummaryOfAsync("tallowbrook.ads.latency", new SummarizeOptions { Quantiles = probabilities, Confidence = 0.999 });
         Assert.Equal((ulong)values.Length, summary.Count);
         Assert.False(summary.Exact);
         Assert.Equal(values.Mean(), summary.Mean, 1e-9); // MathNet.Numerics

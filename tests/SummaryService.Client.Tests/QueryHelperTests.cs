@@ -10,8 +10,8 @@ namespace SummaryService.Client.Tests;
 [Collection(nameof(ServerCollection))]
 public sealed class QueryHelperTests
 {
-    private const string Latency = "northwind.shop.latency";
-    private const string Status = "northwind.api.status";
+    private const string Latency = "tallowbrook.shop.latency";
+    private const string Status = "tallowbrook.api.status";
 
     [Fact]
     public async Task Every_query_and_admin_helper_answers_with_the_figures_of_the_recorded_values()

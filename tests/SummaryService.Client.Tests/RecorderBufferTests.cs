@@ -20,7 +20,7 @@ public sealed class RecorderBufferTests
 
         for (int i = 0; i < 100; i++)
         {
-            recorder.Record("northwind.queue.depth", i);
+            recorder.Record("tallowbrook.queue.depth", i);
         }
 
         Assert.Equal(100 - Capacity, recorder.Statistics.ValuesDropped);
@@ -28,10 +28,10 @@ public sealed class RecorderBufferTests
 
         await using LiveServer server = await LiveServer.StartAsync(port: port);
         await recorder.FlushAsync().WaitAsync(TimeSpan.FromSeconds(20));
-        Assert.Equal((ulong)Capacity, (await server.Client.SummaryOfAsync("northwind.queue.depth")).Count);
+        Assert.Equal((ulong)Capacity, (await server.Client.SummaryOfAsync("tallowbrook.queue.depth")).Count);
 
         // The kept values are the first 64 recorded: 0..63, so the exact maximum is 63.
-        Assert.Equal(Capacity - 1, (await server.Client.SummaryOfAsync("northwind.queue.depth")).Max);
+        Assert.Equal(Capacity - 1, (await server.Client.SummaryOfAsync("tallowbrook.queue.depth")).Max);
     }
 
     [Fact]
@@ -43,10 +43,10 @@ public sealed class RecorderBufferTests
         await using var recorder = new MeasurementRecorder(unreachable, options);
         for (int i = 0; i < Capacity; i++)
         {
-            recorder.Record("northwind.queue.depth", i);
+            recorder.Record("tallowbrook.queue.depth", i);
         }
 
-        Task blocked = Task.Factory.StartNew(() => recorder.Record("northwind.queue.depth", Capacity), CancellationToken.None, TaskCreationOptions.LongRunning, TaskScheduler.Default);
+        Task blocked = Task.Factory.StartNew(() => recorder.Record("tallowbrook.queue.depth", Capacity), CancellationToken.None, TaskCreationOptions.LongRunning, TaskScheduler.Default);
         await Task.Delay(TimeSpan.FromMilliseconds(500));
         Assert.False(blocked.IsCompleted);
 
@@ -54,7 +54,7 @@ public sealed class RecorderBufferTests
         await blocked.WaitAsync(TimeSpan.FromSeconds(20));
         await recorder.FlushAsync().WaitAsync(TimeSpan.FromSeconds(20));
         Assert.Equal(0, recorder.Statistics.ValuesDropped);
-        Assert.Equal((ulong)Capacity + 1, (await server.Client.SummaryOfAsync("northwind.queue.depth")).Count);
+        Assert.Equal((ulong)Capacity + 1, (await server.Client.SummaryOfAsync("tallowbrook.queue.depth")).Count);
     }
 
     [Fact]
@@ -66,7 +66,7 @@ public sealed class RecorderBufferTests
         await using var recorder = new MeasurementRecorder(unreachable, options);
         for (int i = 0; i <= Capacity; i++)
         {
-            recorder.Record("northwind.queue.depth", i);
+            recorder.Record("tallowbrook.queue.depth", i);
         }
 
         Assert.Equal(1, recorder.Statistics.ValuesDropped);

@@ -24,7 +24,7 @@ public sealed class RecorderDisposalTests
         {
             for (int i = 0; i < values.Length; i++)
             {
-                recorder.Record("northwind.search.latency", [("region", Regions[i % 3]), ("pod", "p" + t)], values[i]);
+                recorder.Record("tallowbrook.search.latency", [("region", Regions[i % 3]), ("pod", "p" + t)], values[i]);
             }
         }))];
         await Task.WhenAll(producers);
@@ -34,7 +34,7 @@ public sealed class RecorderDisposalTests
         Assert.Equal(36_000, stats.ValuesAcknowledged);
         Assert.Equal(0, stats.ValuesAbandoned + stats.ValuesDropped + stats.ValuesHeld);
 
-        var reply = await server.Client.SummarizeAsync(Selection.Of("northwind.search.latency"), SummaryWindow.Last(TimeSpan.FromHours(1)), new SummarizeOptions { GroupBy = ["region"] });
+        var reply = await server.Client.SummarizeAsync(Selection.Of("tallowbrook.search.latency"), SummaryWindow.Last(TimeSpan.FromHours(1)), new SummarizeOptions { GroupBy = ["region"] });
         Assert.Equal(Regions.Order(StringComparer.Ordinal), reply.Groups.Select(g => g.Labels["region"]));
         foreach (GroupSummary group in reply.Groups)
         {

@@ -19,7 +19,7 @@ public sealed class RecorderRestartTests
 
         await using (var recorder = new MeasurementRecorder(server.Client, Measurements.Quick))
         {
-            RecordedSeries checkout = recorder.Series("northwind.checkout.latency", ("region", "north"));
+            RecordedSeries checkout = recorder.Series("tallowbrook.checkout.latency", ("region", "north"));
             foreach (double value in before)
             {
                 checkout.Record(value);
@@ -30,7 +30,7 @@ public sealed class RecorderRestartTests
 
             foreach (double value in during)
             {
-                recorder.Record("northwind.checkout.latency", [("region", "north")], value);
+                recorder.Record("tallowbrook.checkout.latency", [("region", "north")], value);
             }
 
             // Let the recorder seal batches and fail to deliver them at least once.
@@ -50,7 +50,7 @@ public sealed class RecorderRestartTests
         }
 
         double[] all = [.. before, .. during, .. after];
-        Summary summary = await server.Client.SummaryOfAsync("northwind.checkout.latency");
+        Summary summary = await server.Client.SummaryOfAsync("tallowbrook.checkout.latency");
         Assert.Equal((ulong)all.Length, summary.Count);
 
         // Plain arithmetic: eighths add exactly in binary floating point, so the sums must agree to the bit.
@@ -78,18 +78,18 @@ public sealed class RecorderRestartTests
         {
             foreach (double value in first)
             {
-                recorder.Record("northwind.cart.size", value);
+                recorder.Record("tallowbrook.cart.size", value);
             }
 
             await recorder.FlushAsync().WaitAsync(TimeSpan.FromSeconds(20));
             proxy.SwallowReplies();
             foreach (double value in unheard)
             {
-                recorder.Record("northwind.cart.size", value);
+                recorder.Record("tallowbrook.cart.size", value);
             }
 
             // The server applies the batches (asked directly, not through the proxy) while the recorder hears nothing.
-            await WaitUntilAsync(async () => (await server.Client.SummaryOfAsync("northwind.cart.size")).Count == 2000, TimeSpan.FromSeconds(20));
+            await WaitUntilAsync(async () => (await server.Client.SummaryOfAsync("tallowbrook.cart.size")).Count == 2000, TimeSpan.FromSeconds(20));
             Assert.Equal(unheard.Length, recorder.Statistics.ValuesHeld);
 
             proxy.CutAndHeal();
@@ -101,7 +101,7 @@ public sealed class RecorderRestartTests
         }
 
         double[] all = [.. first, .. unheard];
-        Summary summary = await server.Client.SummaryOfAsync("northwind.cart.size");
+        Summary summary = await server.Client.SummaryOfAsync("tallowbrook.cart.size");
         Assert.Equal(2000ul, summary.Count);
         Assert.Equal(all.Sum(), summary.Sum); // plain arithmetic; eighths add exactly
     }
