@@ -1,6 +1,7 @@
 using System.Security.Cryptography;
 using System.Text;
 using Grpc.Core;
+using Grpc.Net.Client;
 using SummaryService.Client.Recording;
 using SummaryService.Client.Tests.Support;
 
@@ -26,7 +27,14 @@ public sealed class ApiKeyTests
             ["Auth__Keys__0__Scopes__2"] = "admin",
         });
 
-        using var keyed = new SummaryClient(new SummaryClientOptions { Address = server.Address, ApiKey = Key });
+        // A borrowed channel: the client adds the key to each call and leaves the channel open when disposed.
+        using GrpcChannel channel = GrpcChannel.ForAddress(server.Address);
+        using (var borrowing = new SummaryClient(channel, Key))
+        {
+            Assert.Empty(await borrowing.ListSeriesAsync());
+        }
+
+        using var keyed = new SummaryClient(channel, Key);
         await using (var recorder = new MeasurementRecorder(keyed, Measurements.Quick))
         {
             recorder.Record("tallowbrook.login.latency", 12.5);
