@@ -1,0 +1,20 @@
+using SummaryService.Contract.V1;
+
+namespace SummaryService.Client;
+
+/// <summary>Builds the contract's <see cref="Selector"/>: one metric, and labels every merged series must carry.</summary>
+public static class Selection
+{
+    /// <summary>Every series of <paramref name="metric"/> whose labels include all of <paramref name="matchLabels"/>.</summary>
+    public static Selector Of(string metric, params ReadOnlySpan<(string Name, string Value)> matchLabels)
+    {
+        ArgumentException.ThrowIfNullOrEmpty(metric);
+        var selector = new Selector { Metric = metric };
+        foreach (var (name, value) in matchLabels)
+        {
+            selector.MatchLabels[name] = value;
+        }
+
+        return selector;
+    }
+}
