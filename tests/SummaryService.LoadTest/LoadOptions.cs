@@ -53,6 +53,9 @@ public sealed record LoadOptions
     /// <summary>Upper bound on the whole run (<c>--timeout-minutes</c>).</summary>
     public int TimeoutMinutes { get; init; } = 30;
 
+    /// <summary>The real server's build to start (<c>--server-dll</c>); the Release build beside this program when absent.</summary>
+    public string? ServerDll { get; init; }
+
     /// <summary>Extra environment for the real server, <c>--server-env Name=Value</c> (repeatable).</summary>
     public IReadOnlyDictionary<string, string> ServerEnvironment { get; init; } = new Dictionary<string, string>();
 
@@ -94,6 +97,7 @@ public sealed record LoadOptions
                 "--window-repeats" => options with { WindowRepeats = Positive(name, value) },
                 "--timeout-minutes" => options with { TimeoutMinutes = Positive(name, value) },
                 "--server-env" => AddEnvironment(options, environment, value),
+                "--server-dll" => options with { ServerDll = Path.GetFullPath(value) },
                 _ => throw new ArgumentException($"unknown option {name}."),
             };
         }
@@ -110,7 +114,8 @@ public sealed record LoadOptions
     public string CommandLine() =>
         string.Create(CultureInfo.InvariantCulture, $"--series {Series} --batch {BatchSize} --per-bucket {PerBucket} --buckets {Buckets} --producers {Producers} --inflight {Inflight} --queriers {Queriers} --query-pause-ms {QueryPauseMs} --seconds {Seconds} --durability {Durability} --seed {Seed}")
         + (Baseline ? "" : " --no-baseline")
-        + string.Concat(ServerEnvironment.Select(e => $" --server-env {e.Key}={e.Value}"));
+        + string.Concat(ServerEnvironment.Select(e => $" --server-env {e.Key}={e.Value}"))
+        + (ServerDll is null ? "" : $" --server-dll {ServerDll}");
 
     private static LoadOptions AddEnvironment(LoadOptions options, Dictionary<string, string> environment, string value)
     {

@@ -27,12 +27,12 @@ public sealed class TargetRun(LoadOptions options, LoadPlan plan, TimeProvider t
         {
             await using ChildServer server = baseline
                 ? await ChildServer.StartBaselineAsync(cancellationToken).ConfigureAwait(false)
-                : await ChildServer.StartSketchServerAsync(dataDirectory, options.Durability, options.ServerEnvironment, cancellationToken).ConfigureAwait(false);
+                : await ChildServer.StartSketchServerAsync(options.ServerDll, dataDirectory, options.Durability, options.ServerEnvironment, cancellationToken).ConfigureAwait(false);
             long startRss = ProcFigures.StatusBytes(server.Pid, "VmRSS");
             var channels = Enumerable.Range(0, options.Producers + options.Queriers + 1).Select(_ => Channel(server.Address)).ToArray();
             try
             {
-                Console.Error.WriteLine($"[{name}] back-fill: {plan.FillValues:N0} values into {plan.Series} series × {plan.Buckets} buckets");
+                Console.Error.WriteLine($"[{name}] pid {server.Pid}, back-fill: {plan.FillValues:N0} values into {plan.Series} series × {plan.Buckets} buckets");
                 IngestPhase fill = await IngestAsync(server, channels, live: false, cancellationToken).ConfigureAwait(false);
                 Console.Error.WriteLine($"[{name}] live: {options.Seconds} s, {options.Producers} producers, {options.Queriers} query clients");
                 var (live, queries) = await LiveAsync(server, channels, cancellationToken).ConfigureAwait(false);

@@ -33,11 +33,12 @@ public sealed class ChildServer : IAsyncDisposable
     public int Pid => _process.Id;
 
     /// <summary>The real server, configured through environment variables like an operator would.</summary>
-    public static Task<ChildServer> StartSketchServerAsync(string dataDirectory, string durability, IReadOnlyDictionary<string, string> extra, CancellationToken cancellationToken)
+    public static Task<ChildServer> StartSketchServerAsync(string? serverDll, string dataDirectory, string durability, IReadOnlyDictionary<string, string> extra, CancellationToken cancellationToken)
     {
         int port = ServerProcess.FreePort();
-        var info = new ProcessStartInfo("dotnet") { WorkingDirectory = Path.GetDirectoryName(ServerProcess.ServerDll)! };
-        info.ArgumentList.Add(ServerProcess.ServerDll);
+        string dll = serverDll ?? ServerProcess.ServerDll;
+        var info = new ProcessStartInfo("dotnet") { WorkingDirectory = Path.GetDirectoryName(dll)! };
+        info.ArgumentList.Add(dll);
         info.Environment["Kestrel__Endpoints__Grpc__Url"] = $"http://127.0.0.1:{port}";
         info.Environment["Kestrel__Endpoints__Http__Url"] = $"http://127.0.0.1:{ServerProcess.FreePort()}";
         info.Environment["Persistence__DataDirectory"] = dataDirectory;

@@ -17,7 +17,7 @@ public sealed class CpuMeter
     {
         _serverPid = serverPid;
         _server = ProcFigures.CpuSeconds(serverPid);
-        _generator = Process.GetCurrentProcess().TotalProcessorTime.TotalSeconds;
+        _generator = GeneratorCpuSeconds();
         _machine = ProcFigures.MachineCpuSeconds().Busy;
     }
 
@@ -26,8 +26,14 @@ public sealed class CpuMeter
     {
         double wall = Stopwatch.GetElapsedTime(_started).TotalSeconds;
         double server = ProcFigures.CpuSeconds(_serverPid) - _server;
-        double generator = Process.GetCurrentProcess().TotalProcessorTime.TotalSeconds - _generator;
+        double generator = GeneratorCpuSeconds() - _generator;
         double machine = ProcFigures.MachineCpuSeconds().Busy - _machine;
         return new CpuShare(server / wall, generator / wall, Math.Max(0, machine - server - generator) / wall, server);
+    }
+
+    private static double GeneratorCpuSeconds()
+    {
+        using var self = Process.GetCurrentProcess();
+        return self.TotalProcessorTime.TotalSeconds;
     }
 }
