@@ -34,6 +34,8 @@ public sealed class TargetRun(LoadOptions options, LoadPlan plan, TimeProvider t
             {
                 Console.Error.WriteLine($"[{name}] pid {server.Pid}, back-fill: {plan.FillValues:N0} values into {plan.Series} series × {plan.Buckets} buckets");
                 IngestPhase fill = await IngestAsync(server, channels, live: false, cancellationToken).ConfigureAwait(false);
+                // Both targets hold exactly the back-fill here, so this is where their memory compares.
+                long fillRss = ProcFigures.StatusBytes(server.Pid, "VmRSS");
                 Console.Error.WriteLine($"[{name}] live: {options.Seconds} s, {options.Producers} producers, {options.Queriers} query clients");
                 var (live, queries) = await LiveAsync(server, channels, cancellationToken).ConfigureAwait(false);
                 Console.Error.WriteLine($"[{name}] checks");
@@ -43,7 +45,7 @@ public sealed class TargetRun(LoadOptions options, LoadPlan plan, TimeProvider t
                 long peak = ProcFigures.StatusBytes(server.Pid, "VmHWM");
                 long end = ProcFigures.StatusBytes(server.Pid, "VmRSS");
                 double cpu = ProcFigures.CpuSeconds(server.Pid);
-                return new TargetFigures(name, startRss, fill, live, queries, window, checks, peak, end, cpu, store);
+                return new TargetFigures(name, startRss, fillRss, fill, live, queries, window, checks, peak, end, cpu, store);
             }
             finally
             {

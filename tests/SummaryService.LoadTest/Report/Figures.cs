@@ -14,6 +14,9 @@ public sealed record IngestPhase(long Values, double Seconds, LatencySummary? Ac
 {
     /// <summary>Values acknowledged per second.</summary>
     public double ValuesPerSecond => Seconds > 0 ? Values / Seconds : 0;
+
+    /// <summary>Server CPU time per value acknowledged: the cost a busy machine inflates least.</summary>
+    public double ServerCpuNsPerValue => Values > 0 ? Cpu.ServerCpuSeconds * 1e9 / Values : 0;
 }
 
 /// <summary>Cores in use during a phase: the server under test, this generator, and everything else on the machine.</summary>
@@ -38,6 +41,7 @@ public sealed record StoreFigures(long Series, long Buckets, long EstimatedBytes
 public sealed record TargetFigures(
     string Target,
     long StartRssBytes,
+    long FillRssBytes,
     IngestPhase Fill,
     IngestPhase Live,
     LiveQueries Queries,

@@ -20,6 +20,8 @@ public static class ReportWriter
 
         ratios["fill_ingest_rate_sketch_over_baseline"] = Divide(sketch.Fill.ValuesPerSecond, baseline.Fill.ValuesPerSecond);
         ratios["live_ingest_rate_sketch_over_baseline"] = Divide(sketch.Live.ValuesPerSecond, baseline.Live.ValuesPerSecond);
+        ratios["rss_after_fill_baseline_over_sketch"] = Divide(baseline.FillRssBytes, sketch.FillRssBytes);
+        ratios["fill_data_rss_baseline_over_sketch"] = Divide(baseline.FillRssBytes - baseline.StartRssBytes, sketch.FillRssBytes - sketch.StartRssBytes);
         ratios["peak_rss_baseline_over_sketch"] = Divide(baseline.PeakRssBytes, sketch.PeakRssBytes);
         ratios["data_rss_baseline_over_sketch"] = Divide(baseline.EndRssBytes - baseline.StartRssBytes, sketch.EndRssBytes - sketch.StartRssBytes);
         ratios["summarize_p50_baseline_over_sketch"] = Divide(baseline.Queries.Summarize?.P50Ms, sketch.Queries.Summarize?.P50Ms);
@@ -44,15 +46,19 @@ public static class ReportWriter
         Row(output, "back-fill values/s", Rate(s.Fill), b is null ? "" : Rate(b.Fill), Ratio(run, "fill_ingest_rate_sketch_over_baseline"));
         Row(output, "back-fill ack p50 / p99 ms", Latency(s.Fill.Acks), b is null ? "" : Latency(b.Fill.Acks), "");
         Row(output, "back-fill cores: server / generator / others", Cores(s.Fill.Cpu), b is null ? "" : Cores(b.Fill.Cpu), "");
+        Row(output, "back-fill server CPU ns per value", Ns(s.Fill), b is null ? "" : Ns(b.Fill), "");
         Row(output, "live values/s (queries running)", Rate(s.Live), b is null ? "" : Rate(b.Live), Ratio(run, "live_ingest_rate_sketch_over_baseline"));
         Row(output, "live ack p50 / p99 ms", Latency(s.Live.Acks), b is null ? "" : Latency(b.Live.Acks), "");
         Row(output, "live cores: server / generator / others", Cores(s.Live.Cpu), b is null ? "" : Cores(b.Live.Cpu), "");
+        Row(output, "live server CPU ns per value (with queries)", Ns(s.Live), b is null ? "" : Ns(b.Live), "");
         Row(output, "Summarize 1 h, one series: p50 / p99 ms", Latency(s.Queries.Summarize), b is null ? "" : Latency(b.Queries.Summarize), Ratio(run, "summarize_p99_baseline_over_sketch"));
         Row(output, "Series 6 h at 1 min, one series: p50 / p99 ms", Latency(s.Queries.Series), b is null ? "" : Latency(b.Queries.Series), Ratio(run, "series_p99_baseline_over_sketch"));
         Row(output, "queries answered (Summarize + Series)", Count(s.Queries), b is null ? "" : Count(b.Queries), "");
         Row(output, $"all series, 1 h ({s.Window.Values:N0} values): first / p50 ms", Window(s.Window), b is null ? "" : Window(b.Window), Ratio(run, "all_series_window_p50_baseline_over_sketch"));
         Row(output, "server CPU seconds (whole run)", F(s.ServerCpuSeconds, "0.0"), b is null ? "" : F(b.ServerCpuSeconds, "0.0"), "");
-        Row(output, "peak RSS (VmHWM)", Mb(s.PeakRssBytes), b is null ? "" : Mb(b.PeakRssBytes), Ratio(run, "peak_rss_baseline_over_sketch"));
+        Row(output, "RSS after back-fill (same values held)", Mb(s.FillRssBytes), b is null ? "" : Mb(b.FillRssBytes), Ratio(run, "rss_after_fill_baseline_over_sketch"));
+        Row(output, "RSS after back-fill − RSS at start", Mb(s.FillRssBytes - s.StartRssBytes), b is null ? "" : Mb(b.FillRssBytes - b.StartRssBytes), Ratio(run, "fill_data_rss_baseline_over_sketch"));
+        Row(output, "peak RSS (VmHWM, after live phase too)", Mb(s.PeakRssBytes), b is null ? "" : Mb(b.PeakRssBytes), Ratio(run, "peak_rss_baseline_over_sketch"));
         Row(output, "RSS at end − RSS at start", Mb(s.EndRssBytes - s.StartRssBytes), b is null ? "" : Mb(b.EndRssBytes - b.StartRssBytes), Ratio(run, "data_rss_baseline_over_sketch"));
         if (s.Store is { } store)
         {
@@ -96,6 +102,8 @@ public static class ReportWriter
     private static string Short(string window) => window.Replace(", last back-filled hour", "", StringComparison.Ordinal);
 
     private static string Rate(IngestPhase phase) => $"{phase.ValuesPerSecond / 1e6:0.00} M ({phase.Values / 1e6:0.0} M in {phase.Seconds:0.0} s)";
+
+    private static string Ns(IngestPhase phase) => $"{phase.ServerCpuNsPerValue:N0}";
 
     private static string Latency(LatencySummary? latency) => latency is null ? "–" : $"{latency.P50Ms:0.00} / {latency.P99Ms:0.00}";
 
