@@ -47,7 +47,7 @@ public sealed record LoadOptions
     /// <summary>Single series whose last hour is checked for rank error (<c>--check-series</c>).</summary>
     public int CheckSeries { get; init; } = 3;
 
-    /// <summary>Repeats of the all-series window query (<c>--window-repeats</c>).</summary>
+    /// <summary>Repeats of the all-series window query (<c>--window-repeats</c>; 0 skips it, e.g. at 10,000 series, where the store holds a copy of every bucket of every series for it).</summary>
     public int WindowRepeats { get; init; } = 3;
 
     /// <summary>Upper bound on the whole run (<c>--timeout-minutes</c>).</summary>
@@ -94,7 +94,7 @@ public sealed record LoadOptions
                 "--json-out" => options with { JsonOut = value },
                 "--seed" => options with { Seed = ulong.Parse(value, CultureInfo.InvariantCulture) },
                 "--check-series" => options with { CheckSeries = NonNegative(name, value) },
-                "--window-repeats" => options with { WindowRepeats = Positive(name, value) },
+                "--window-repeats" => options with { WindowRepeats = NonNegative(name, value) },
                 "--timeout-minutes" => options with { TimeoutMinutes = Positive(name, value) },
                 "--server-env" => AddEnvironment(options, environment, value),
                 "--server-dll" => options with { ServerDll = Path.GetFullPath(value) },
