@@ -5,25 +5,9 @@ using SummaryService.Store;
 
 namespace SummaryService.Server.Mapping;
 
-/// <summary>Ingest messages to store inputs; the store validates names, labels, values and times.</summary>
+/// <summary>Sketch uploads to store inputs (batches go through <see cref="RentedBatch"/>); the store validates names, labels and times.</summary>
 public static class IngestMapping
 {
-    /// <summary>The store batch of a wire batch.</summary>
-    public static SeriesBatch ToStore(Batch batch)
-    {
-        ArgumentNullException.ThrowIfNull(batch);
-        return new SeriesBatch
-        {
-            Metric = batch.Metric,
-            Labels = new Dictionary<string, string>(batch.Labels, StringComparer.Ordinal),
-            Values = batch.Values.ToArray(),
-            TimeUnixMs = batch.TimeUnixMs,
-            ValueTimesUnixMs = batch.ValueTimesUnixMs.ToArray(),
-            Producer = batch.Producer,
-            Sequence = batch.Sequence,
-        };
-    }
-
     /// <summary>The store upload of a wire upload; a missing or malformed sketch is InvalidArgument naming the field at fault.</summary>
     public static Store.SketchUpload ToStore(Contract.V1.SketchUpload upload)
     {

@@ -39,9 +39,22 @@ public static class SummaryMapping
         Set(summary.MadLow, v => proto.MadLow = v);
         Set(summary.MadHigh, v => proto.MadHigh = v);
         Set(summary.QuartileSkewness, v => proto.QuartileSkewness = v);
-        proto.Quantiles.AddRange(summary.Quantiles.Select(ToProto));
-        proto.Ranks.AddRange(summary.Ranks.Select(r => new RankEstimate { Value = r.Value, Fraction = r.Fraction, Low = r.Low, High = r.High }));
-        proto.Modes.AddRange(summary.Modes.Select(m => new ModeEstimate { Value = m.Value, Count = (ulong)m.Count, CountLow = (ulong)m.CountLow, CountHigh = (ulong)m.CountHigh }));
+        // Loops, not LINQ: a Series answer maps one summary per step, hundreds per call.
+        foreach (var q in summary.Quantiles)
+        {
+            proto.Quantiles.Add(ToProto(q));
+        }
+
+        foreach (var r in summary.Ranks)
+        {
+            proto.Ranks.Add(new RankEstimate { Value = r.Value, Fraction = r.Fraction, Low = r.Low, High = r.High });
+        }
+
+        foreach (var m in summary.Modes)
+        {
+            proto.Modes.Add(new ModeEstimate { Value = m.Value, Count = (ulong)m.Count, CountLow = (ulong)m.CountLow, CountHigh = (ulong)m.CountHigh });
+        }
+
         if (summary.FiveNumber is { } five)
         {
             proto.FiveNumber = new FiveNumberSummary { Min = five.Min, LowerQuartile = ToProto(five.LowerQuartile), Median = ToProto(five.Median), UpperQuartile = ToProto(five.UpperQuartile), Max = five.Max };
@@ -50,7 +63,10 @@ public static class SummaryMapping
         if (summary.Histogram is { } bins)
         {
             proto.Histogram = new Histogram();
-            proto.Histogram.Bins.AddRange(bins.Select(b => new HistogramBin { Lower = b.Lower, Upper = b.Upper, Count = b.Count, CountLow = b.CountLow, CountHigh = b.CountHigh }));
+            foreach (var b in bins)
+            {
+                proto.Histogram.Bins.Add(new HistogramBin { Lower = b.Lower, Upper = b.Upper, Count = b.Count, CountLow = b.CountLow, CountHigh = b.CountHigh });
+            }
         }
 
         return proto;
@@ -68,7 +84,10 @@ public static class SummaryMapping
     {
         ArgumentNullException.ThrowIfNull(window);
         var reply = new SummarizeReply { Covered = ToProto(window.Covered) };
-        reply.Groups.AddRange(window.Groups.Select(ToProto));
+        foreach (Store.GroupSummary group in window.Groups)
+        {
+            reply.Groups.Add(ToProto(group));
+        }
         return reply;
     }
 

@@ -1,3 +1,4 @@
+using System.Threading.Channels;
 using Grpc.Core;
 using SummaryService.Contract.V1;
 using SummaryService.Server.Auth;
@@ -16,6 +17,9 @@ namespace SummaryService.Server.Services;
 /// </summary>
 public sealed class IngestService(StoreHost host, ServerMetrics metrics, IHostApplicationLifetime lifetime) : Ingest.IngestBase
 {
+    /// <summary>Applied batches a stream may hold unanswered while their log group commits.</summary>
+    internal const int MaxUnansweredBatches = 32;
+
     /// <inheritdoc/>
     public override Task<PushReply> Push(Batch request, ServerCallContext context)
     {
@@ -27,8 +31,15 @@ public sealed class IngestService(StoreHost host, ServerMetrics metrics, IHostAp
 
     /// <summary>
     /// One reply per batch, in order. A refused batch gets an error reply and the stream goes on.
-    /// When the host stops, the batch in hand is finished and answered, then the stream ends cleanly.
+    /// When the host stops, every batch read so far is finished and answered, then the stream ends cleanly.
     /// </summary>
+    /// <remarks>
+    /// Batches are applied in arrival order as they are read, and each reply is sent once its batch is
+    /// durable. Reading does not wait for the log: a stream that waited for each fsync before reading
+    /// the next batch would carry one batch per group commit, however fast the store applies them.
+    /// At most <see cref="MaxUnansweredBatches"/> applied batches wait for their replies; beyond that
+    /// reading pauses, so a producer cannot run ahead of the disk without bound.
+    /// </remarks>
     public override async Task PushStream(IAsyncStreamReader<Batch> requestStream, IServerStreamWriter<PushReply> responseStream, ServerCallContext context)
     {
         ArgumentNullException.ThrowIfNull(requestStream);
@@ -36,32 +47,69 @@ public sealed class IngestService(StoreHost host, ServerMetrics metrics, IHostAp
         ArgumentNullException.ThrowIfNull(context);
         CallerAccess access = CallerAccess.Of(context);
         using var reading = CancellationTokenSource.CreateLinkedTokenSource(context.CancellationToken, lifetime.ApplicationStopping);
+        var unanswered = Channel.CreateBounded<Task<PushReply>>(new BoundedChannelOptions(MaxUnansweredBatches) { SingleReader = true, SingleWriter = true });
+        Task answering = AnswerInOrderAsync(unanswered, responseStream, context.CancellationToken);
         try
         {
             await foreach (Batch batch in requestStream.ReadAllAsync(reading.Token).ConfigureAwait(false))
             {
-                PushReply reply;
-                try
-                {
-                    access.Require(Scope.Write, batch.Metric, "metric");
-                    reply = await ApplyAsync(batch, context.CancellationToken).ConfigureAwait(false);
-                }
-                catch (StoreRejectedException ex)
-                {
-                    reply = ErrorReply(batch.Sequence, RpcErrors.CodeOf(ex), ex.Message, ex.Field);
-                }
-                catch (RpcException ex) when (ex.StatusCode == StatusCode.PermissionDenied)
-                {
-                    metrics.BatchRejected("PermissionDenied");
-                    reply = ErrorReply(batch.Sequence, ex.StatusCode, ex.Status.Detail, "metric");
-                }
-
-                await responseStream.WriteAsync(reply, context.CancellationToken).ConfigureAwait(false);
+                await unanswered.Writer.WriteAsync(StartBatch(batch, access, context.CancellationToken), context.CancellationToken).ConfigureAwait(false);
             }
         }
         catch (OperationCanceledException) when (lifetime.ApplicationStopping.IsCancellationRequested && !context.CancellationToken.IsCancellationRequested)
         {
-            // Draining on shutdown: every batch read so far has been answered.
+            // Draining on shutdown: the batches read so far are answered below.
+        }
+        finally
+        {
+            unanswered.Writer.TryComplete();
+            await answering.ConfigureAwait(false);
+        }
+    }
+
+    // Applies the batch now (the store applies synchronously and returns a task for durability);
+    // a refusal becomes the batch's error reply when its turn to be answered comes.
+    private Task<PushReply> StartBatch(Batch batch, CallerAccess access, CancellationToken cancellationToken)
+    {
+        try
+        {
+            access.Require(Scope.Write, batch.Metric, "metric");
+        }
+        catch (RpcException ex) when (ex.StatusCode == StatusCode.PermissionDenied)
+        {
+            metrics.BatchRejected("PermissionDenied");
+            return Task.FromResult(ErrorReply(batch.Sequence, ex.StatusCode, ex.Status.Detail, "metric"));
+        }
+
+        return ReplyOrErrorAsync(batch, cancellationToken);
+    }
+
+    private async Task<PushReply> ReplyOrErrorAsync(Batch batch, CancellationToken cancellationToken)
+    {
+        try
+        {
+            return await ApplyAsync(batch, cancellationToken).ConfigureAwait(false);
+        }
+        catch (StoreRejectedException ex)
+        {
+            return ErrorReply(batch.Sequence, RpcErrors.CodeOf(ex), ex.Message, ex.Field);
+        }
+    }
+
+    private static async Task AnswerInOrderAsync(Channel<Task<PushReply>> unanswered, IServerStreamWriter<PushReply> responseStream, CancellationToken cancellationToken)
+    {
+        try
+        {
+            await foreach (Task<PushReply> reply in unanswered.Reader.ReadAllAsync(CancellationToken.None).ConfigureAwait(false))
+            {
+                await responseStream.WriteAsync(await reply.ConfigureAwait(false), cancellationToken).ConfigureAwait(false);
+            }
+        }
+        catch (Exception ex)
+        {
+            // The reader must not wait on a channel nobody drains any more.
+            unanswered.Writer.TryComplete(ex);
+            throw;
         }
     }
 
@@ -99,7 +147,8 @@ public sealed class IngestService(StoreHost host, ServerMetrics metrics, IHostAp
     {
         try
         {
-            AppendResult result = await host.Store.AppendAsync(IngestMapping.ToStore(batch), cancellationToken).ConfigureAwait(false);
+            using var rented = new RentedBatch(batch);
+            AppendResult result = await host.Store.AppendAsync(rented.Batch, cancellationToken).ConfigureAwait(false);
             metrics.ValuesIngested(result.Accepted);
             return new PushReply { Sequence = batch.Sequence, Accepted = (ulong)result.Accepted, Duplicate = result.Duplicate };
         }

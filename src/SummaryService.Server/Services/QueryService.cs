@@ -27,8 +27,9 @@ public sealed class QueryService(StoreHost host, ServerMetrics metrics, TimeProv
         long started = time.GetTimestamp();
         var (selector, groupBy, options) = Prepare(request, context);
         StoreTimeRange window = QueryRequests.WindowOf(request.Window, "window", NowMs());
-        SelectionCheck.Require(host.Store, selector, groupBy, "selector");
-        SummarizeReply reply = SummaryMapping.ToProto(host.Store.Summarize(selector, window, groupBy, options));
+        var answer = host.Store.Summarize(selector, window, groupBy, options);
+        SelectionCheck.Require(answer, selector, groupBy, "selector");
+        SummarizeReply reply = SummaryMapping.ToProto(answer);
         metrics.QueryAnswered(nameof(Summarize), ServerMetrics.Since(time, started));
         return Task.FromResult(reply);
     }
@@ -64,14 +65,26 @@ public sealed class QueryService(StoreHost host, ServerMetrics metrics, TimeProv
 
         var groupBy = GroupByOf(request.GroupBy);
         SummaryOptions options = QueryRequests.OptionsOf(request.Quantiles, request.Confidence, [], 0, null);
-        SelectionCheck.Require(host.Store, selector, groupBy, "selector");
         var reply = new SeriesReply();
         for (long from = window.FromUnixMs; from < window.ToUnixMs; from += step)
         {
             var range = new StoreTimeRange(from, Math.Min(from + step, window.ToUnixMs));
             var answer = host.Store.Summarize(selector, range, groupBy, options);
+            if (from == window.FromUnixMs)
+            {
+                // Every step selects the same series, so the first answer tells whether any matched.
+                SelectionCheck.Require(answer, selector, groupBy, "selector");
+            }
+
             var point = new SeriesPoint { Step = SummaryMapping.ToProto(range), Covered = SummaryMapping.ToProto(answer.Covered) };
-            point.Groups.AddRange(answer.Groups.Where(g => g.Summary.Count > 0).Select(SummaryMapping.ToProto));
+            foreach (Store.GroupSummary group in answer.Groups)
+            {
+                if (group.Summary.Count > 0)
+                {
+                    point.Groups.Add(SummaryMapping.ToProto(group));
+                }
+            }
+
             reply.Points.Add(point);
         }
 
@@ -174,8 +187,8 @@ public sealed class QueryService(StoreHost host, ServerMetrics metrics, TimeProv
         StoreSelector selector = QueryRequests.SelectorOf(side.Selector, $"{name}.selector");
         CallerAccess.Of(context).Require(Scope.Read, selector.Metric, $"{name}.selector.metric");
         StoreTimeRange window = QueryRequests.WindowOf(side.Window, $"{name}.window", now);
-        SelectionCheck.Require(host.Store, selector, [], $"{name}.selector");
         var answer = host.Store.Summarize(selector, window, [], options);
+        SelectionCheck.Require(answer, selector, [], $"{name}.selector");
         return (answer.Groups[0], answer.Covered);
     }
 

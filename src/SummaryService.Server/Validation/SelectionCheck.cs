@@ -3,20 +3,25 @@ using SummaryService.Store;
 namespace SummaryService.Server.Validation;
 
 /// <summary>
-/// Checks a selection against the catalogue: a selector that matches no series is NotFound, and a
+/// Checks a selection by the answer it got: a selector that matched no series is NotFound, and a
 /// group-by label that none of the matched series carries is InvalidArgument — both are mistakes a
 /// person wants named rather than an empty answer.
 /// </summary>
+/// <remarks>
+/// The store answers with one group per combination of group-by values of every selected series
+/// (empty groups included), so the answer holds all the check needs. Asking the catalogue instead
+/// would visit every bucket of every series of the metric on each query, which at thousands of
+/// series costs more than the query itself.
+/// </remarks>
 public static class SelectionCheck
 {
-    /// <summary>Throws unless the selector matches a series and every group-by label is carried by one of them.</summary>
-    public static void Require(ISeriesStore store, Selector selector, IReadOnlyList<string> groupBy, string field)
+    /// <summary>Throws unless the answer merged a series and every group-by label is carried by one of them (label values are never empty).</summary>
+    public static void Require(WindowSummary answer, Selector selector, IReadOnlyList<string> groupBy, string field)
     {
-        ArgumentNullException.ThrowIfNull(store);
+        ArgumentNullException.ThrowIfNull(answer);
         ArgumentNullException.ThrowIfNull(selector);
         ArgumentNullException.ThrowIfNull(groupBy);
-        var matched = store.ListSeries(selector.Metric).Where(s => selector.Selects(s.Key)).ToArray();
-        if (matched.Length == 0)
+        if (answer.Groups.Count == 0)
         {
             string labels = string.Join(", ", selector.MatchLabels.Select(l => $"{l.Key}={l.Value}"));
             throw RpcErrors.NotFound(field, $"no series of metric '{selector.Metric}' matches {(labels.Length == 0 ? "the selector" : $"labels {labels}")}.");
@@ -25,9 +30,17 @@ public static class SelectionCheck
         for (int i = 0; i < groupBy.Count; i++)
         {
             string name = groupBy[i];
-            if (!matched.Any(s => s.Key.Label(name) is not null))
+            bool carried = false;
+            int matched = 0;
+            foreach (GroupSummary group in answer.Groups)
             {
-                throw RpcErrors.Invalid($"group_by[{i}]", $"group_by[{i}] is '{name}', a label none of the {matched.Length} matched series of '{selector.Metric}' carries.");
+                carried |= group.Labels.TryGetValue(name, out string? value) && value.Length > 0;
+                matched += group.SeriesMerged;
+            }
+
+            if (!carried)
+            {
+                throw RpcErrors.Invalid($"group_by[{i}]", $"group_by[{i}] is '{name}', a label none of the {matched} matched series of '{selector.Metric}' carries.");
             }
         }
     }
