@@ -11,8 +11,8 @@ namespace SummaryService.Sketches.Quantiles;
 /// </summary>
 /// <remarks>
 /// <para>Every value folded into a KLL sketch passes through exactly one level-0 sort, and on
-/// random data a comparison sort mispredicts about one branch per comparison, which made the sort
-/// most of the sketch's update cost. Here values become 64-bit keys whose signed order is the
+/// random data a comparison sort mispredicts about one branch per comparison, which made
+/// <see cref="MemoryExtensions.Sort{T}(Span{T})"/> about half of the sketch's update cost. Here values become 64-bit keys whose signed order is the
 /// order of the doubles (the sign-magnitude bits with the magnitude flipped for negatives, so
 /// −0 sorts just below +0), blocks of 8, 16 or 32 keys are sorted column-wise by a sorting network of
 /// vector compares and blends, and the columns are merged bottom-up by merges that select with
