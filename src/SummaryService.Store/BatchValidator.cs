@@ -44,14 +44,15 @@ internal sealed class BatchValidator(StoreOptions options)
         {
             long raw = perValue.Length == 0 ? batch.TimeUnixMs : perValue[i];
             long t = raw == 0 ? nowMs : raw;
-            string field = perValue.Length == 0 ? "time_unix_ms" : $"value_times_unix_ms[{i}]";
             if (t < oldest)
             {
+                string field = TimeField(perValue.Length, i);
                 throw new StoreRejectedException(RejectReason.TooOld, field, $"{field} is {t}, older than the retention limit {oldest} ({TimeSpan.FromMilliseconds(options.TotalRetentionMs)} before now).");
             }
 
             if (t > newest)
             {
+                string field = TimeField(perValue.Length, i);
                 throw new StoreRejectedException(RejectReason.TooFarInFuture, field, $"{field} is {t}, more than {options.MaxFuture} ahead of the store's clock ({nowMs}).");
             }
 
@@ -60,6 +61,10 @@ internal sealed class BatchValidator(StoreOptions options)
 
         return times;
     }
+
+    // Named only when a value is refused, so accepted batches format no per-value strings.
+    private static string TimeField(int perValueTimes, int index) =>
+        perValueTimes == 0 ? "time_unix_ms" : $"value_times_unix_ms[{index}]";
 
     private void ValidateName(string metric)
     {

@@ -46,17 +46,17 @@ internal sealed class CountMinTable
     {
         Span<int> cells = stackalloc int[Depth];
         FillCells(ModeKey.Hash(key), cells);
-        long estimate = long.MaxValue;
+        long[] counters = _counters;
+        long estimate = counters[cells[0]];
         foreach (int cell in cells)
         {
-            estimate = Math.Min(estimate, _counters[cell]);
+            estimate = MinOf(estimate, counters[cell]);
         }
 
         long raised = estimate + count;
         foreach (int cell in cells)
         {
-            // Branch-free raise: the comparison is unpredictable, the max is not.
-            _counters[cell] = Math.Max(_counters[cell], raised);
+            counters[cell] = MaxOf(counters[cell], raised);
         }
 
         return raised;
@@ -66,13 +66,70 @@ internal sealed class CountMinTable
     {
         Span<int> cells = stackalloc int[Depth];
         FillCells(ModeKey.Hash(key), cells);
-        long estimate = long.MaxValue;
+        long estimate = _counters[cells[0]];
         foreach (int cell in cells)
         {
-            estimate = Math.Min(estimate, _counters[cell]);
+            estimate = MinOf(estimate, _counters[cell]);
         }
 
         return estimate;
+    }
+
+    /// <summary>
+    /// Hashes a batch of keys up front, row by row: <paramref name="cells"/>[row · n + i] is key i's
+    /// cell in that row, exactly as <see cref="Add"/> picks it. The mixes are independent per key, so
+    /// done this way they pipeline instead of sitting on the chain of table updates.
+    /// </summary>
+    /// <param name="keys">The batch's keys, n of them.</param>
+    /// <param name="hashes">Scratch of at least n entries.</param>
+    /// <param name="cells">Receives n · <see cref="Depth"/> cell indices.</param>
+    public void FillCells(ReadOnlySpan<long> keys, Span<ulong> hashes, Span<int> cells)
+    {
+        int n = keys.Length;
+        for (int i = 0; i < n; i++)
+        {
+            hashes[i] = ModeKey.Hash(keys[i]);
+        }
+
+        ulong width = (ulong)Width;
+        for (int row = 0; row < Depth; row += 2)
+        {
+            Span<int> low = cells.Slice(row * n, n);
+            int lowBase = row * Width;
+            ulong step = (ulong)(row >> 1) * 0x9E3779B97F4A7C15UL;
+            bool pair = row + 1 < Depth;
+            Span<int> high = pair ? cells.Slice((row + 1) * n, n) : default;
+            int highBase = lowBase + Width;
+            for (int i = 0; i < n; i++)
+            {
+                ulong word = row == 0 ? hashes[i] : SplitMix64.Mix(hashes[i] + step);
+                low[i] = lowBase + (int)(((word & 0xFFFF_FFFFUL) * width) >> 32);
+                if (pair)
+                {
+                    high[i] = highBase + (int)(((word >> 32) * width) >> 32);
+                }
+            }
+        }
+    }
+
+    /// <summary>As <see cref="Add"/> for key i of a batch whose cells <see cref="FillCells(ReadOnlySpan{long}, Span{ulong}, Span{int})"/> gave.</summary>
+    public long AddAt(ReadOnlySpan<int> cells, int i, int n, long count)
+    {
+        long[] counters = _counters;
+        long estimate = counters[cells[i]];
+        for (int at = i + n; at < cells.Length; at += n)
+        {
+            estimate = MinOf(estimate, counters[cells[at]]);
+        }
+
+        long raised = estimate + count;
+        for (int at = i; at < cells.Length; at += n)
+        {
+            int cell = cells[at];
+            counters[cell] = MaxOf(counters[cell], raised);
+        }
+
+        return raised;
     }
 
     /// <summary>Adds another table of the same shape cell by cell; estimates stay over-counts of the combined stream.</summary>
@@ -83,6 +140,21 @@ internal sealed class CountMinTable
         {
             _counters[i] += theirs[i];
         }
+    }
+
+    // Min and max by arithmetic: which cell is lowest is a coin toss on every update, and the JIT
+    // turns Math.Min/Max on longs into branches that mispredict about half the time. Exact for
+    // counters, which are never negative, so a − b cannot overflow.
+    private static long MinOf(long a, long b)
+    {
+        long d = a - b;
+        return b + (d & (d >> 63));
+    }
+
+    private static long MaxOf(long a, long b)
+    {
+        long d = a - b;
+        return a - (d & (d >> 63));
     }
 
     public CountMinTable Clone() => new(Width, Depth, (long[])_counters.Clone());

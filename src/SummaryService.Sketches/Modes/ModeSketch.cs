@@ -113,9 +113,50 @@ public sealed class ModeSketch
     internal void AddUnchecked(ReadOnlySpan<double> values)
     {
         double resolution = Resolution;
-        foreach (double v in values)
+        int next = 0;
+        while (_exact is not null && next < values.Length)
         {
-            AddKey(ModeKey.Of(v, resolution), 1);
+            AddKey(ModeKey.Of(values[next++], resolution), 1);
+        }
+
+        if (next < values.Length)
+        {
+            AddToTable(values[next..]);
+        }
+    }
+
+    // The same updates in the same order as one AddKey per value, so the table and the candidates
+    // end up exactly as they would; only the hashing of each chunk is done ahead of its updates.
+    private void AddToTable(ReadOnlySpan<double> values)
+    {
+        const int Chunk = 64;
+        int depth = Depth;
+        double resolution = Resolution;
+        CountMinTable table = _table!;
+        Span<long> keys = stackalloc long[Chunk];
+        Span<ulong> hashes = stackalloc ulong[Chunk];
+        Span<int> cells = stackalloc int[Chunk * depth];
+        for (int start = 0; start < values.Length; start += Chunk)
+        {
+            ReadOnlySpan<double> chunk = values.Slice(start, Math.Min(Chunk, values.Length - start));
+            int n = chunk.Length;
+            for (int i = 0; i < n; i++)
+            {
+                keys[i] = ModeKey.Of(chunk[i], resolution);
+            }
+
+            ReadOnlySpan<int> chunkCells = cells[..(n * depth)];
+            table.FillCells(keys[..n], hashes, cells);
+            for (int i = 0; i < n; i++)
+            {
+                long estimate = table.AddAt(chunkCells, i, n, 1);
+                if (_candidateCount < CandidateLimit || estimate > _candidateFloor)
+                {
+                    TrackCandidate(keys[i], estimate);
+                }
+            }
+
+            Count += n;
         }
     }
 

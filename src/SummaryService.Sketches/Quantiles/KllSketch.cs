@@ -31,6 +31,9 @@ public sealed class KllSketch
     /// <summary>No level is narrower than this, so low levels still compact in useful batches.</summary>
     public const int MinLevelWidth = 8;
 
+    /// <summary>Items an emptied level may keep in its buffer however narrow the level (512 bytes).</summary>
+    internal const int NarrowLevelBuffer = 8 * MinLevelWidth;
+
     /// <summary>Enough levels for 2^62 values at any k.</summary>
     internal const int MaxLevels = 62;
 
@@ -184,24 +187,31 @@ public sealed class KllSketch
 
         double min = values[0];
         double max = values[0];
+        foreach (double v in values)
+        {
+            min = Math.Min(min, v);
+            max = Math.Max(max, v);
+        }
+
+        // A full sketch compacts every few values, so the span goes in as many small chunks, each
+        // as large as the room left; the per-chunk work is kept to a few comparisons.
+        int level0Limit = Level0Limit(K, _levelCount);
         int next = 0;
         while (next < values.Length)
         {
-            if (_retained >= _capacity || _sizes[0] >= Level0Limit(K, _levelCount))
+            if (_retained >= _capacity || _sizes[0] >= level0Limit)
             {
+                int levels = _levelCount;
                 Compress();
+                if (_levelCount != levels)
+                {
+                    level0Limit = Level0Limit(K, _levelCount);
+                }
             }
 
-            int take = Math.Min(Math.Min(_capacity - _retained, Level0Limit(K, _levelCount) - _sizes[0]), values.Length - next);
+            int take = Math.Min(Math.Min(_capacity - _retained, level0Limit - _sizes[0]), values.Length - next);
             EnsureRoom(0, take);
-            ReadOnlySpan<double> chunk = values.Slice(next, take);
-            chunk.CopyTo(_levels[0].AsSpan(_sizes[0]));
-            foreach (double v in chunk)
-            {
-                min = Math.Min(min, v);
-                max = Math.Max(max, v);
-            }
-
+            values.Slice(next, take).CopyTo(_levels[0].AsSpan(_sizes[0]));
             _sizes[0] += take;
             _retained += take;
             next += take;
@@ -283,7 +293,7 @@ public sealed class KllSketch
         // sequence of linear merges rather than a sort of everything.
         int filled = _sizes[0];
         _levels[0].AsSpan(0, filled).CopyTo(values);
-        values.AsSpan(0, filled).Sort();
+        RunSort.Sort(values.AsSpan(0, filled));
         weights.AsSpan(0, filled).Fill(1);
         for (int h = 1; h < _levelCount; h++)
         {
@@ -397,7 +407,7 @@ public sealed class KllSketch
         int size = _sizes[h];
         if (h == 0)
         {
-            items.AsSpan(0, size).Sort();
+            RunSort.Sort(items.AsSpan(0, size));
         }
 
         // An odd item out stays behind at this level with its weight; any even-sized sorted run
@@ -424,8 +434,10 @@ public sealed class KllSketch
 
         // A lazily compacted level can swell well past its capacity before its turn comes; once it
         // is emptied its buffer goes back to that capacity so a long-lived sketch stays near ~3k items.
+        // Narrow levels routinely swell to a few times their capacity between compactions, so their
+        // buffers are kept up to a small fixed size instead of being given back and regrown each time.
         int capacity = LevelCapacity(K, h, _levelCount);
-        if (items.Length > 2 * capacity)
+        if (items.Length > Math.Max(2 * capacity, NarrowLevelBuffer))
         {
             Array.Resize(ref _levels[h], capacity);
         }
