@@ -1,5 +1,6 @@
 using Grpc.Core;
 using Grpc.Net.Client;
+using SummaryService.Contract;
 using SummaryService.Contract.V1;
 
 namespace SummaryService.Client;

@@ -2,7 +2,6 @@ using System.Diagnostics;
 using System.Net;
 using System.Net.Sockets;
 using System.Text;
-using Grpc.Health.V1;
 using Grpc.Net.Client;
 
 namespace SummaryService.TestSupport;
@@ -120,23 +119,7 @@ public sealed class ServerProcess : IAsyncDisposable
     }
 
     /// <summary>SIGTERM, then waits for the graceful shutdown (final snapshot) to finish.</summary>
-    public async Task StopAsync()
-    {
-        if (_process.HasExited)
-        {
-            return;
-        }
-
-        using (var kill = Process.Start("kill", ["-TERM", _process.Id.ToString(System.Globalization.CultureInfo.InvariantCulture)]))
-        {
-            await kill.WaitForExitAsync();
-        }
-
-        if (!await WaitForExitAsync(TimeSpan.FromSeconds(20)))
-        {
-            _process.Kill(entireProcessTree: true);
-        }
-    }
+    public Task StopAsync() => ChildProcessControl.StopAsync(_process, TimeSpan.FromSeconds(20));
 
     public async ValueTask DisposeAsync()
     {
@@ -144,35 +127,8 @@ public sealed class ServerProcess : IAsyncDisposable
         _process.Dispose();
     }
 
-    private async Task WaitHealthyAsync(Func<GrpcChannel> channelFactory)
-    {
-        using GrpcChannel channel = channelFactory();
-        var health = new Health.HealthClient(channel);
-        for (int attempt = 0; attempt < 150; attempt++)
-        {
-            if (_process.HasExited)
-            {
-                throw new InvalidOperationException($"The server exited with {_process.ExitCode}:\n{Output}");
-            }
-
-            try
-            {
-                var reply = await health.CheckAsync(new HealthCheckRequest(), deadline: DateTime.UtcNow.AddSeconds(2));
-                if (reply.Status == HealthCheckResponse.Types.ServingStatus.Serving)
-                {
-                    return;
-                }
-            }
-            catch (Grpc.Core.RpcException)
-            {
-                // Not listening yet.
-            }
-
-            await Task.Delay(100);
-        }
-
-        throw new TimeoutException($"The server did not become healthy within 15 s:\n{Output}");
-    }
+    private Task WaitHealthyAsync(Func<GrpcChannel> channelFactory) =>
+        ChildProcessControl.WaitServingAsync(_process, channelFactory, () => Output, attempts: 150);
 
     private void Append(string? line)
     {

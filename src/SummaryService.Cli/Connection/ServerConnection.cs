@@ -1,6 +1,6 @@
 using Grpc.Core;
-using Grpc.Core.Interceptors;
 using Grpc.Net.Client;
+using SummaryService.Contract;
 using SummaryService.Contract.V1;
 
 namespace SummaryService.Cli.Connection;
@@ -24,13 +24,7 @@ public sealed class ServerConnection : IDisposable
             MaxReceiveMessageSize = 64 * 1024 * 1024,
             MaxSendMessageSize = 16 * 1024 * 1024,
         });
-        CallInvoker invoker = string.IsNullOrEmpty(apiKey)
-            ? _channel.CreateCallInvoker()
-            : _channel.CreateCallInvoker().Intercept(headers =>
-            {
-                headers.Add("authorization", $"Bearer {apiKey}");
-                return headers;
-            });
+        CallInvoker invoker = ApiKeyHeader.Wrap(_channel.CreateCallInvoker(), apiKey);
         Ingest = new Ingest.IngestClient(invoker);
         Query = new Query.QueryClient(invoker);
         Admin = new Admin.AdminClient(invoker);

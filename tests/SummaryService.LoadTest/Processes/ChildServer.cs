@@ -1,6 +1,5 @@
 using System.Diagnostics;
 using System.Globalization;
-using Grpc.Health.V1;
 using Grpc.Net.Client;
 using SummaryService.TestSupport;
 
@@ -64,28 +63,7 @@ public sealed class ChildServer : IAsyncDisposable
     }
 
     /// <summary>SIGTERM, then up to two minutes for the graceful stop (the final snapshot), then a kill.</summary>
-    public async Task StopAsync()
-    {
-        if (_process.HasExited)
-        {
-            return;
-        }
-
-        using (var kill = Process.Start("kill", ["-TERM", Pid.ToString(CultureInfo.InvariantCulture)]))
-        {
-            await kill.WaitForExitAsync().ConfigureAwait(false);
-        }
-
-        using var limit = new CancellationTokenSource(TimeSpan.FromMinutes(2));
-        try
-        {
-            await _process.WaitForExitAsync(limit.Token).ConfigureAwait(false);
-        }
-        catch (OperationCanceledException)
-        {
-            _process.Kill(entireProcessTree: true);
-        }
-    }
+    public Task StopAsync() => ChildProcessControl.StopAsync(_process, TimeSpan.FromMinutes(2));
 
     /// <summary>The child's last lines of output, for error reports.</summary>
     public string Tail()
@@ -123,35 +101,8 @@ public sealed class ChildServer : IAsyncDisposable
         }
     }
 
-    private async Task WaitHealthyAsync(CancellationToken cancellationToken)
-    {
-        using GrpcChannel channel = GrpcChannel.ForAddress(Address);
-        var health = new Health.HealthClient(channel);
-        for (int attempt = 0; attempt < 300; attempt++)
-        {
-            if (_process.HasExited)
-            {
-                throw new InvalidOperationException($"The server exited with {_process.ExitCode}:\n{Tail()}");
-            }
-
-            try
-            {
-                var reply = await health.CheckAsync(new HealthCheckRequest(), deadline: DateTime.UtcNow.AddSeconds(2), cancellationToken: cancellationToken).ConfigureAwait(false);
-                if (reply.Status == HealthCheckResponse.Types.ServingStatus.Serving)
-                {
-                    return;
-                }
-            }
-            catch (Grpc.Core.RpcException)
-            {
-                // Not listening yet.
-            }
-
-            await Task.Delay(100, cancellationToken).ConfigureAwait(false);
-        }
-
-        throw new TimeoutException($"The server did not become healthy within 30 s:\n{Tail()}");
-    }
+    private Task WaitHealthyAsync(CancellationToken cancellationToken) =>
+        ChildProcessControl.WaitServingAsync(_process, () => GrpcChannel.ForAddress(Address), Tail, attempts: 300, cancellationToken);
 
     private void Keep(string? line)
     {

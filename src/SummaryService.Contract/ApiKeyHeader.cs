@@ -1,15 +1,16 @@
 using Grpc.Core;
 using Grpc.Core.Interceptors;
 
-namespace SummaryService.Client;
+namespace SummaryService.Contract;
 
 /// <summary>
 /// Adds <c>authorization: Bearer &lt;key&gt;</c> to every call's metadata. A header interceptor is
 /// used rather than <see cref="CallCredentials"/> because call credentials are withheld on plaintext
 /// channels unless the channel was built with <c>UnsafeUseInsecureChannelCallCredentials</c>, which a
-/// borrowed channel may not have; the embedded server listens in plaintext on loopback.
+/// borrowed channel may not have; the embedded server listens in plaintext on loopback. Lives with the
+/// contract so that every .NET caller (client library, command-line tool) sends the key the same way.
 /// </summary>
-internal static class ApiKeyHeader
+public static class ApiKeyHeader
 {
     /// <summary>The header the server reads the key from.</summary>
     public const string Name = "authorization";
