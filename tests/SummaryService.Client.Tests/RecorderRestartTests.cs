@@ -66,6 +66,46 @@ public sealed class RecorderRestartTests
     }
 
     [Fact]
+    public async Task A_server_stopping_while_the_recorder_sends_refuses_nothing_and_loses_nothing()
+    {
+        await using LiveServer server = await LiveServer.StartAsync();
+        const int Values = 400_000; // bound on the recording loop; the stop comes part way through
+        double[] values = Measurements.Eighths(Values, seed: 16);
+        await using (var recorder = new MeasurementRecorder(server.Client, Measurements.Quick with { BufferCapacity = 2 * Values }))
+        {
+            RecordedSeries depth = recorder.Series("tallowbrook.queue.depth", ("lane", "east"));
+            Task stopping = Task.CompletedTask;
+            for (int i = 0; i < values.Length; i++)
+            {
+                depth.Record(values[i]);
+                if (i == Values / 4)
+                {
+                    // The stream is busy: batches are in flight when the server begins to stop.
+                    stopping = server.StopAsync();
+                }
+
+                if (i % 1000 == 0)
+                {
+                    await Task.Yield();
+                }
+            }
+
+            await stopping;
+            await server.RestartAsync();
+            await recorder.FlushAsync().WaitAsync(TimeSpan.FromSeconds(60));
+            RecorderStatistics stats = recorder.Statistics;
+
+            // Batches the stopping server answered "Unavailable" were sent again, not given up.
+            Assert.Equal(0, stats.ValuesRejected + stats.BatchesRejected + stats.ValuesDropped + stats.ValuesHeld);
+            Assert.Equal(Values, stats.ValuesAcknowledged);
+        }
+
+        Summary summary = await server.Client.SummaryOfAsync("tallowbrook.queue.depth");
+        Assert.Equal((ulong)Values, summary.Count);
+        Assert.Equal(values.Sum(), summary.Sum); // plain arithmetic; eighths add exactly
+    }
+
+    [Fact]
     public async Task Batches_applied_but_never_acknowledged_are_resent_and_counted_once()
     {
         await using LiveServer server = await LiveServer.StartAsync();

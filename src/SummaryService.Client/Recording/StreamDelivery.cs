@@ -9,6 +9,8 @@ namespace SummaryService.Client.Recording;
 /// the queue's head. When the stream breaks, the queue is kept, the stream reopened after a back-off,
 /// and every unanswered batch written again in order before anything new: the server acknowledges the
 /// ones it had applied as duplicates, so nothing is counted twice and nothing is lost.
+/// A stopping server marks its replies <c>stream_ending</c>: the recorder then writes nothing more,
+/// completes its side so the call ends cleanly, and sends what was left unapplied on the next stream.
 /// </summary>
 internal sealed class StreamDelivery(Ingest.IngestClient ingest, DeliveryLedger ledger, MeasurementRecorderOptions options, Random random) : IDelivery
 {
@@ -88,13 +90,19 @@ internal sealed class StreamDelivery(Ingest.IngestClient ingest, DeliveryLedger 
     {
         using var callStop = CancellationTokenSource.CreateLinkedTokenSource(stop);
         using AsyncDuplexStreamingCall<Batch, PushReply> call = ingest.PushStream(cancellationToken: callStop.Token);
-        Task<StatusCode?> replies = ReadRepliesAsync(call.ResponseStream, backoff, callStop.Token);
+        var ending = new TaskCompletionSource(TaskCreationOptions.RunContinuationsAsynchronously);
+        Task<StatusCode?> replies = ReadRepliesAsync(call.ResponseStream, backoff, ending, callStop.Token);
         string reason = "the server ended the stream";
         StatusCode? writeFailure = null;
         try
         {
             foreach (PendingUpload upload in UnansweredSnapshot())
             {
+                if (ending.Task.IsCompleted)
+                {
+                    break;
+                }
+
                 await call.RequestStream.WriteAsync(upload.Batch!, callStop.Token).ConfigureAwait(false);
                 ledger.Sent();
             }
@@ -102,7 +110,17 @@ internal sealed class StreamDelivery(Ingest.IngestClient ingest, DeliveryLedger 
             while (true)
             {
                 Task<bool> more = ledger.Outbox.WaitToReadAsync(callStop.Token).AsTask();
-                if (await Task.WhenAny(more, replies).ConfigureAwait(false) == replies)
+                Task first = ending.Task.IsCompleted ? ending.Task : await Task.WhenAny(more, replies, ending.Task).ConfigureAwait(false);
+                if (first == ending.Task)
+                {
+                    // The server is stopping: close our side so the call ends cleanly; the rest goes on the next stream.
+                    reason = "the server is stopping";
+                    await call.RequestStream.CompleteAsync().ConfigureAwait(false);
+                    await replies.ConfigureAwait(false);
+                    break;
+                }
+
+                if (first == replies)
                 {
                     break;
                 }
@@ -120,7 +138,7 @@ internal sealed class StreamDelivery(Ingest.IngestClient ingest, DeliveryLedger 
                     break;
                 }
 
-                while (ledger.Outbox.TryRead(out PendingUpload? upload))
+                while (!ending.Task.IsCompleted && ledger.Outbox.TryRead(out PendingUpload? upload))
                 {
                     upload.Sequence = ledger.NextSequence();
                     lock (_unanswered)
@@ -153,14 +171,29 @@ internal sealed class StreamDelivery(Ingest.IngestClient ingest, DeliveryLedger 
         return (false, reason);
     }
 
-    /// <summary>Resolves the head of the queue with each reply; the failure status when the call failed, else null.</summary>
-    private async Task<StatusCode?> ReadRepliesAsync(IAsyncStreamReader<PushReply> stream, Backoff backoff, CancellationToken cancellationToken)
+    /// <summary>
+    /// Resolves the head of the queue with each reply; the failure status when the call failed, else
+    /// null. From the first batch a stopping server refused unapplied, the rest stay queued for the next stream.
+    /// </summary>
+    private async Task<StatusCode?> ReadRepliesAsync(IAsyncStreamReader<PushReply> stream, Backoff backoff, TaskCompletionSource ending, CancellationToken cancellationToken)
     {
+        bool unappliedFromHere = false;
         try
         {
             while (await stream.MoveNext(cancellationToken).ConfigureAwait(false))
             {
                 PushReply reply = stream.Current;
+                if (reply.StreamEnding)
+                {
+                    ending.TrySetResult();
+                    unappliedFromHere |= reply.ErrorCode == nameof(StatusCode.Unavailable);
+                }
+
+                if (unappliedFromHere)
+                {
+                    continue;
+                }
+
                 PendingUpload? head;
                 lock (_unanswered)
                 {

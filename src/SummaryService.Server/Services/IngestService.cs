@@ -20,6 +20,9 @@ public sealed class IngestService(StoreHost host, ServerMetrics metrics, IHostAp
     /// <summary>Applied batches a stream may hold unanswered while their log group commits.</summary>
     internal const int MaxUnansweredBatches = 32;
 
+    /// <summary>How long a stopping server waits for a sender to complete its side of a stream.</summary>
+    internal static readonly TimeSpan StreamEndingGrace = TimeSpan.FromSeconds(2);
+
     /// <inheritdoc/>
     public override Task<PushReply> Push(Batch request, ServerCallContext context)
     {
@@ -39,6 +42,13 @@ public sealed class IngestService(StoreHost host, ServerMetrics metrics, IHostAp
     /// the next batch would carry one batch per group commit, however fast the store applies them.
     /// At most <see cref="MaxUnansweredBatches"/> applied batches wait for their replies; beyond that
     /// reading pauses, so a producer cannot run ahead of the disk without bound.
+    /// <para>
+    /// On stop the server does not simply end the call while the sender is still writing: HTTP/2
+    /// clients may then see the connection close before they have read the final status, and report
+    /// a broken stream although every reply arrived. Instead every reply from then on says
+    /// <c>stream_ending</c>, batches still arriving are answered "Unavailable" without being applied,
+    /// and the call ends once the sender has completed its side (or after <see cref="StreamEndingGrace"/>).
+    /// </para>
     /// </remarks>
     public override async Task PushStream(IAsyncStreamReader<Batch> requestStream, IServerStreamWriter<PushReply> responseStream, ServerCallContext context)
     {
@@ -51,19 +61,44 @@ public sealed class IngestService(StoreHost host, ServerMetrics metrics, IHostAp
         Task answering = AnswerInOrderAsync(unanswered, responseStream, context.CancellationToken);
         try
         {
-            await foreach (Batch batch in requestStream.ReadAllAsync(reading.Token).ConfigureAwait(false))
+            try
             {
-                await unanswered.Writer.WriteAsync(StartBatch(batch, access, context.CancellationToken), context.CancellationToken).ConfigureAwait(false);
+                await foreach (Batch batch in requestStream.ReadAllAsync(reading.Token).ConfigureAwait(false))
+                {
+                    await unanswered.Writer.WriteAsync(StartBatch(batch, access, context.CancellationToken), context.CancellationToken).ConfigureAwait(false);
+                }
             }
-        }
-        catch (OperationCanceledException) when (lifetime.ApplicationStopping.IsCancellationRequested && !context.CancellationToken.IsCancellationRequested)
-        {
-            // Draining on shutdown: the batches read so far are answered below.
+            catch (OperationCanceledException) when (lifetime.ApplicationStopping.IsCancellationRequested && !context.CancellationToken.IsCancellationRequested)
+            {
+                await RefuseUntilSenderCompletesAsync(requestStream, unanswered.Writer, context.CancellationToken).ConfigureAwait(false);
+            }
         }
         finally
         {
             unanswered.Writer.TryComplete();
             await answering.ConfigureAwait(false);
+        }
+    }
+
+    // Draining on shutdown: the batches read so far are being answered. Anything the sender wrote
+    // before it saw stream_ending is answered "Unavailable" unapplied, so it knows to send it again.
+    private async Task RefuseUntilSenderCompletesAsync(IAsyncStreamReader<Batch> requestStream, ChannelWriter<Task<PushReply>> unanswered, CancellationToken cancellationToken)
+    {
+        using var grace = CancellationTokenSource.CreateLinkedTokenSource(cancellationToken);
+        grace.CancelAfter(StreamEndingGrace);
+        try
+        {
+            while (await requestStream.MoveNext(grace.Token).ConfigureAwait(false))
+            {
+                metrics.BatchRejected("Stopping");
+                ulong sequence = requestStream.Current.Sequence;
+                string message = $"the server is stopping: batch sequence {sequence} was not applied; send it again on a new stream";
+                await unanswered.WriteAsync(Task.FromResult(ErrorReply(sequence, StatusCode.Unavailable, message, "")), cancellationToken).ConfigureAwait(false);
+            }
+        }
+        catch (OperationCanceledException) when (!cancellationToken.IsCancellationRequested)
+        {
+            // The sender did not complete its side in time; the call ends anyway.
         }
     }
 
@@ -96,13 +131,15 @@ public sealed class IngestService(StoreHost host, ServerMetrics metrics, IHostAp
         }
     }
 
-    private static async Task AnswerInOrderAsync(Channel<Task<PushReply>> unanswered, IServerStreamWriter<PushReply> responseStream, CancellationToken cancellationToken)
+    private async Task AnswerInOrderAsync(Channel<Task<PushReply>> unanswered, IServerStreamWriter<PushReply> responseStream, CancellationToken cancellationToken)
     {
         try
         {
-            await foreach (Task<PushReply> reply in unanswered.Reader.ReadAllAsync(CancellationToken.None).ConfigureAwait(false))
+            await foreach (Task<PushReply> pending in unanswered.Reader.ReadAllAsync(CancellationToken.None).ConfigureAwait(false))
             {
-                await responseStream.WriteAsync(await reply.ConfigureAwait(false), cancellationToken).ConfigureAwait(false);
+                PushReply reply = await pending.ConfigureAwait(false);
+                reply.StreamEnding = lifetime.ApplicationStopping.IsCancellationRequested;
+                await responseStream.WriteAsync(reply, cancellationToken).ConfigureAwait(false);
             }
         }
         catch (Exception ex)

@@ -52,28 +52,35 @@ public sealed class ShutdownTests
         const int ValuesPerBatch = 100;
         const int MaxBatches = 20_000; // bound on the writer; the stop comes long before
         int acknowledged = 0;
-        StatusCode ending;
+        int refusedAsStopping = 0;
+        int ending = 0;
+        StatusCode status;
         await using (var server = await ServerProcess.StartAsync(environment))
         {
             using var channel = GrpcChannel.ForAddress(server.Address);
             using var stream = new Ingest.IngestClient(channel).PushStream();
             double[] values = Requests.Latencies(ValuesPerBatch, 61);
-            using var writerStop = new CancellationTokenSource();
+            using var endingSeen = new CancellationTokenSource();
+
+            // A well-behaved sender: it writes until the server says the stream is ending, then
+            // completes its side of the call.
             Task writer = Task.Run(async () =>
             {
                 try
                 {
-                    for (ulong sequence = 1; sequence <= MaxBatches && !writerStop.IsCancellationRequested; sequence++)
+                    for (ulong sequence = 1; sequence <= MaxBatches && !endingSeen.IsCancellationRequested; sequence++)
                     {
                         Batch batch = Requests.Batch("ferry.drain.latency", values);
                         batch.Producer = "drain-test";
                         batch.Sequence = sequence;
                         await stream.RequestStream.WriteAsync(batch);
                     }
+
+                    await stream.RequestStream.CompleteAsync();
                 }
                 catch (Exception e) when (e is RpcException or InvalidOperationException or IOException)
                 {
-                    // The server ended the call: writing more is refused, which is the point.
+                    // The call ended under the writer: the status below says how.
                 }
             });
 
@@ -85,6 +92,23 @@ public sealed class ShutdownTests
                 {
                     PushReply reply = stream.ResponseStream.Current;
                     Assert.Equal(expected++, reply.Sequence); // in order, none skipped
+                    if (reply.StreamEnding)
+                    {
+                        ending++;
+                        await endingSeen.CancelAsync();
+                    }
+
+                    if (reply.ErrorCode.Length > 0)
+                    {
+                        // Only a stopping server refuses these batches, and only after saying so.
+                        Assert.Equal(nameof(StatusCode.Unavailable), reply.ErrorCode);
+                        Assert.True(reply.StreamEnding);
+                        Assert.Equal(0UL, reply.Accepted);
+                        refusedAsStopping++;
+                        continue;
+                    }
+
+                    Assert.Equal(0, refusedAsStopping); // nothing is applied after the first refusal
                     Assert.Equal((ulong)ValuesPerBatch, reply.Accepted);
                     if (++acknowledged == 200)
                     {
@@ -92,24 +116,24 @@ public sealed class ShutdownTests
                     }
                 }
 
-                ending = stream.GetStatus().StatusCode;
+                status = stream.GetStatus().StatusCode;
             }
             catch (RpcException e)
             {
-                ending = e.StatusCode;
+                status = e.StatusCode;
             }
 
-            await writerStop.CancelAsync();
             await writer;
             await stopping;
             Assert.Equal(0, server.ExitCode); // a hung stream would have kept the host past its stop limit
         }
 
         Assert.True(acknowledged >= 200 && acknowledged < MaxBatches, $"{acknowledged} batches acknowledged");
-        Assert.Equal(StatusCode.OK, ending); // the stream ends, it is not torn down
+        Assert.True(ending > 0, "no reply said the stream was ending");
+        Assert.Equal(StatusCode.OK, status); // the stream ends, it is not torn down
 
-        // Each batch read was applied and answered; batches still in flight were never read, so the
-        // store holds exactly the acknowledged ones.
+        // Each batch answered with values accepted was applied; the refused ones and those never
+        // answered were not, so the store holds exactly the acknowledged ones.
         await using var restarted = await ServerProcess.StartAsync(environment);
         using var restartedChannel = GrpcChannel.ForAddress(restarted.Address);
         var summary = Assert.Single((await new Query.QueryClient(restartedChannel).SummarizeAsync(Requests.Summarize("ferry.drain.latency"))).Groups).Summary;
