@@ -57,7 +57,13 @@ public sealed record GroupSummary(IReadOnlyDictionary<string, string> Labels, Su
 public sealed record SeriesInfo(SeriesKey Key, long Count, TimeRange Extent, int Buckets);
 
 /// <summary>Store figures.</summary>
-public sealed record StoreStats(int Series, long Buckets, long EstimatedBytes, IReadOnlyList<TierStats> Tiers, IReadOnlyList<ShardStats> Shards);
+/// <param name="Series">Series held.</param>
+/// <param name="Buckets">Buckets held, all tiers.</param>
+/// <param name="EstimatedBytes">Estimated sketch bytes, all tiers.</param>
+/// <param name="Tiers">Figures per tier.</param>
+/// <param name="Shards">Figures per shard.</param>
+/// <param name="ProducerMarks">Producers whose highest applied sequence is remembered (see <see cref="StoreOptions.ProducerMarkRetention"/>).</param>
+public sealed record StoreStats(int Series, long Buckets, long EstimatedBytes, IReadOnlyList<TierStats> Tiers, IReadOnlyList<ShardStats> Shards, int ProducerMarks);
 
 /// <summary>Figures of one tier across all series.</summary>
 public sealed record TierStats(TimeSpan BucketWidth, long Buckets, long EstimatedBytes);

@@ -134,7 +134,12 @@ public sealed class PersistentSeriesStore : ISeriesStore, IAsyncDisposable
                 ShardCount = (uint)Inner.ShardCount,
                 LogStart = logStart,
             };
-            manifest.Producers.Add(producers);
+            foreach (var (producer, mark) in producers)
+            {
+                manifest.Producers[producer] = mark.Highest;
+                manifest.ProducersLastSeenUnixMs[producer] = mark.LastSeenUnixMs;
+            }
+
             var shards = new List<(ShardHeader, List<SeriesRecord>)>(Inner.ShardCount);
             int series = 0;
             for (int i = 0; i < Inner.ShardCount; i++)
@@ -227,7 +232,7 @@ public sealed class PersistentSeriesStore : ISeriesStore, IAsyncDisposable
             return false;
         }
 
-        candidate.Producers.Import(manifest!.Producers);
+        candidate.Producers.Import(MarksOf(manifest!));
         report.SnapshotSeries = series;
         report.SnapshotBuckets = buckets;
         store = candidate;
@@ -240,6 +245,16 @@ public sealed class PersistentSeriesStore : ISeriesStore, IAsyncDisposable
     private static string SnapshotDirectory(PersistenceOptions p) => Path.Combine(p.DataDirectory, "snapshots");
 
     private static string LogDirectory(PersistenceOptions p) => Path.Combine(p.DataDirectory, "wal");
+
+    // Snapshots written before last-seen times were kept count their producers as heard from at creation.
+    private static IEnumerable<KeyValuePair<string, ProducerMark>> MarksOf(SnapshotManifest manifest)
+    {
+        foreach (var (producer, highest) in manifest.Producers)
+        {
+            long seen = manifest.ProducersLastSeenUnixMs.TryGetValue(producer, out long at) ? at : manifest.CreatedUnixMs;
+            yield return KeyValuePair.Create(producer, new ProducerMark(highest, seen));
+        }
+    }
 }
 
 /// <summary>One snapshot written.</summary>

@@ -4,13 +4,31 @@ namespace SummaryService.Store;
 /// The highest sequence applied per producer, so that a retried batch is applied at most once.
 /// Producers number their batches in increasing order; anything at or below the mark is a repeat.
 /// </summary>
+/// <remarks>
+/// Every mark remembers when its producer was last heard from, and marks silent for longer than the
+/// store's <see cref="StoreOptions.ProducerMarkRetention"/> are forgotten at the next rollup: a
+/// recorder takes a fresh producer id each time its process starts, so without expiry the marks, and
+/// every snapshot holding them, would grow with every process that ever sent a batch.
+/// </remarks>
 internal sealed class ProducerSequences
 {
-    private readonly Dictionary<string, ulong> _highest = new(StringComparer.Ordinal);
+    private readonly Dictionary<string, ProducerMark> _marks = new(StringComparer.Ordinal);
     private readonly object _gate = new();
 
-    /// <summary>True when the batch is new; it is then recorded as applied.</summary>
-    public bool TryClaim(string producer, ulong sequence)
+    /// <summary>Producers with a mark.</summary>
+    public int Count
+    {
+        get
+        {
+            lock (_gate)
+            {
+                return _marks.Count;
+            }
+        }
+    }
+
+    /// <summary>True when the batch is new; it is then recorded as applied. Either way the producer was heard from at <paramref name="nowMs"/>.</summary>
+    public bool TryClaim(string producer, ulong sequence, long nowMs)
     {
         if (producer.Length == 0 || sequence == 0)
         {
@@ -19,37 +37,65 @@ internal sealed class ProducerSequences
 
         lock (_gate)
         {
-            if (_highest.TryGetValue(producer, out ulong highest) && sequence <= highest)
+            if (_marks.TryGetValue(producer, out ProducerMark mark) && sequence <= mark.Highest)
             {
+                _marks[producer] = mark with { LastSeenUnixMs = Math.Max(mark.LastSeenUnixMs, nowMs) };
                 return false;
             }
 
-            _highest[producer] = sequence;
+            _marks[producer] = new ProducerMark(sequence, Math.Max(mark.LastSeenUnixMs, nowMs));
             return true;
         }
     }
 
     /// <summary>Copy of every producer's mark, for snapshots.</summary>
-    public Dictionary<string, ulong> Export()
+    public Dictionary<string, ProducerMark> Export()
     {
         lock (_gate)
         {
-            return new Dictionary<string, ulong>(_highest, StringComparer.Ordinal);
+            return new Dictionary<string, ProducerMark>(_marks, StringComparer.Ordinal);
         }
     }
 
-    /// <summary>Raises marks to at least the given ones, as read back from storage.</summary>
-    public void Import(IEnumerable<KeyValuePair<string, ulong>> marks)
+    /// <summary>Raises marks to at least the given ones (sequence and last-seen time each), as read back from storage.</summary>
+    public void Import(IEnumerable<KeyValuePair<string, ProducerMark>> marks)
     {
         lock (_gate)
         {
-            foreach (var (producer, sequence) in marks)
+            foreach (var (producer, mark) in marks)
             {
-                if (!_highest.TryGetValue(producer, out ulong current) || sequence > current)
+                if (producer.Length == 0 || mark.Highest == 0)
                 {
-                    _highest[producer] = sequence;
+                    continue;
                 }
+
+                _marks[producer] = _marks.TryGetValue(producer, out ProducerMark current)
+                    ? new ProducerMark(Math.Max(current.Highest, mark.Highest), Math.Max(current.LastSeenUnixMs, mark.LastSeenUnixMs))
+                    : mark;
             }
         }
     }
+
+    /// <summary>Forgets the producers last heard from before <paramref name="cutoffUnixMs"/>; returns how many.</summary>
+    public int Expire(long cutoffUnixMs)
+    {
+        lock (_gate)
+        {
+            int removed = 0;
+            foreach (var (producer, mark) in _marks)
+            {
+                if (mark.LastSeenUnixMs < cutoffUnixMs)
+                {
+                    // Removing while enumerating is allowed for Dictionary since .NET Core 3.0.
+                    _marks.Remove(producer);
+                    removed++;
+                }
+            }
+
+            return removed;
+        }
+    }
 }
+
+/// <summary>A producer's highest applied sequence and when it was last heard from.</summary>
+internal readonly record struct ProducerMark(ulong Highest, long LastSeenUnixMs);

@@ -73,7 +73,7 @@ public sealed partial class ShardedSeriesStore
     internal void Replay(LogRecord record, Func<SeriesKey, ulong> snapshotLsn, RecoveryReport report)
     {
         var key = new SeriesKey(record.Metric, record.Labels);
-        _producers.Import([new(record.Producer, record.Sequence)]);
+        _producers.Import([new(record.Producer, new ProducerMark(record.Sequence, NowMs()))]);
         RaiseLsn(record.Lsn);
         if (record.Lsn <= snapshotLsn(key))
         {

@@ -100,7 +100,7 @@ public sealed partial class ShardedSeriesStore : ISeriesStore
             ReserveSeries(key, enforceLimits: true);
         }
 
-        if (!_producers.TryClaim(producer, sequence))
+        if (!_producers.TryClaim(producer, sequence, NowMs()))
         {
             if (!known)
             {
@@ -300,7 +300,7 @@ public sealed partial class ShardedSeriesStore : ISeriesStore
         }
 
         var tiers = _options.Tiers.Select((t, i) => new TierStats(t.BucketWidth, tierBuckets[i], tierBytes[i])).ToArray();
-        return new StoreStats(series, tierBuckets.Sum(), tierBytes.Sum(), tiers, shards);
+        return new StoreStats(series, tierBuckets.Sum(), tierBytes.Sum(), tiers, shards, _producers.Count);
     }
 
     /// <inheritdoc/>
@@ -328,6 +328,8 @@ public sealed partial class ShardedSeriesStore : ISeriesStore
                 }
             }
         }
+
+        _producers.Expire(now - (long)_options.ProducerMarkRetention.TotalMilliseconds);
     }
 
     // Rough size of a freshly opened bucket's sketch, for the budget check before it exists.

@@ -46,6 +46,13 @@ public sealed record StoreOptions
     /// <summary>Approximate bytes all sketches may occupy; new buckets are refused beyond it.</summary>
     public long MemoryBudgetBytes { get; init; } = 2L << 30;
 
+    /// <summary>
+    /// How long the store remembers a producer's highest applied sequence after it last heard from
+    /// that producer. A producer silent for longer that then resends a batch it had sent before would
+    /// see it applied again, so this must exceed the longest a producer keeps retrying; 7 days by default.
+    /// </summary>
+    public TimeSpan ProducerMarkRetention { get; init; } = TimeSpan.FromDays(7);
+
     /// <summary>Total retention: the last tier's horizon.</summary>
     public long TotalRetentionMs => Tiers[^1].RetentionMs;
 
@@ -79,6 +86,11 @@ public sealed record StoreOptions
             {
                 throw new ArgumentOutOfRangeException(nameof(Tiers), tier, $"Tiers[{i}].BucketWidth must be a multiple of Tiers[{i - 1}].BucketWidth so that buckets roll up whole.");
             }
+        }
+
+        if (ProducerMarkRetention <= TimeSpan.Zero)
+        {
+            throw new ArgumentOutOfRangeException(nameof(ProducerMarkRetention), ProducerMarkRetention, "ProducerMarkRetention must be positive.");
         }
 
         foreach (var (name, value) in new[] { (nameof(MaxSeries), MaxSeries), (nameof(MaxSeriesPerTenant), MaxSeriesPerTenant), (nameof(MaxLabels), MaxLabels), (nameof(MaxMetricLength), MaxMetricLength), (nameof(MaxLabelLength), MaxLabelLength), (nameof(MaxValuesPerBatch), MaxValuesPerBatch) })

@@ -29,7 +29,7 @@ public static class StoreCommand
             }
 
             IAnsiConsole console = run.Console.Out;
-            console.WriteLine($"{reply.Series} series, {reply.Buckets} buckets, about {Bytes(reply.EstimatedBytes)} of sketches; durability {reply.Durability}");
+            console.WriteLine($"{reply.Series} series, {reply.Buckets} buckets, about {Bytes(reply.EstimatedBytes)} of sketches; durability {reply.Durability}; {reply.ProducerMarks} producer marks");
             var tiers = new Table().Border(TableBorder.Rounded);
             tiers.AddColumn(new TableColumn(new Text("tier (bucket width)")));
             tiers.AddColumn(new TableColumn(new Text("buckets")).RightAligned());

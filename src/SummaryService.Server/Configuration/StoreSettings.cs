@@ -39,6 +39,9 @@ public sealed class StoreSettings
     /// <summary>Approximate bytes all sketches may occupy.</summary>
     public long MemoryBudgetBytes { get; set; } = 2L << 30;
 
+    /// <summary>How long a producer's highest applied sequence is remembered after its last batch.</summary>
+    public TimeSpan ProducerMarkRetention { get; set; } = TimeSpan.FromDays(7);
+
     /// <summary>KLL top-level capacity of every bucket's sketch.</summary>
     public int SketchK { get; set; } = 200;
 
@@ -58,6 +61,7 @@ public sealed class StoreSettings
         MaxValuesPerBatch = MaxValuesPerBatch,
         MaxFuture = MaxFuture,
         MemoryBudgetBytes = MemoryBudgetBytes,
+        ProducerMarkRetention = ProducerMarkRetention,
         Sketch = SeriesSketchOptions.Default with { K = SketchK, ModeResolution = ModeResolution },
     };
 }

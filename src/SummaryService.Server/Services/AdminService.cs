@@ -73,7 +73,7 @@ public sealed class AdminService(StoreHost host) : Admin.AdminBase
         ArgumentNullException.ThrowIfNull(context);
         CallerAccess.Of(context).RequireAllMetrics(Scope.Admin, "GetStats");
         StoreStats stats = host.Store.GetStats();
-        var reply = new GetStatsReply { Series = (uint)stats.Series, Buckets = (ulong)stats.Buckets, EstimatedBytes = (ulong)stats.EstimatedBytes, Durability = host.Durability.ToString() };
+        var reply = new GetStatsReply { Series = (uint)stats.Series, Buckets = (ulong)stats.Buckets, EstimatedBytes = (ulong)stats.EstimatedBytes, Durability = host.Durability.ToString(), ProducerMarks = (uint)stats.ProducerMarks };
         reply.Tiers.AddRange(stats.Tiers.Select(t => new Contract.V1.TierStats { BucketWidth = Duration.FromTimeSpan(t.BucketWidth), Buckets = (ulong)t.Buckets, EstimatedBytes = (ulong)t.EstimatedBytes }));
         reply.Shards.AddRange(stats.Shards.Select(s => new Contract.V1.ShardStats { Shard = (uint)s.Shard, Series = (uint)s.Series, Buckets = (ulong)s.Buckets, EstimatedBytes = (ulong)Math.Max(0, s.EstimatedBytes) }));
         return Task.FromResult(reply);

@@ -61,6 +61,7 @@ public sealed class IngestAndAdminTests(ServerFixture server)
         Assert.Equal(3, stats.Tiers.Count);
         var storeTable = await CliRun.AgainstAsync(server.Address, "store", "--shards");
         Assert.Contains("durability Wal", storeTable.Out, StringComparison.Ordinal);
+        Assert.Contains($"{stats.ProducerMarks} producer marks", storeTable.Out, StringComparison.Ordinal);
         Assert.Contains("10s", storeTable.Out, StringComparison.Ordinal);
 
         var snapshot = (await CliRun.AgainstAsync(server.Address, "snapshot", "--json")).Json<TakeSnapshotReply>();

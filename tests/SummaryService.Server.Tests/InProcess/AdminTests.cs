@@ -19,8 +19,14 @@ public sealed class AdminTests
         Assert.Equal("x", all.Series[0].Labels["host"]);
         Assert.Single((await server.Admin.ListSeriesAsync(new ListSeriesRequest { Metric = "shop.b" })).Series);
 
+        var numbered = Requests.Batch("shop.b", [5]);
+        numbered.Producer = "till-7";
+        numbered.Sequence = 1;
+        await server.Ingest.PushAsync(numbered);
+
         var stats = await server.Admin.GetStatsAsync(new GetStatsRequest());
         Assert.Equal(2u, stats.Series);
+        Assert.Equal(1u, stats.ProducerMarks);
         Assert.Equal(2ul, stats.Buckets);
         Assert.Equal("Wal", stats.Durability);
         Assert.Equal(3, stats.Tiers.Count);
