@@ -140,19 +140,23 @@ public sealed class PersistentSeriesStore : ISeriesStore, IAsyncDisposable
                 manifest.ProducersLastSeenUnixMs[producer] = mark.LastSeenUnixMs;
             }
 
-            var shards = new List<(ShardHeader, List<SeriesRecord>)>(Inner.ShardCount);
             int series = 0;
-            for (int i = 0; i < Inner.ShardCount; i++)
+            string directory;
+            using (var writer = SnapshotWriter.Begin(SnapshotDirectory(_persistence), generation))
             {
-                var (lsn, records) = Inner.ExportShard(i);
-                manifest.ShardLsns.Add(lsn);
-                series += records.Count;
-                var header = new ShardHeader { FormatVersion = SnapshotFiles.FormatVersion, Generation = generation, Shard = (uint)i, ShardCount = (uint)Inner.ShardCount, AppliedLsn = lsn };
-                header.TierWidthsMs.AddRange(Inner.Options.Tiers.Select(t => t.WidthMs));
-                shards.Add((header, records));
+                for (int i = 0; i < Inner.ShardCount; i++)
+                {
+                    var (lsn, records) = Inner.ExportShard(i);
+                    manifest.ShardLsns.Add(lsn);
+                    series += records.Count;
+                    var header = new ShardHeader { FormatVersion = SnapshotFiles.FormatVersion, Generation = generation, Shard = (uint)i, ShardCount = (uint)Inner.ShardCount, AppliedLsn = lsn };
+                    header.TierWidthsMs.AddRange(Inner.Options.Tiers.Select(t => t.WidthMs));
+                    await Task.Run(() => writer.WriteShard(header, records), cancellationToken).ConfigureAwait(false);
+                }
+
+                directory = writer.Complete(manifest);
             }
 
-            string directory = await Task.Run(() => SnapshotFiles.Write(SnapshotDirectory(_persistence), manifest, shards), cancellationToken).ConfigureAwait(false);
             _kept.Insert(0, (generation, logStart));
             SnapshotFiles.Prune(SnapshotDirectory(_persistence), _persistence.SnapshotsKept, _logger);
             _kept.RemoveRange(Math.Min(_kept.Count, _persistence.SnapshotsKept), Math.Max(0, _kept.Count - _persistence.SnapshotsKept));

@@ -1,3 +1,4 @@
+using Google.Protobuf;
 using SummaryService.Contract.V1;
 using SummaryService.Sketches;
 using SummaryService.Sketches.Serialization;
@@ -17,12 +18,14 @@ public sealed partial class ShardedSeriesStore
     internal ulong LastLsn => (ulong)Interlocked.Read(ref _lastLsn);
 
     /// <summary>The shard's series as snapshot records, copied under its lock.</summary>
-    internal (ulong AppliedLsn, List<SeriesRecord> Series) ExportShard(int index)
+    internal (ulong AppliedLsn, List<byte[]> Series) ExportShard(int index)
     {
         SeriesShard shard = _shards[index];
         lock (shard.Gate)
         {
-            var records = new List<SeriesRecord>(shard.Series.Count);
+            // Each record is serialized at once: its message objects die young instead of piling up
+            // (several times the serialized size) until the whole shard is written.
+            var records = new List<byte[]>(shard.Series.Count);
             foreach (var (key, timeline) in shard.Series)
             {
                 var record = new SeriesRecord { Metric = key.Metric };
@@ -39,7 +42,7 @@ public sealed partial class ShardedSeriesStore
                     }
                 }
 
-                records.Add(record);
+                records.Add(record.ToByteArray());
             }
 
             return (shard.AppliedLsn, records);

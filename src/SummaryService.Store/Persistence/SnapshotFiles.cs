@@ -6,45 +6,15 @@ namespace SummaryService.Store.Persistence;
 
 /// <summary>
 /// Snapshot generations on disk: <c>snapshots/{generation}/shard-NNNN.bin</c> plus <c>manifest.bin</c>.
-/// A generation is written into a <c>.tmp</c> directory, every file fsynced, and the directory
-/// renamed into place, so a reader sees either a whole generation or none.
+/// <see cref="SnapshotWriter"/> writes a generation; this class lists, reads and prunes them.
 /// </summary>
 internal static class SnapshotFiles
 {
     public const uint FormatVersion = 1;
-    private const string ManifestName = "manifest.bin";
+    /// <summary>Name of the manifest file in a generation's directory.</summary>
+    public const string ManifestName = "manifest.bin";
 
     public static string ShardFileName(int shard) => $"shard-{shard:D4}.bin";
-
-    /// <summary>Writes one generation and returns its directory.</summary>
-    public static string Write(string root, SnapshotManifest manifest, IReadOnlyList<(ShardHeader Header, List<SeriesRecord> Series)> shards)
-    {
-        string final = Path.Combine(root, $"{manifest.Generation:D20}");
-        string temp = final + ".tmp";
-        if (Directory.Exists(temp))
-        {
-            Directory.Delete(temp, recursive: true);
-        }
-
-        Directory.CreateDirectory(temp);
-        foreach (var (header, series) in shards)
-        {
-            WriteFile(Path.Combine(temp, ShardFileName((int)header.Shard)), stream =>
-            {
-                RecordFraming.Write(stream, header.ToByteArray());
-                foreach (SeriesRecord record in series)
-                {
-                    RecordFraming.Write(stream, record.ToByteArray());
-                }
-
-                RecordFraming.Write(stream, new ShardFooter { Series = (ulong)series.Count }.ToByteArray());
-            });
-        }
-
-        WriteFile(Path.Combine(temp, ManifestName), stream => RecordFraming.Write(stream, manifest.ToByteArray()));
-        Directory.Move(temp, final);
-        return final;
-    }
 
     /// <summary>Generations on disk, newest first.</summary>
     public static List<(ulong Generation, string Path)> List(string root)
@@ -151,12 +121,5 @@ internal static class SnapshotFiles
         byte[] bytes = File.ReadAllBytes(path);
         var records = RecordFraming.ReadAll(bytes, out _, out problem);
         return records;
-    }
-
-    private static void WriteFile(string path, Action<Stream> write)
-    {
-        using var stream = new FileStream(path, FileMode.CreateNew, FileAccess.Write, FileShare.None, bufferSize: 1 << 16);
-        write(stream);
-        stream.Flush(flushToDisk: true);
     }
 }

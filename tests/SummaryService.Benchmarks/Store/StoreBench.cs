@@ -41,8 +41,8 @@ public static class StoreBench
         output.WriteLine($"| Summarize 1 h window (360 full 10 s buckets) | first {hourCold:F1} ms, then median {hourMedian:F2} ms, p99 {hourP99:F2} ms |");
         var (weekCold, weekMedian, weekP99) = QueryLatency(TimeSpan.FromDays(7), quick);
         output.WriteLine($"| Summarize 7 d window (2160 × 10 s + 9720 × 1 min buckets) | first {weekCold:F0} ms, then median {weekMedian:F2} ms, p99 {weekP99:F2} ms |");
-        var (seconds, bytes, series, buckets, perIdle) = Snapshot(quick ? 1000 : 10_000);
-        output.WriteLine($"| snapshot of {series} series × {buckets / series} buckets (5 values each) | {seconds:F1} s, {bytes / 1e6:F0} MB |");
+        var (seconds, bytes, series, buckets, perIdle, peakGrowth) = Snapshot(quick ? 1000 : 10_000);
+        output.WriteLine($"| snapshot of {series} series × {buckets / series} buckets (5 values each) | {seconds:F1} s, {bytes / 1e6:F0} MB, peak RSS +{peakGrowth / 1e6:F0} MB while writing |");
         output.WriteLine($"| memory per idle series (one bucket of one value), GC heap | {perIdle:F0} bytes |");
     }
 
@@ -159,7 +159,7 @@ public static class StoreBench
         return (first, samples[samples.Count / 2], samples[(int)Math.Min(samples.Count - 1, Math.Ceiling(samples.Count * 0.99) - 1)]);
     }
 
-    private static (double Seconds, long Bytes, int Series, long Buckets, double BytesPerIdleSeries) Snapshot(int seriesCount)
+    private static (double Seconds, long Bytes, int Series, long Buckets, double BytesPerIdleSeries, long PeakGrowth) Snapshot(int seriesCount)
     {
         string dir = Path.Combine(Path.GetTempPath(), "summaryservice-bench", Guid.NewGuid().ToString("N"));
         var clock = new FakeTimeProvider(DateTimeOffset.FromUnixTimeMilliseconds(1_800_000_000_000));
@@ -174,7 +174,13 @@ public static class StoreBench
             }
         }
 
+        // What the snapshot adds on top of the store, as the operating system sees it.
+        using var process = System.Diagnostics.Process.GetCurrentProcess();
+        process.Refresh();
+        long peakBefore = Math.Max(process.PeakWorkingSet64, process.WorkingSet64);
         var info = store.TakeSnapshotAsync().Result;
+        process.Refresh();
+        long peakGrowth = process.PeakWorkingSet64 - peakBefore;
         long buckets = store.GetStats().Buckets;
         store.CloseWithoutSnapshotAsync().AsTask().Wait();
         Directory.Delete(dir, recursive: true);
@@ -190,7 +196,7 @@ public static class StoreBench
 
         long after = GC.GetTotalMemory(forceFullCollection: true);
         GC.KeepAlive(idle);
-        return (info.Elapsed.TotalSeconds, info.Bytes, seriesCount, buckets, (after - before) / 10_000.0);
+        return (info.Elapsed.TotalSeconds, info.Bytes, seriesCount, buckets, (after - before) / 10_000.0, peakGrowth);
     }
 
     private static double NextGaussian(Random rng) =>
