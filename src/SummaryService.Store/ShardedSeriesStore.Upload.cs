@@ -83,12 +83,14 @@ public sealed partial class ShardedSeriesStore
         }
 
         SeriesSketchOptions expected = _options.Sketch;
-        if (sketch.Modes.Resolution.CompareTo(expected.ModeResolution) != 0 || sketch.Modes.Width != expected.ModeWidth || sketch.Modes.Depth != expected.ModeDepth)
+        // Read from the settings, not the parts, so that checking a small sketch does not grow it.
+        SeriesSketchOptions given = sketch.Options;
+        if (given.ModeResolution.CompareTo(expected.ModeResolution) != 0 || given.ModeWidth != expected.ModeWidth || given.ModeDepth != expected.ModeDepth)
         {
             throw new StoreRejectedException(
                 RejectReason.InvalidSketch,
                 "sketch.modes",
-                $"sketch.modes has resolution {sketch.Modes.Resolution} and a {sketch.Modes.Width}x{sketch.Modes.Depth} table; this store uses resolution {expected.ModeResolution} and {expected.ModeWidth}x{expected.ModeDepth}.");
+                $"sketch.modes has resolution {given.ModeResolution} and a {given.ModeWidth}x{given.ModeDepth} table; this store uses resolution {expected.ModeResolution} and {expected.ModeWidth}x{expected.ModeDepth}.");
         }
     }
 

@@ -44,6 +44,20 @@ public sealed class ModeSketch
     /// <param name="candidateLimit">Candidate keys tracked once in count-min form.</param>
     public ModeSketch(double resolution = 0, int exactLimit = DefaultExactLimit, int width = DefaultWidth, int depth = DefaultDepth, int candidateLimit = DefaultCandidateLimit)
     {
+        RequireSettings(resolution, exactLimit, width, depth, candidateLimit);
+        Resolution = resolution;
+        ExactLimit = exactLimit;
+        Width = width;
+        Depth = depth;
+        CandidateLimit = candidateLimit;
+    }
+
+    /// <summary>Bin width used to key values; 0 keys values by their exact bits.</summary>
+    public double Resolution { get; }
+
+    /// <summary>Rejects the settings the constructor rejects, with the same exceptions.</summary>
+    internal static void RequireSettings(double resolution, int exactLimit, int width, int depth, int candidateLimit)
+    {
         if (!(resolution >= 0) || !double.IsFinite(resolution))
         {
             throw new ArgumentOutOfRangeException(nameof(resolution), resolution, "Resolution must be 0 (exact values) or a positive finite bin width.");
@@ -56,15 +70,7 @@ public sealed class ModeSketch
         ArgumentOutOfRangeException.ThrowIfGreaterThan(depth, 32);
         ArgumentOutOfRangeException.ThrowIfLessThan(candidateLimit, 1);
         ArgumentOutOfRangeException.ThrowIfGreaterThan(candidateLimit, 4096);
-        Resolution = resolution;
-        ExactLimit = exactLimit;
-        Width = width;
-        Depth = depth;
-        CandidateLimit = candidateLimit;
     }
-
-    /// <summary>Bin width used to key values; 0 keys values by their exact bits.</summary>
-    public double Resolution { get; }
 
     /// <summary>Distinct keys counted exactly before switching to count-min.</summary>
     public int ExactLimit { get; }
@@ -176,11 +182,7 @@ public sealed class ModeSketch
 
         if (other._exact is not null)
         {
-            foreach ((long key, long count) in other._exact.SortedEntries())
-            {
-                AddKey(key, count);
-            }
-
+            MergeExactEntries(other._exact.SortedEntries());
             return;
         }
 
@@ -195,6 +197,55 @@ public sealed class ModeSketch
         CandidateKeys().CopyTo(keys);
         other.CandidateKeys().CopyTo(keys.AsSpan(_candidateCount));
         RebuildCandidates(keys);
+    }
+
+    /// <summary>
+    /// Merges exact counts in ascending key order, as <see cref="Merge"/> merges an exact sketch:
+    /// the order fixes which keys a count-min form keeps as candidates.
+    /// </summary>
+    internal void MergeExactEntries(ReadOnlySpan<(long Key, long Count)> entries)
+    {
+        foreach ((long key, long count) in entries)
+        {
+            AddKey(key, count);
+        }
+    }
+
+    /// <summary>
+    /// The exact counts of <paramref name="values"/> keyed at <paramref name="resolution"/>, in
+    /// ascending key order: what an exact sketch of those values lists as its entries.
+    /// </summary>
+    internal static (long Key, long Count)[] ExactEntriesOf(ReadOnlySpan<double> values, double resolution)
+    {
+        Span<long> keys = values.Length <= 64 ? stackalloc long[values.Length] : new long[values.Length];
+        for (int i = 0; i < values.Length; i++)
+        {
+            keys[i] = ModeKey.Of(values[i], resolution);
+        }
+
+        keys.Sort();
+        int distinct = 0;
+        for (int i = 0; i < keys.Length; i++)
+        {
+            if (i == 0 || keys[i] != keys[i - 1])
+            {
+                distinct++;
+            }
+        }
+
+        var entries = new (long Key, long Count)[distinct];
+        int next = -1;
+        for (int i = 0; i < keys.Length; i++)
+        {
+            if (i == 0 || keys[i] != keys[i - 1])
+            {
+                entries[++next] = (keys[i], 0);
+            }
+
+            entries[next].Count++;
+        }
+
+        return entries;
     }
 
     /// <summary>

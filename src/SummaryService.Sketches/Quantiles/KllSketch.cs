@@ -54,11 +54,7 @@ public sealed class KllSketch
     /// in tests to make runs reproducible.</param>
     public KllSketch(int k = DefaultK, ulong? seed = null)
     {
-        if (k is < MinK or > MaxK)
-        {
-            throw new ArgumentOutOfRangeException(nameof(k), k, $"k must be between {MinK} and {MaxK}.");
-        }
-
+        RequireK(k);
         K = k;
         _random = new SplitMix64(seed ?? (ulong)Random.Shared.NextInt64());
         _capacity = TotalCapacity(k, 1);
@@ -67,6 +63,15 @@ public sealed class KllSketch
 
     /// <summary>Top-level capacity.</summary>
     public int K { get; }
+
+    /// <summary>Rejects a k outside [<see cref="MinK"/>, <see cref="MaxK"/>], as the constructor does.</summary>
+    internal static void RequireK(int k)
+    {
+        if (k is < MinK or > MaxK)
+        {
+            throw new ArgumentOutOfRangeException(nameof(k), k, $"k must be between {MinK} and {MaxK}.");
+        }
+    }
 
     /// <summary>Number of values folded in.</summary>
     public long Count { get; private set; }
@@ -258,6 +263,31 @@ public sealed class KllSketch
 
         _retained += other._retained;
         TrackRange(other.Min, other.Max, other.Count);
+        while (_retained > _capacity)
+        {
+            Compress();
+        }
+
+        TrimLevels();
+    }
+
+    /// <summary>
+    /// Merges what a never-compacted one-level sketch of <paramref name="items"/> (in that order,
+    /// with those exact extremes) would merge: the same steps as <see cref="Merge"/> with such a
+    /// sketch, without building it. Small series sketches keep their values raw and merge this way.
+    /// </summary>
+    internal void MergeUncompacted(ReadOnlySpan<double> items, double min, double max)
+    {
+        if (items.IsEmpty)
+        {
+            return;
+        }
+
+        EnsureRoom(0, items.Length);
+        items.CopyTo(_levels[0].AsSpan(_sizes[0]));
+        _sizes[0] += items.Length;
+        _retained += items.Length;
+        TrackRange(min, max, items.Length);
         while (_retained > _capacity)
         {
             Compress();

@@ -40,12 +40,15 @@ public static class SketchCodec
     public static SeriesSketchState ToState(SeriesSketch sketch)
     {
         ArgumentNullException.ThrowIfNull(sketch);
+
+        // A small sketch is written as the full parts it stands for, so the bytes do not depend on its form.
+        (KllSketch quantiles, ModeSketch modes) = sketch.FullParts();
         return new SeriesSketchState
         {
             Version = FormatVersion,
             Moments = ToState(sketch.Moments),
-            Quantiles = ToState(sketch.Quantiles),
-            Modes = ToState(sketch.Modes),
+            Quantiles = ToState(quantiles),
+            Modes = ToState(modes),
         };
     }
 
@@ -67,7 +70,7 @@ public static class SketchCodec
         Check(
             moments.Count == 0 || (moments.Min.Equals(quantiles.Min) && moments.Max.Equals(quantiles.Max)),
             $"extremes disagree: moments.min/max are {moments.Min}/{moments.Max} but quantiles.min/max are {quantiles.Min}/{quantiles.Max}.");
-        return new SeriesSketch(moments, quantiles, modes);
+        return SeriesSketch.FromParts(moments, quantiles, modes);
     }
 
     /// <summary>The message form of a moment sketch.</summary>

@@ -14,6 +14,9 @@ internal static class SizesReport
     private const int SmallSketchMemoryTargetBytes = 1024;
     private const int SmallSketchValues = 10;
 
+    // What a 10 s bucket of a quiet series holds in the 10,000-series load run.
+    private const int QuietBucketValues = 4;
+
     // Enough copies for the heap-size estimate to settle; full sketches are large enough with few.
     private const int SmallSketchCopies = 1000;
     private const int FullSketchCopies = 16;
@@ -30,7 +33,7 @@ internal static class SizesReport
     private static void WriteSerialized(TextWriter output)
     {
         output.WriteLine($"Serialized size of a default sketch (target: full sketch <= {SerializedTargetBytes} bytes)");
-        output.WriteLine($"{"distribution",-18}{"values",10}{"bytes",10}{"KLL items",11}{"KLL levels",12}{"modes",11}  verdict");
+        output.WriteLine($"{"distribution",-18}{"values",10}{"bytes",10}{"KLL items",11}{"KLL levels",12}{"modes",11}{"form",7}  verdict");
         foreach (Distribution distribution in s_distributions)
         {
             WriteSerializedRow(output, distribution, SampleData.FullSketchValues, SerializedTargetBytes);
@@ -54,12 +57,18 @@ internal static class SizesReport
         output.WriteLine("In-memory size: bytes allocated by construction + adds (an upper bound on live bytes)");
         output.WriteLine("and live bytes estimated from the collected heap while many copies are held; 'own' is SeriesSketch.EstimatedBytes");
         output.WriteLine($"(target: {SmallSketchValues}-value sketch <= {SmallSketchMemoryTargetBytes} bytes)");
-        output.WriteLine($"{"distribution",-18}{"values",10}{"fed",8}{"allocated",11}{"live~",9}{"own",9}{"KLL items",11}{"KLL levels",12}{"modes",11}  verdict");
+        output.WriteLine($"{"distribution",-18}{"values",10}{"fed",8}{"allocated",11}{"live~",9}{"own",9}{"KLL items",11}{"KLL levels",12}{"modes",11}{"form",7}  verdict");
         foreach (Distribution distribution in s_distributions)
         {
             double[] few = SampleData.Generate(distribution, SmallSketchValues, seed: 1);
             WriteInMemoryRow(output, distribution, few, "span", () => InSpans(few), SmallSketchMemoryTargetBytes, SmallSketchCopies);
             WriteInMemoryRow(output, distribution, few, "single", () => OneAtATime(few), SmallSketchMemoryTargetBytes, SmallSketchCopies);
+        }
+
+        foreach (Distribution distribution in s_distributions)
+        {
+            double[] quiet = SampleData.Generate(distribution, QuietBucketValues, seed: 1);
+            WriteInMemoryRow(output, distribution, quiet, "span", () => InSpans(quiet), SmallSketchMemoryTargetBytes, SmallSketchCopies);
         }
 
         foreach (Distribution distribution in s_distributions)
@@ -94,8 +103,13 @@ internal static class SizesReport
         return sketch;
     }
 
-    private static string Describe(SeriesSketch sketch) =>
-        $"{sketch.Quantiles.RetainedItems,11}{sketch.Quantiles.LevelCount,12}{(sketch.Modes.IsExact ? "exact" : "count-min"),11}";
+    // Read from a copy: reading the parts of a small sketch turns it into the full form.
+    private static string Describe(SeriesSketch sketch)
+    {
+        SeriesSketch parts = sketch.Clone();
+        string form = sketch.IsSmall ? "small" : "full";
+        return $"{parts.Quantiles.RetainedItems,11}{parts.Quantiles.LevelCount,12}{(parts.Modes.IsExact ? "exact" : "count-min"),11}{form,7}";
+    }
 
     // The allocated figure is an upper bound, so only it can prove the target met; when it is over,
     // the live estimate tells whether the excess is garbage from buffer growth or real footprint.
