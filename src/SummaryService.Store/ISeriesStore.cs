@@ -23,6 +23,14 @@ public interface ISeriesStore
     /// <summary>Summary of the selected series over the window, one per combination of the group-by labels' values.</summary>
     WindowSummary Summarize(Selector selector, TimeRange window, IReadOnlyList<string> groupBy, SummaryOptions options);
 
+    /// <summary>
+    /// One summary per step of the window, oldest first: step i is [from + i·step, min(from + (i+1)·step, to)).
+    /// Each answer is what <see cref="Summarize"/> of that step alone gives; one call lets the store
+    /// find the series and take their locks once per call rather than once per step.
+    /// </summary>
+    /// <exception cref="StoreRejectedException">The window is empty, the step is under 1 ms, or it makes more steps than the store answers per call.</exception>
+    IReadOnlyList<WindowSummary> SummarizeSteps(Selector selector, TimeRange window, long stepMs, IReadOnlyList<string> groupBy, SummaryOptions options);
+
     /// <summary>Series of a metric (or of every metric when null), with their extent.</summary>
     IReadOnlyList<SeriesInfo> ListSeries(string? metric = null);
 

@@ -98,6 +98,10 @@ public sealed class PersistentSeriesStore : ISeriesStore, IAsyncDisposable
     public WindowSummary Summarize(Selector selector, TimeRange window, IReadOnlyList<string> groupBy, SummaryOptions options) => Inner.Summarize(selector, window, groupBy, options);
 
     /// <inheritdoc/>
+    public IReadOnlyList<WindowSummary> SummarizeSteps(Selector selector, TimeRange window, long stepMs, IReadOnlyList<string> groupBy, SummaryOptions options) =>
+        Inner.SummarizeSteps(selector, window, stepMs, groupBy, options);
+
+    /// <inheritdoc/>
     public IReadOnlyList<SeriesInfo> ListSeries(string? metric = null) => Inner.ListSeries(metric);
 
     /// <inheritdoc/>

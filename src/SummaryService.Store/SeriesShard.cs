@@ -1,6 +1,6 @@
 namespace SummaryService.Store;
 
-/// <summary>One shard: its series and the single lock that guards them.</summary>
+/// <summary>One shard: its series and the lock that guards the dictionary and every change to them (each timeline is also locked for its own changes and copies).</summary>
 internal sealed class SeriesShard
 {
     public object Gate { get; } = new();

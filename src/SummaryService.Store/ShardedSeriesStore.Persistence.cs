@@ -60,9 +60,12 @@ public sealed partial class ShardedSeriesStore
             SeriesTimeline timeline = RecoveredTimeline(shard, key);
 
             long now = NowMs();
-            foreach (var (tier, start, sketch) in sketches)
+            lock (timeline)
             {
-                shard.EstimatedBytes += timeline.Place(tier, start, sketch, now);
+                foreach (var (tier, start, sketch) in sketches)
+                {
+                    shard.EstimatedBytes += timeline.Place(tier, start, sketch, now);
+                }
             }
 
             shard.AppliedLsn = Math.Max(shard.AppliedLsn, appliedLsn);
@@ -118,7 +121,11 @@ public sealed partial class ShardedSeriesStore
         {
             SeriesTimeline timeline = RecoveredTimeline(shard, key);
 
-            shard.EstimatedBytes += timeline.Add(values.ToArray(), times.ToArray(), now);
+            lock (timeline)
+            {
+                shard.EstimatedBytes += timeline.Add(values.ToArray(), times.ToArray(), now);
+            }
+
             shard.AppliedLsn = Math.Max(shard.AppliedLsn, record.Lsn);
         }
     }
@@ -129,8 +136,8 @@ public sealed partial class ShardedSeriesStore
         if (!shard.Series.TryGetValue(key, out var timeline))
         {
             timeline = new SeriesTimeline(key, _options);
-            shard.Series.Add(key, timeline);
             ReserveSeries(key, enforceLimits: false);
+            AddSeries(shard, timeline);
         }
 
         return timeline;

@@ -39,7 +39,11 @@ public sealed partial class ShardedSeriesStore
                 durable = journal(UploadRecordOf(lsn, upload, times[0], sketch));
             }
 
-            shard.EstimatedBytes += timeline.Place(-1, times[0], sketch, now);
+            lock (timeline)
+            {
+                shard.EstimatedBytes += timeline.Place(-1, times[0], sketch, now);
+            }
+
             shard.AppliedLsn = lsn;
         }
 
@@ -70,7 +74,11 @@ public sealed partial class ShardedSeriesStore
         {
             SeriesTimeline timeline = RecoveredTimeline(shard, key);
 
-            shard.EstimatedBytes += timeline.Place(-1, t, sketch, now);
+            lock (timeline)
+            {
+                shard.EstimatedBytes += timeline.Place(-1, t, sketch, now);
+            }
+
             shard.AppliedLsn = Math.Max(shard.AppliedLsn, record.Lsn);
         }
     }

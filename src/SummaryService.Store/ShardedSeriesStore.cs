@@ -8,8 +8,12 @@ namespace SummaryService.Store;
 /// their key, one lock per shard, a batch taking its shard's lock once.
 /// </summary>
 /// <remarks>
-/// Queries copy the overlapping buckets under the shard lock and merge the copies outside it, so
-/// ingest waits at most for a copy and stored sketches are never mutated by a read.
+/// Locks: the shard lock guards its series dictionary, the log order and every change to a
+/// series; each series' timeline is also its own lock (taken inside the shard lock), held while its
+/// buckets change and while a query copies them. Queries find their series in the catalogue and
+/// take only series locks, one at a time and only for a copy, then merge the copies outside any
+/// lock: a query waits only for a batch of its own series, ingest waits at most for a copy, and
+/// stored sketches are never mutated by a read.
 /// </remarks>
 public sealed partial class ShardedSeriesStore : ISeriesStore
 {
@@ -20,6 +24,7 @@ public sealed partial class ShardedSeriesStore : ISeriesStore
     private readonly ProducerSequences _producers = new();
     private readonly Dictionary<string, int> _tenantSeries = new(StringComparer.Ordinal);
     private readonly object _catalogueGate = new();
+    private readonly SeriesCatalogue _catalogue = new();
     private int _seriesCount;
     private long _lastLsn;
 
@@ -61,7 +66,11 @@ public sealed partial class ShardedSeriesStore : ISeriesStore
                 return new AppendResult(0, Duplicate: true);
             }
 
-            shard.EstimatedBytes += timeline.Add(batch.Values.Span, times, now);
+            lock (timeline)
+            {
+                shard.EstimatedBytes += timeline.Add(batch.Values.Span, times, now);
+            }
+
             ulong lsn = (ulong)Interlocked.Increment(ref _lastLsn);
             shard.AppliedLsn = lsn;
 
@@ -112,108 +121,11 @@ public sealed partial class ShardedSeriesStore : ISeriesStore
 
         if (!known)
         {
-            shard.Series.Add(key, timeline);
+            AddSeries(shard, timeline);
         }
 
         return timeline;
     }
-
-    /// <inheritdoc/>
-    public WindowSummary Summarize(Selector selector, TimeRange window, IReadOnlyList<string> groupBy, SummaryOptions options)
-    {
-        ArgumentNullException.ThrowIfNull(selector);
-        ArgumentNullException.ThrowIfNull(groupBy);
-        ArgumentNullException.ThrowIfNull(options);
-        if (window.FromUnixMs >= window.ToUnixMs)
-        {
-            throw new StoreRejectedException(RejectReason.InvalidWindow, "window", $"window from {window.FromUnixMs} is not before to {window.ToUnixMs}; windows are half-open [from, to).");
-        }
-
-        try
-        {
-            options.Validate();
-        }
-        catch (ArgumentOutOfRangeException ex)
-        {
-            throw new StoreRejectedException(RejectReason.InvalidQuery, ex.ParamName ?? "options", ex.Message);
-        }
-
-        // The covered range starts as the window and widens to whole buckets. A shard visited before
-        // the range last widened may hold buckets in the widened part, so the pass repeats until a
-        // whole pass leaves the range as it found it; copies from an earlier pass are dropped.
-        TimeRange covered = window;
-        while (true)
-        {
-            TimeRange atStart = covered;
-            var groups = CopyGroups(selector, groupBy, ref covered);
-            if (covered == atStart)
-            {
-                var results = groups.Values.Select(g => MergeGroup(g.Labels, g.Copies, options)).ToArray();
-                return new WindowSummary(results, covered);
-            }
-        }
-    }
-
-    private SortedDictionary<string, (Dictionary<string, string> Labels, List<SeriesParts> Copies)> CopyGroups(Selector selector, IReadOnlyList<string> groupBy, ref TimeRange covered)
-    {
-        long now = NowMs();
-        var groups = new SortedDictionary<string, (Dictionary<string, string> Labels, List<SeriesParts> Copies)>(StringComparer.Ordinal);
-        foreach (SeriesShard shard in _shards)
-        {
-            lock (shard.Gate)
-            {
-                foreach (var (key, timeline) in shard.Series)
-                {
-                    if (!selector.Selects(key))
-                    {
-                        continue;
-                    }
-
-                    var labels = groupBy.ToDictionary(name => name, name => key.Label(name) ?? "", StringComparer.Ordinal);
-                    string groupKey = string.Join('\u0001', groupBy.Select(name => labels[name]));
-                    if (!groups.TryGetValue(groupKey, out var group))
-                    {
-                        group = (labels, []);
-                        groups.Add(groupKey, group);
-                    }
-
-                    timeline.WidenToBuckets(ref covered);
-                    var parts = new List<QueryPart>();
-                    timeline.PlanParts(covered, now, parts);
-                    group.Copies.Add(new SeriesParts(key.Canonical, shard, timeline, timeline.Epoch, parts));
-                }
-            }
-        }
-
-        return groups;
-    }
-
-    // Merged in series-key order, each series' parts in time order, so that the same data always
-    // gives the same bits whether its blocks were cached or built for this query.
-    private GroupSummary MergeGroup(Dictionary<string, string> labels, List<SeriesParts> copies, SummaryOptions options)
-    {
-        var merged = new SeriesSketch(_options.Sketch, seed: 0);
-        foreach (SeriesParts series in copies.OrderBy(c => c.Series, StringComparer.Ordinal))
-        {
-            foreach (QueryPart part in series.Parts)
-            {
-                merged.Merge(part.Resolve(_options.Sketch, part.Block is { } block ? series.Timeline.SeedFor(block) : 0));
-            }
-
-            if (series.Parts.Any(p => p.Buckets is not null))
-            {
-                lock (series.Shard.Gate)
-                {
-                    series.Timeline.CacheBlocks(series.Parts, series.Epoch);
-                }
-            }
-        }
-
-        return new GroupSummary(labels, merged.Summarize(options), copies.Count, merged);
-    }
-
-    /// <summary>What one series contributes to a window answer, and where to cache the blocks built for it.</summary>
-    private sealed record SeriesParts(string Series, SeriesShard Shard, SeriesTimeline Timeline, long Epoch, List<QueryPart> Parts);
 
     /// <inheritdoc/>
     public IReadOnlyList<SeriesInfo> ListSeries(string? metric = null)
@@ -314,7 +226,11 @@ public sealed partial class ShardedSeriesStore : ISeriesStore
                 List<SeriesKey>? emptied = null;
                 foreach (var (key, timeline) in shard.Series)
                 {
-                    shard.EstimatedBytes += timeline.Roll(now);
+                    lock (timeline)
+                    {
+                        shard.EstimatedBytes += timeline.Roll(now);
+                    }
+
                     if (timeline.BucketCount == 0)
                     {
                         (emptied ??= []).Add(key);
@@ -385,8 +301,17 @@ public sealed partial class ShardedSeriesStore : ISeriesStore
         }
     }
 
+    /// <summary>Adds a new series to its shard and to the catalogue; call under the shard lock.</summary>
+    private void AddSeries(SeriesShard shard, SeriesTimeline timeline)
+    {
+        shard.Series.Add(timeline.Key, timeline);
+        _catalogue.Add(timeline);
+    }
+
+    /// <summary>Gives back a series' place in the limits and takes it out of the catalogue; call under the shard lock.</summary>
     private void ReleaseSeries(SeriesKey key)
     {
+        _catalogue.Remove(key);
         string tenant = TenantOf(key);
         lock (_catalogueGate)
         {

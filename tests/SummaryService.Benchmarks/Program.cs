@@ -5,7 +5,7 @@ using SummaryService.Benchmarks.Store;
 namespace SummaryService.Benchmarks;
 
 /// <summary>
-/// Entry point: <c>sizes</c> prints the size report, <c>store [quick]</c> runs the store bench, anything
+/// Entry point: <c>sizes</c> prints the size report, <c>store [quick] [queries]</c> runs the store bench (only its window query figures with <c>queries</c>), anything
 /// else goes to BenchmarkDotNet.
 /// </summary>
 public static class Program
@@ -20,7 +20,7 @@ public static class Program
                 SizesReport.Write(Console.Out);
                 return 0;
             case "store":
-                StoreBench.Run(Console.Out, quick: args.Contains("quick"));
+                StoreBench.Run(Console.Out, quick: args.Contains("quick"), queriesOnly: args.Contains("queries"));
                 return 0;
         }
 

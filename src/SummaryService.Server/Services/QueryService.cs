@@ -65,19 +65,15 @@ public sealed class QueryService(StoreHost host, ServerMetrics metrics, TimeProv
 
         var groupBy = GroupByOf(request.GroupBy);
         SummaryOptions options = QueryRequests.OptionsOf(request.Quantiles, request.Confidence, [], 0, null);
+        var answers = host.Store.SummarizeSteps(selector, window, step, groupBy, options);
+        SelectionCheck.Require(answers[0], selector, groupBy, "selector");
         var reply = new SeriesReply();
-        for (long from = window.FromUnixMs; from < window.ToUnixMs; from += step)
+        for (int i = 0; i < answers.Count; i++)
         {
+            long from = window.FromUnixMs + (i * step);
             var range = new StoreTimeRange(from, Math.Min(from + step, window.ToUnixMs));
-            var answer = host.Store.Summarize(selector, range, groupBy, options);
-            if (from == window.FromUnixMs)
-            {
-                // Every step selects the same series, so the first answer tells whether any matched.
-                SelectionCheck.Require(answer, selector, groupBy, "selector");
-            }
-
-            var point = new SeriesPoint { Step = SummaryMapping.ToProto(range), Covered = SummaryMapping.ToProto(answer.Covered) };
-            foreach (Store.GroupSummary group in answer.Groups)
+            var point = new SeriesPoint { Step = SummaryMapping.ToProto(range), Covered = SummaryMapping.ToProto(answers[i].Covered) };
+            foreach (Store.GroupSummary group in answers[i].Groups)
             {
                 if (group.Summary.Count > 0)
                 {

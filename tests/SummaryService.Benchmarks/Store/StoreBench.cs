@@ -12,22 +12,36 @@ namespace SummaryService.Benchmarks.Store;
 /// Store figures that take seconds rather than nanoseconds, so they run as a console bench:
 /// ingest rate by durability, window query latency, snapshot size and time, memory per series.
 /// </summary>
-/// <remarks>Run: <c>dotnet run -c Release --project tests/SummaryService.Benchmarks -- store [quick]</c>.</remarks>
+/// <remarks>Run: <c>dotnet run -c Release --project tests/SummaryService.Benchmarks -- store [quick] [queries]</c>.</remarks>
 public static class StoreBench
 {
     private const int Series = 1000;
     private const int BatchValues = 1000;
 
-    public static void Run(TextWriter output, bool quick)
+    public static void Run(TextWriter output, bool quick, bool queriesOnly = false)
     {
         var duration = TimeSpan.FromSeconds(quick ? 1 : 4);
         output.WriteLine($"# Store bench ({Environment.ProcessorCount} cores, {(quick ? "quick" : "full")})");
         output.WriteLine();
         output.WriteLine("| figure | value |");
         output.WriteLine("|---|---|");
+        if (!queriesOnly)
+        {
+            Ingest(output, duration);
+        }
+
+        Queries(output, quick);
+        if (!queriesOnly)
+        {
+            Snapshots(output, quick);
+        }
+    }
+
+    private static void Ingest(TextWriter output, TimeSpan duration)
+    {
         // Tiered compilation runs the first seconds on unoptimised code: each rate is taken after a
         // warm-up run of the same path, as a long-running server would see it.
-        var warmUp = TimeSpan.FromSeconds(quick ? 0.5 : 2);
+        var warmUp = duration / 2;
         IngestNone(warmUp);
         double none = IngestNone(duration);
         output.WriteLine($"| append, durability none, 1 thread, {Series} series × {BatchValues}-value batches | {none / 1e6:F1} M values/s |");
@@ -37,10 +51,21 @@ public static class StoreBench
         IngestWal(warmUp);
         var (wal, fsyncs, producers) = IngestWal(duration);
         output.WriteLine($"| append, durability wal, {producers} concurrent producers, same batches | {wal / 1e6:F1} M values/s ({fsyncs:F0} fsyncs/s) |");
+    }
+
+    private static void Queries(TextWriter output, bool quick)
+    {
         var (hourCold, hourMedian, hourP99) = QueryLatency(TimeSpan.FromHours(1), quick);
         output.WriteLine($"| Summarize 1 h window (360 full 10 s buckets) | first {hourCold:F1} ms, then median {hourMedian:F2} ms, p99 {hourP99:F2} ms |");
         var (weekCold, weekMedian, weekP99) = QueryLatency(TimeSpan.FromDays(7), quick);
         output.WriteLine($"| Summarize 7 d window (2160 × 10 s + 9720 × 1 min buckets) | first {weekCold:F0} ms, then median {weekMedian:F2} ms, p99 {weekP99:F2} ms |");
+        var (perStep, oneCall) = StepsLatency(quick);
+        output.WriteLine($"| Series 6 h at 1 min steps (2160 full 10 s buckets), one Summarize per step | first {perStep.FirstMs:F0} ms, then median {perStep.MedianMs:F2} ms, p99 {perStep.P99Ms:F2} ms |");
+        output.WriteLine($"| Series 6 h at 1 min steps, one SummarizeSteps call | first {oneCall.FirstMs:F0} ms, then median {oneCall.MedianMs:F2} ms, p99 {oneCall.P99Ms:F2} ms |");
+    }
+
+    private static void Snapshots(TextWriter output, bool quick)
+    {
         var (seconds, bytes, series, buckets, perIdle, peakGrowth) = Snapshot(quick ? 1000 : 10_000);
         output.WriteLine($"| snapshot of {series} series × {buckets / series} buckets (5 values each) | {seconds:F1} s, {bytes / 1e6:F0} MB, peak RSS +{peakGrowth / 1e6:F0} MB while writing |");
         output.WriteLine($"| memory per idle series (one bucket of one value), GC heap | {perIdle:F0} bytes |");
@@ -145,6 +170,68 @@ public static class StoreBench
         {
             var watch = Stopwatch.StartNew();
             store.Summarize(new Selector("bench.q"), range, [], options);
+            if (i == 0)
+            {
+                first = watch.Elapsed.TotalMilliseconds;
+            }
+            else if (i >= 3)
+            {
+                samples.Add(watch.Elapsed.TotalMilliseconds);
+            }
+        }
+
+        samples.Sort();
+        return (first, samples[samples.Count / 2], samples[(int)Math.Min(samples.Count - 1, Math.Ceiling(samples.Count * 0.99) - 1)]);
+    }
+
+    // The load generator's Series query: 6 h at 1 min steps, its window not aligned to the buckets,
+    // so each step widens to seven 10 s buckets; each way gets its own store, so both start cold.
+    private static ((double FirstMs, double MedianMs, double P99Ms) PerStep, (double FirstMs, double MedianMs, double P99Ms) OneCall) StepsLatency(bool quick)
+    {
+        var window = TimeSpan.FromHours(6);
+        var options = new SummaryOptions();
+        int runs = quick ? 5 : 20;
+        (double, double, double) Measure(Action<ShardedSeriesStore, TimeRange> query)
+        {
+            var (store, range) = FilledStore(window);
+            range = new TimeRange(range.FromUnixMs - 4_321, range.ToUnixMs - 4_321);
+            return Timed(runs, () => query(store, range));
+        }
+
+        var perStep = Measure((store, range) =>
+        {
+            for (long from = range.FromUnixMs; from < range.ToUnixMs; from += 60_000)
+            {
+                store.Summarize(new Selector("bench.q"), new TimeRange(from, Math.Min(from + 60_000, range.ToUnixMs)), [], options);
+            }
+        });
+        var oneCall = Measure((store, range) => store.SummarizeSteps(new Selector("bench.q"), range, 60_000, [], options));
+        return (perStep, oneCall);
+    }
+
+    private static (ShardedSeriesStore Store, TimeRange Range) FilledStore(TimeSpan window)
+    {
+        var clock = new FakeTimeProvider(DateTimeOffset.FromUnixTimeMilliseconds(1_800_000_000_000));
+        var store = new ShardedSeriesStore(new StoreOptions(), clock);
+        long now = clock.GetUtcNow().ToUnixTimeMilliseconds();
+        var batches = Batches(2);
+        for (long t = now - (long)window.TotalMilliseconds; t < now; t += 10_000)
+        {
+            store.AppendAsync(new SeriesBatch { Metric = "bench.q", Values = batches[0], TimeUnixMs = t }).AsTask().Wait();
+            store.AppendAsync(new SeriesBatch { Metric = "bench.q", Values = batches[1], TimeUnixMs = t }).AsTask().Wait();
+        }
+
+        return (store, new TimeRange(now - (long)window.TotalMilliseconds, now));
+    }
+
+    private static (double FirstMs, double MedianMs, double P99Ms) Timed(int runs, Action query)
+    {
+        var samples = new List<double>();
+        double first = 0;
+        for (int i = 0; i < runs + 3; i++)
+        {
+            var watch = Stopwatch.StartNew();
+            query();
             if (i == 0)
             {
                 first = watch.Elapsed.TotalMilliseconds;
