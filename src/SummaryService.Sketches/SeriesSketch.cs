@@ -229,7 +229,7 @@ public sealed class SeriesSketch
         if (count <= SmallLimitOf(options) && quantiles.LevelCount == 1 && quantiles.IsExact && modes.IsExact)
         {
             ReadOnlySpan<double> items = quantiles.LevelItems(0);
-            if (items.Length == count && SameEntries(ModeSketch.ExactEntriesOf(items, options.ModeResolution), modes.ExactEntries!) && SameRange(items, quantiles))
+            if (items.Length == count && ModeSketch.ExactEntriesOf(items, options.ModeResolution).AsSpan().SequenceEqual(modes.ExactEntries) && SameRange(items, quantiles))
             {
                 return new SeriesSketch(moments, options, quantiles.RandomState, null, null, count == 0 ? null : items.ToArray());
             }
@@ -268,24 +268,6 @@ public sealed class SeriesSketch
             ModeDepth = modes.Depth,
             ModeCandidates = modes.CandidateLimit,
         };
-    }
-
-    private static bool SameEntries(ReadOnlySpan<(long Key, long Count)> a, ReadOnlySpan<(long Key, long Count)> b)
-    {
-        if (a.Length != b.Length)
-        {
-            return false;
-        }
-
-        for (int i = 0; i < a.Length; i++)
-        {
-            if (a[i] != b[i])
-            {
-                return false;
-            }
-        }
-
-        return true;
     }
 
     // Extremes compared by bits: a rebuilt KLL part takes them from its items, so they must agree to the sign of zero.
@@ -346,12 +328,7 @@ public sealed class SeriesSketch
             return;
         }
 
-        (KllSketch quantiles, ModeSketch modes) = EmptyParts(_options, _seed);
-        ReadOnlySpan<double> held = HeldValues;
-        quantiles.AddUnchecked(held);
-        modes.AddUnchecked(held);
-        _quantiles = quantiles;
-        _modes = modes;
+        (_quantiles, _modes) = FullParts();
         _small = null;
     }
 }

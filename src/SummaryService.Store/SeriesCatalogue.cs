@@ -49,7 +49,7 @@ internal sealed class SeriesCatalogue
             {
                 foreach (var (key, timeline) in series)
                 {
-                    if (key.Matches(selector.MatchLabels))
+                    if (selector.Selects(key))
                     {
                         selected.Add(timeline);
                     }

@@ -217,35 +217,13 @@ public sealed class ModeSketch
     /// </summary>
     internal static (long Key, long Count)[] ExactEntriesOf(ReadOnlySpan<double> values, double resolution)
     {
-        Span<long> keys = values.Length <= 64 ? stackalloc long[values.Length] : new long[values.Length];
-        for (int i = 0; i < values.Length; i++)
+        var counter = new ExactCounter();
+        foreach (double value in values)
         {
-            keys[i] = ModeKey.Of(values[i], resolution);
+            counter.Add(ModeKey.Of(value, resolution), 1);
         }
 
-        keys.Sort();
-        int distinct = 0;
-        for (int i = 0; i < keys.Length; i++)
-        {
-            if (i == 0 || keys[i] != keys[i - 1])
-            {
-                distinct++;
-            }
-        }
-
-        var entries = new (long Key, long Count)[distinct];
-        int next = -1;
-        for (int i = 0; i < keys.Length; i++)
-        {
-            if (i == 0 || keys[i] != keys[i - 1])
-            {
-                entries[++next] = (keys[i], 0);
-            }
-
-            entries[next].Count++;
-        }
-
-        return entries;
+        return counter.SortedEntries();
     }
 
     /// <summary>

@@ -144,44 +144,9 @@ public static class StoreBench
     // The first query builds and caches the blocks it can; later ones reuse them, as a dashboard's repeated queries do.
     private static (double FirstMs, double MedianMs, double P99Ms) QueryLatency(TimeSpan window, bool quick)
     {
-        var clock = new FakeTimeProvider(DateTimeOffset.FromUnixTimeMilliseconds(1_800_000_000_000));
-        var store = new ShardedSeriesStore(new StoreOptions(), clock);
-        long now = clock.GetUtcNow().ToUnixTimeMilliseconds();
-        var batches = Batches(16);
-        var buckets = new List<long>();
-        for (long t = now - (long)window.TotalMilliseconds; t < now; t += t < now - (6 * 3_600_000L) ? 60_000 : 10_000)
-        {
-            buckets.Add(t);
-        }
-
-        foreach (long t in buckets)
-        {
-            // Two thousand values per bucket: past k = 200, so every bucket is a full, compacted sketch.
-            store.AppendAsync(new SeriesBatch { Metric = "bench.q", Values = batches[0], TimeUnixMs = t }).AsTask().Wait();
-            store.AppendAsync(new SeriesBatch { Metric = "bench.q", Values = batches[1], TimeUnixMs = t }).AsTask().Wait();
-        }
-
-        var range = new TimeRange(now - (long)window.TotalMilliseconds, now);
+        var (store, range) = FilledStore(window);
         var options = new SummaryOptions();
-        var samples = new List<double>();
-        double first = 0;
-        int runs = quick ? 10 : 60;
-        for (int i = 0; i < runs + 3; i++)
-        {
-            var watch = Stopwatch.StartNew();
-            store.Summarize(new Selector("bench.q"), range, [], options);
-            if (i == 0)
-            {
-                first = watch.Elapsed.TotalMilliseconds;
-            }
-            else if (i >= 3)
-            {
-                samples.Add(watch.Elapsed.TotalMilliseconds);
-            }
-        }
-
-        samples.Sort();
-        return (first, samples[samples.Count / 2], samples[(int)Math.Min(samples.Count - 1, Math.Ceiling(samples.Count * 0.99) - 1)]);
+        return Timed(quick ? 10 : 60, () => store.Summarize(new Selector("bench.q"), range, [], options));
     }
 
     // The load generator's Series query: 6 h at 1 min steps, its window not aligned to the buckets,
@@ -209,13 +174,15 @@ public static class StoreBench
         return (perStep, oneCall);
     }
 
+    // One series with a bucket at every 10 s for the last 6 h and every minute before that, each of
+    // two thousand values: past k = 200, so every bucket is a full, compacted sketch.
     private static (ShardedSeriesStore Store, TimeRange Range) FilledStore(TimeSpan window)
     {
         var clock = new FakeTimeProvider(DateTimeOffset.FromUnixTimeMilliseconds(1_800_000_000_000));
         var store = new ShardedSeriesStore(new StoreOptions(), clock);
         long now = clock.GetUtcNow().ToUnixTimeMilliseconds();
         var batches = Batches(2);
-        for (long t = now - (long)window.TotalMilliseconds; t < now; t += 10_000)
+        for (long t = now - (long)window.TotalMilliseconds; t < now; t += t < now - (6 * 3_600_000L) ? 60_000 : 10_000)
         {
             store.AppendAsync(new SeriesBatch { Metric = "bench.q", Values = batches[0], TimeUnixMs = t }).AsTask().Wait();
             store.AppendAsync(new SeriesBatch { Metric = "bench.q", Values = batches[1], TimeUnixMs = t }).AsTask().Wait();
