@@ -5,8 +5,8 @@ namespace SummaryService.Store;
 /// <summary>Checks a batch completely before any of it is applied, so a rejected batch changes nothing.</summary>
 internal sealed class BatchValidator(StoreOptions options)
 {
-    /// <summary>Resolves every value's timestamp, checking names, labels, values and times.</summary>
-    public long[] Validate(SeriesBatch batch, long nowMs)
+    /// <summary>Resolves every value's timestamp, as runs of equal neighbours, checking names, labels, values and times.</summary>
+    public TimeRun[] Validate(SeriesBatch batch, long nowMs)
     {
         ValidateName(batch.Metric);
         if (batch.Labels.Count > options.MaxLabels)
@@ -37,29 +37,39 @@ internal sealed class BatchValidator(StoreOptions options)
             throw new StoreRejectedException(RejectReason.InvalidBatchSize, "value_times_unix_ms", $"value_times_unix_ms has {perValue.Length} entries for {values.Length} values; give one per value or none.");
         }
 
-        var times = new long[values.Length];
-        long oldest = nowMs - options.TotalRetentionMs;
-        long newest = nowMs + (long)options.MaxFuture.TotalMilliseconds;
-        for (int i = 0; i < times.Length; i++)
+        if (perValue.Length == 0)
         {
-            long raw = perValue.Length == 0 ? batch.TimeUnixMs : perValue[i];
-            long t = raw == 0 ? nowMs : raw;
-            if (t < oldest)
-            {
-                string field = TimeField(perValue.Length, i);
-                throw new StoreRejectedException(RejectReason.TooOld, field, $"{field} is {t}, older than the retention limit {oldest} ({TimeSpan.FromMilliseconds(options.TotalRetentionMs)} before now).");
-            }
-
-            if (t > newest)
-            {
-                string field = TimeField(perValue.Length, i);
-                throw new StoreRejectedException(RejectReason.TooFarInFuture, field, $"{field} is {t}, more than {options.MaxFuture} ahead of the store's clock ({nowMs}).");
-            }
-
-            times[i] = t;
+            return [new TimeRun(Checked(batch.TimeUnixMs, nowMs, perValueTimes: 0, 0), values.Length)];
         }
 
-        return times;
+        var times = new long[perValue.Length];
+        for (int i = 0; i < times.Length; i++)
+        {
+            times[i] = Checked(perValue[i], nowMs, perValue.Length, i);
+        }
+
+        return TimeRun.Of(times);
+    }
+
+    // A time of 0 means "now"; anything past retention or too far ahead refuses the whole batch.
+    private long Checked(long raw, long nowMs, int perValueTimes, int index)
+    {
+        long t = raw == 0 ? nowMs : raw;
+        long oldest = nowMs - options.TotalRetentionMs;
+        if (t < oldest)
+        {
+            string field = TimeField(perValueTimes, index);
+            throw new StoreRejectedException(RejectReason.TooOld, field, $"{field} is {t}, older than the retention limit {oldest} ({TimeSpan.FromMilliseconds(options.TotalRetentionMs)} before now).");
+        }
+
+        long newest = nowMs + (long)options.MaxFuture.TotalMilliseconds;
+        if (t > newest)
+        {
+            string field = TimeField(perValueTimes, index);
+            throw new StoreRejectedException(RejectReason.TooFarInFuture, field, $"{field} is {t}, more than {options.MaxFuture} ahead of the store's clock ({nowMs}).");
+        }
+
+        return t;
     }
 
     // Named only when a value is refused, so accepted batches format no per-value strings.

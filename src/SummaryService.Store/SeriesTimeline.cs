@@ -29,22 +29,22 @@ internal sealed class SeriesTimeline(SeriesKey key, StoreOptions options)
 
     public int CachedBlocks => _blocks.Count;
 
-    /// <summary>Adds values whose timestamps the validator has resolved; returns the change in estimated bytes.</summary>
-    public long Add(ReadOnlySpan<double> values, ReadOnlySpan<long> times, long nowMs)
+    /// <summary>Adds values whose timestamps the validator has resolved into runs; returns the change in estimated bytes.</summary>
+    public long Add(ReadOnlySpan<double> values, ReadOnlySpan<TimeRun> runs, long nowMs)
     {
         long grown = 0;
         int start = 0;
-        while (start < values.Length)
+        int run = 0;
+        while (run < runs.Length)
         {
-            var (tier, bucketStart) = Locate(times[start], nowMs);
-            // Most batches carry one timestamp, so equal neighbours skip the tier lookup.
-            int end = start + 1;
-            while (end < values.Length && (times[end] == times[end - 1] || Locate(times[end], nowMs) == (tier, bucketStart)))
+            var where = Locate(runs[run].TimeUnixMs, nowMs);
+            int end = start + runs[run++].Count;
+            while (run < runs.Length && Locate(runs[run].TimeUnixMs, nowMs) == where)
             {
-                end++;
+                end += runs[run++].Count;
             }
 
-            grown += AddToBucket(tier, bucketStart, values[start..end]);
+            grown += AddToBucket(where.Tier, where.BucketStart, values[start..end]);
             start = end;
         }
 
@@ -52,19 +52,13 @@ internal sealed class SeriesTimeline(SeriesKey key, StoreOptions options)
     }
 
     /// <summary>Estimated bytes a batch would add at most: one fresh bucket per distinct bucket it touches.</summary>
-    public long NewBucketsFor(ReadOnlySpan<long> times, long nowMs)
+    public long NewBucketsFor(ReadOnlySpan<TimeRun> runs, long nowMs)
     {
         long fresh = 0;
         (int, long) last = (-1, 0);
-        for (int i = 0; i < times.Length; i++)
+        foreach (TimeRun run in runs)
         {
-            long t = times[i];
-            if (i > 0 && t == times[i - 1])
-            {
-                continue;
-            }
-
-            var where = Locate(t, nowMs);
+            var where = Locate(run.TimeUnixMs, nowMs);
             if (where != last && !_tiers[where.Tier].ContainsKey(where.BucketStart))
             {
                 fresh++;

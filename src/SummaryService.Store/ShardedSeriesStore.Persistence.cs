@@ -123,7 +123,7 @@ public sealed partial class ShardedSeriesStore
 
             lock (timeline)
             {
-                shard.EstimatedBytes += timeline.Add(values.ToArray(), times.ToArray(), now);
+                shard.EstimatedBytes += timeline.Add(values.ToArray(), TimeRun.Of(times.ToArray()), now);
             }
 
             shard.AppliedLsn = Math.Max(shard.AppliedLsn, record.Lsn);
@@ -153,7 +153,7 @@ public sealed partial class ShardedSeriesStore
         return sameTierLayout && aligned ? (int)bucket.Tier : -1;
     }
 
-    private static LogRecord LogRecordOf(ulong lsn, SeriesBatch batch, long[] times)
+    private static LogRecord LogRecordOf(ulong lsn, SeriesBatch batch, TimeRun[] times)
     {
         var record = new LogRecord { Lsn = lsn, Metric = batch.Metric, Producer = batch.Producer, Sequence = batch.Sequence };
         foreach (var (name, value) in batch.Labels)
@@ -162,14 +162,21 @@ public sealed partial class ShardedSeriesStore
         }
 
         record.Values.AddRange(batch.Values.ToArray());
-        bool oneTime = batch.ValueTimesUnixMs.IsEmpty;
-        if (oneTime)
+
+        // The log keeps the batch's own form: one time for the batch, or one per value.
+        if (batch.ValueTimesUnixMs.IsEmpty)
         {
-            record.TimesUnixMs.Add(times[0]);
+            record.TimesUnixMs.Add(times[0].TimeUnixMs);
         }
         else
         {
-            record.TimesUnixMs.AddRange(times);
+            foreach (TimeRun run in times)
+            {
+                for (int i = 0; i < run.Count; i++)
+                {
+                    record.TimesUnixMs.Add(run.TimeUnixMs);
+                }
+            }
         }
 
         return record;

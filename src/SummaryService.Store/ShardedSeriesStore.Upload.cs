@@ -20,7 +20,7 @@ public sealed partial class ShardedSeriesStore
         RequireCompatible(upload.Sketch);
 
         // The name, label and time rules are the batch rules: one stand-in value carries the timestamp.
-        long[] times = _validator.Validate(new SeriesBatch { Metric = upload.Metric, Labels = upload.Labels, Values = new double[] { 0 }, TimeUnixMs = upload.TimeUnixMs }, now);
+        TimeRun[] times = _validator.Validate(new SeriesBatch { Metric = upload.Metric, Labels = upload.Labels, Values = new double[] { 0 }, TimeUnixMs = upload.TimeUnixMs }, now);
         var key = new SeriesKey(upload.Metric, upload.Labels);
         SeriesSketch sketch = upload.Sketch.Clone();
         SeriesShard shard = ShardOf(key);
@@ -36,12 +36,12 @@ public sealed partial class ShardedSeriesStore
             ulong lsn = (ulong)Interlocked.Increment(ref _lastLsn);
             if (Journal is { } journal)
             {
-                durable = journal(UploadRecordOf(lsn, upload, times[0], sketch));
+                durable = journal(UploadRecordOf(lsn, upload, times[0].TimeUnixMs, sketch));
             }
 
             lock (timeline)
             {
-                shard.EstimatedBytes += timeline.Place(-1, times[0], sketch, now);
+                shard.EstimatedBytes += timeline.Place(-1, times[0].TimeUnixMs, sketch, now);
             }
 
             shard.AppliedLsn = lsn;

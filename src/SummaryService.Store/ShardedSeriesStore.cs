@@ -54,7 +54,7 @@ public sealed partial class ShardedSeriesStore : ISeriesStore
     {
         ArgumentNullException.ThrowIfNull(batch);
         long now = NowMs();
-        long[] times = _validator.Validate(batch, now);
+        TimeRun[] times = _validator.Validate(batch, now);
         var key = new SeriesKey(batch.Metric, batch.Labels);
         SeriesShard shard = ShardOf(key);
         Task? durable = null;

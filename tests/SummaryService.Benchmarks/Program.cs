@@ -20,7 +20,7 @@ public static class Program
                 SizesReport.Write(Console.Out);
                 return 0;
             case "store":
-                StoreBench.Run(Console.Out, quick: args.Contains("quick"), queriesOnly: args.Contains("queries"));
+                StoreBench.Run(Console.Out, quick: args.Contains("quick"), queriesOnly: args.Contains("queries"), appendOnly: args.Contains("append"));
                 return 0;
         }
 

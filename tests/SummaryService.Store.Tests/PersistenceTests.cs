@@ -111,6 +111,19 @@ public class PersistenceTests
         ShardCount = 4,
     };
 
+    // One time per value, over the last 30 s and so across 10 s buckets, often repeating its
+    // neighbour's: a batch both of runs of equal times and of times that change from value to value.
+    private static long[] ScatteredTimes(Random rng, int count, long nowMs)
+    {
+        var times = new long[count];
+        for (int i = 0; i < count; i++)
+        {
+            times[i] = i > 0 && rng.Next(2) == 0 ? times[i - 1] : nowMs - (1000L * rng.Next(0, 30));
+        }
+
+        return times;
+    }
+
     internal static async Task FillAsync(ISeriesStore store, FakeTimeProvider clock, int seed)
     {
         var rng = new Random(seed);
@@ -124,6 +137,7 @@ public class PersistenceTests
                 Metric = "svc.latency",
                 Labels = new Dictionary<string, string> { ["route"] = routes[rng.Next(routes.Length)] },
                 Values = values,
+                ValueTimesUnixMs = i % 3 == 0 ? ScatteredTimes(rng, values.Length, clock.GetUtcNow().ToUnixTimeMilliseconds()) : default,
                 Producer = "p",
                 Sequence = (ulong)((seed * 1000) + i + 1),
             });

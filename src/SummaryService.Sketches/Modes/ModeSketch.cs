@@ -378,28 +378,46 @@ public sealed class ModeSketch
 
         // Lowest count, ties to the smallest key: a choice that depends on the set, not on the order
         // it is held in, so a restored sketch evicts exactly what the original would have.
-        int weakest = counts.IndexOf(_candidateFloor);
-        int next = weakest + 1;
-        while (next < counts.Length)
-        {
-            int tie = counts[next..].IndexOf(_candidateFloor);
-            if (tie < 0)
-            {
-                break;
-            }
-
-            next += tie;
-            if (keys[next] < keys[weakest])
-            {
-                weakest = next;
-            }
-
-            next++;
-        }
-
+        int weakest = keys.IndexOf(SmallestKeyAt(keys, counts, _candidateFloor));
         keys[weakest] = key;
         counts[weakest] = estimate;
         RefreshFloor();
+    }
+
+    // The smallest key among the candidates counted exactly `count`, in vector passes: with many
+    // candidates tied at the floor, as in a young sketch of distinct values, a scan that stopped at
+    // each tie took time in proportion to the ties. Keys in a candidate set are distinct.
+    private static long SmallestKeyAt(ReadOnlySpan<long> keys, ReadOnlySpan<long> counts, long count)
+    {
+        int width = Vector<long>.Count;
+        long smallest = long.MaxValue;
+        int i = 0;
+        if (Vector.IsHardwareAccelerated && keys.Length >= width)
+        {
+            var wanted = new Vector<long>(count);
+            var none = new Vector<long>(long.MaxValue);
+            var lanes = none;
+            for (; i + width <= keys.Length; i += width)
+            {
+                var tied = Vector.Equals(new Vector<long>(counts[i..]), wanted);
+                lanes = Vector.Min(lanes, Vector.ConditionalSelect(tied, new Vector<long>(keys[i..]), none));
+            }
+
+            for (int lane = 0; lane < width; lane++)
+            {
+                smallest = Math.Min(smallest, lanes[lane]);
+            }
+        }
+
+        for (; i < keys.Length; i++)
+        {
+            if (counts[i] == count)
+            {
+                smallest = Math.Min(smallest, keys[i]);
+            }
+        }
+
+        return smallest;
     }
 
     private void RefreshFloor()
