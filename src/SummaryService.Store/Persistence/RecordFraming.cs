@@ -1,5 +1,6 @@
 using System.Buffers.Binary;
 using System.IO.Hashing;
+using Google.Protobuf;
 
 namespace SummaryService.Store.Persistence;
 
@@ -21,6 +22,23 @@ internal static class RecordFraming
         BinaryPrimitives.WriteUInt32LittleEndian(header[4..], Crc32.HashToUInt32(payload));
         stream.Write(header);
         stream.Write(payload);
+    }
+
+    /// <summary>
+    /// Frames a message at the end of a memory stream, serializing it in place: no payload array per
+    /// record, which matters on the log's path, where every batch is one record.
+    /// </summary>
+    public static void Write(MemoryStream stream, IMessage message)
+    {
+        int start = checked((int)stream.Length);
+        int length = message.CalculateSize();
+        stream.SetLength(start + HeaderBytes + length);
+        Span<byte> framed = stream.GetBuffer().AsSpan(start, HeaderBytes + length);
+        Span<byte> payload = framed[HeaderBytes..];
+        message.WriteTo(payload);
+        BinaryPrimitives.WriteUInt32LittleEndian(framed, (uint)length);
+        BinaryPrimitives.WriteUInt32LittleEndian(framed[4..], Crc32.HashToUInt32(payload));
+        stream.Position = stream.Length;
     }
 
     /// <summary>

@@ -19,7 +19,15 @@ internal sealed class WriteAheadLog : IAsyncDisposable
     private readonly SemaphoreSlim _wake = new(0);
     private readonly CancellationTokenSource _stopping = new();
     private readonly Task _loop;
+    // Largest group buffer kept for reuse; a burst's larger buffer is let go after its flush.
+    private const int KeptBufferBytes = 16 << 20;
+
     private MemoryStream _pending = new();
+
+    // The buffer the last group was written from, emptied, for the next group to fill: a fresh
+    // buffer per group regrew by doubling every few milliseconds, through large-object-heap sizes
+    // once a group held more than a few batches. Null while the flushing loop holds it, or after a failed write.
+    private MemoryStream? _spare = new();
     private TaskCompletionSource _group = NewGroup();
     private FileStream _segment;
     private Exception? _failure;
@@ -49,7 +57,7 @@ internal sealed class WriteAheadLog : IAsyncDisposable
                 throw new IOException("The write-ahead log has failed; no batch can be made durable.", _failure);
             }
 
-            RecordFraming.Write(_pending, record.ToByteArray());
+            RecordFraming.Write(_pending, record);
             Signal();
             return _group.Task;
         }
@@ -128,7 +136,8 @@ internal sealed class WriteAheadLog : IAsyncDisposable
         {
             batch = _pending;
             group = _group;
-            _pending = new MemoryStream();
+            _pending = _spare ?? new MemoryStream();
+            _spare = null;
             _group = NewGroup();
             rotate = _rotateRequested;
             rotateAt = _rotateAt;
@@ -150,6 +159,11 @@ internal sealed class WriteAheadLog : IAsyncDisposable
             }
 
             group.TrySetResult();
+            batch.SetLength(0);
+            lock (_gate)
+            {
+                _spare = batch.Capacity <= KeptBufferBytes ? batch : null;
+            }
             if (rotate)
             {
                 _segment.Dispose();
