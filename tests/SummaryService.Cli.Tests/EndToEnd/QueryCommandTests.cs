@@ -118,7 +118,9 @@ public sealed class QueryCommandTests(ServerFixture server)
     public async Task Follow_until_cancelled_ends_cleanly()
     {
         await CliRun.AgainstAsync(server.Address, ["send", "otterbyte.test.followed", "1"]);
-        using var stop = new CancellationTokenSource(TimeSpan.FromMilliseconds(700));
+        // Long enough for the first update on a busy machine, whose first call also pays for JIT
+        // and connection set-up (700 ms once saw none); later ones come every 100 ms.
+        using var stop = new CancellationTokenSource(TimeSpan.FromSeconds(3));
         var run = await CliRun.RunAsync(["follow", "otterbyte.test.followed", "--every", "100ms", "--json", "--server", server.Address.ToString()], cancellationToken: stop.Token);
         Assert.Equal(0, run.ExitCode);
         Assert.NotEmpty(run.Lines);
