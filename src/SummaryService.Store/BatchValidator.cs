@@ -37,32 +37,32 @@ internal sealed class BatchValidator(StoreOptions options)
             throw new StoreRejectedException(RejectReason.InvalidBatchSize, "value_times_unix_ms", $"value_times_unix_ms has {perValue.Length} entries for {values.Length} values; give one per value or none.");
         }
 
+        long oldest = nowMs - options.TotalRetentionMs;
+        long newest = nowMs + (long)options.MaxFuture.TotalMilliseconds;
         if (perValue.Length == 0)
         {
-            return [new TimeRun(Checked(batch.TimeUnixMs, nowMs, perValueTimes: 0, 0), values.Length)];
+            return [new TimeRun(Checked(batch.TimeUnixMs, nowMs, oldest, newest, perValueTimes: 0, 0), values.Length)];
         }
 
         var times = new long[perValue.Length];
         for (int i = 0; i < times.Length; i++)
         {
-            times[i] = Checked(perValue[i], nowMs, perValue.Length, i);
+            times[i] = Checked(perValue[i], nowMs, oldest, newest, perValue.Length, i);
         }
 
         return TimeRun.Of(times);
     }
 
     // A time of 0 means "now"; anything past retention or too far ahead refuses the whole batch.
-    private long Checked(long raw, long nowMs, int perValueTimes, int index)
+    private long Checked(long raw, long nowMs, long oldest, long newest, int perValueTimes, int index)
     {
         long t = raw == 0 ? nowMs : raw;
-        long oldest = nowMs - options.TotalRetentionMs;
         if (t < oldest)
         {
             string field = TimeField(perValueTimes, index);
             throw new StoreRejectedException(RejectReason.TooOld, field, $"{field} is {t}, older than the retention limit {oldest} ({TimeSpan.FromMilliseconds(options.TotalRetentionMs)} before now).");
         }
 
-        long newest = nowMs + (long)options.MaxFuture.TotalMilliseconds;
         if (t > newest)
         {
             string field = TimeField(perValueTimes, index);

@@ -18,8 +18,7 @@ internal static class RecordFraming
     public static void Write(Stream stream, ReadOnlySpan<byte> payload)
     {
         Span<byte> header = stackalloc byte[HeaderBytes];
-        BinaryPrimitives.WriteUInt32LittleEndian(header, (uint)payload.Length);
-        BinaryPrimitives.WriteUInt32LittleEndian(header[4..], Crc32.HashToUInt32(payload));
+        WriteHeader(header, payload);
         stream.Write(header);
         stream.Write(payload);
     }
@@ -36,9 +35,14 @@ internal static class RecordFraming
         Span<byte> framed = stream.GetBuffer().AsSpan(start, HeaderBytes + length);
         Span<byte> payload = framed[HeaderBytes..];
         message.WriteTo(payload);
-        BinaryPrimitives.WriteUInt32LittleEndian(framed, (uint)length);
-        BinaryPrimitives.WriteUInt32LittleEndian(framed[4..], Crc32.HashToUInt32(payload));
+        WriteHeader(framed, payload);
         stream.Position = stream.Length;
+    }
+
+    private static void WriteHeader(Span<byte> header, ReadOnlySpan<byte> payload)
+    {
+        BinaryPrimitives.WriteUInt32LittleEndian(header, (uint)payload.Length);
+        BinaryPrimitives.WriteUInt32LittleEndian(header[4..], Crc32.HashToUInt32(payload));
     }
 
     /// <summary>

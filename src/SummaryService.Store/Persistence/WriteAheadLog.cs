@@ -11,6 +11,9 @@ namespace SummaryService.Store.Persistence;
 /// </summary>
 internal sealed class WriteAheadLog : IAsyncDisposable
 {
+    // Largest group buffer kept for reuse; a burst's larger buffer is let go after its flush.
+    private const int KeptBufferBytes = 16 << 20;
+
     private readonly object _gate = new();
     private readonly string _directory;
     private readonly TimeSpan _syncInterval;
@@ -19,9 +22,6 @@ internal sealed class WriteAheadLog : IAsyncDisposable
     private readonly SemaphoreSlim _wake = new(0);
     private readonly CancellationTokenSource _stopping = new();
     private readonly Task _loop;
-    // Largest group buffer kept for reuse; a burst's larger buffer is let go after its flush.
-    private const int KeptBufferBytes = 16 << 20;
-
     private MemoryStream _pending = new();
 
     // The buffer the last group was written from, emptied, for the next group to fill: a fresh

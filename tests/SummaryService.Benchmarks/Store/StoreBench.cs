@@ -18,6 +18,7 @@ public static class StoreBench
     private const int Series = 1000;
     private const int BatchValues = 1000;
     private static readonly int[] WalProducers = [32, 128, 512];
+    private static readonly string[] Names = Enumerable.Range(0, Series).Select(i => $"bench.s{i}").ToArray();
 
     public static void Run(TextWriter output, bool quick, bool queriesOnly = false, bool appendOnly = false)
     {
@@ -54,8 +55,8 @@ public static class StoreBench
         FoldWithoutStore(warmUp);
         double bare = FoldWithoutStore(duration);
         output.WriteLine($"| the same batches folded straight into {Series} sketches, no store (the bound on the first row) | {bare / 1e6:F1} M values/s |");
-        IngestNoneOnEveryCore(warmUp);
-        double everyCore = IngestNoneOnEveryCore(duration);
+        IngestNone(warmUp, Environment.ProcessorCount);
+        var (everyCore, _) = IngestNone(duration, Environment.ProcessorCount);
         output.WriteLine($"| append, durability none, {Environment.ProcessorCount} threads, same batches (what the wal rows can reach) | {everyCore / 1e6:F1} M values/s |");
         // Group commit acknowledges every waiting batch with one fsync, so the rate grows with the
         // batches in flight until the CPU is the bound: one row per level of concurrency.
@@ -93,44 +94,29 @@ public static class StoreBench
             .ToArray();
     }
 
-    // Allocation per batch is counted alongside the rate: unlike the rate it does not move with the machine's load.
-    private static (double ValuesPerSecond, double BytesPerBatch) IngestNone(TimeSpan duration)
+    // Allocation per batch is counted alongside the rate: unlike the rate it does not move with the
+    // machine's load. With one writer per core it is the CPU bound of the wal rows, which run on every
+    // core too; each writer takes its own share of the series.
+    private static (double ValuesPerSecond, double BytesPerBatch) IngestNone(TimeSpan duration, int writers = 1)
     {
         var store = new ShardedSeriesStore(new StoreOptions(), TimeProvider.System);
         var batches = Batches(64);
-        var names = Enumerable.Range(0, Series).Select(i => $"bench.s{i}").ToArray();
         long values = 0;
-        int appended = 0;
-        long allocatedBefore = GC.GetAllocatedBytesForCurrentThread();
-        var watch = Stopwatch.StartNew();
-        for (; watch.Elapsed < duration; appended++)
-        {
-            var result = store.AppendAsync(new SeriesBatch { Metric = names[appended % Series], Values = batches[appended % batches.Length] });
-            values += result.Result.Accepted;
-        }
-
-        double seconds = watch.Elapsed.TotalSeconds;
-        return (values / seconds, (GC.GetAllocatedBytesForCurrentThread() - allocatedBefore) / (double)appended);
-    }
-
-    // One writer thread per core, each on its own share of the series: the CPU bound of the wal
-    // rows, which run on every core too.
-    private static double IngestNoneOnEveryCore(TimeSpan duration)
-    {
-        var store = new ShardedSeriesStore(new StoreOptions(), TimeProvider.System);
-        var batches = Batches(64);
-        var names = Enumerable.Range(0, Series).Select(i => $"bench.s{i}").ToArray();
-        int writers = Environment.ProcessorCount;
-        long values = 0;
+        long appended = 0;
+        long allocated = 0;
         var watch = Stopwatch.StartNew();
         var threads = Enumerable.Range(0, writers).Select(w => new Thread(() =>
         {
             long mine = 0;
-            for (int i = w; watch.Elapsed < duration; i += writers)
+            long count = 0;
+            long allocatedBefore = GC.GetAllocatedBytesForCurrentThread();
+            for (int i = w; watch.Elapsed < duration; i += writers, count++)
             {
-                mine += store.AppendAsync(new SeriesBatch { Metric = names[i % Series], Values = batches[i % batches.Length] }).Result.Accepted;
+                mine += store.AppendAsync(new SeriesBatch { Metric = Names[i % Series], Values = batches[i % batches.Length] }).Result.Accepted;
             }
 
+            Interlocked.Add(ref allocated, GC.GetAllocatedBytesForCurrentThread() - allocatedBefore);
+            Interlocked.Add(ref appended, count);
             Interlocked.Add(ref values, mine);
         })).ToArray();
         foreach (var thread in threads)
@@ -143,7 +129,7 @@ public static class StoreBench
             thread.Join();
         }
 
-        return values / watch.Elapsed.TotalSeconds;
+        return (values / watch.Elapsed.TotalSeconds, allocated / (double)appended);
     }
 
     // What the append rate cannot exceed: the sketch updates alone, one sketch per series, same batches in the same order.
@@ -180,7 +166,7 @@ public static class StoreBench
         {
             for (int i = p; watch.Elapsed < duration; i += producers)
             {
-                var result = await store.AppendAsync(new SeriesBatch { Metric = $"bench.s{i % Series}", Values = batches[i % batches.Length] });
+                var result = await store.AppendAsync(new SeriesBatch { Metric = Names[i % Series], Values = batches[i % batches.Length] });
                 Interlocked.Add(ref values, result.Accepted);
             }
         })).ToArray();
