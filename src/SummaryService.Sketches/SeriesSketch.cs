@@ -228,10 +228,10 @@ public sealed class SeriesSketch
         long count = moments.Count;
         if (count <= SmallLimitOf(options) && quantiles.LevelCount == 1 && quantiles.IsExact && modes.IsExact)
         {
-            ReadOnlySpan<double> items = quantiles.LevelItems(0);
+            double[] items = quantiles.LevelValues(0);
             if (items.Length == count && ModeSketch.ExactEntriesOf(items, options.ModeResolution).AsSpan().SequenceEqual(modes.ExactEntries) && SameRange(items, quantiles))
             {
-                return new SeriesSketch(moments, options, quantiles.RandomState, null, null, count == 0 ? null : items.ToArray());
+                return new SeriesSketch(moments, options, quantiles.RandomState, null, null, count == 0 ? null : items);
             }
         }
 

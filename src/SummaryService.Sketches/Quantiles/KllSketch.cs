@@ -39,7 +39,8 @@ public sealed class KllSketch
 
     private static readonly double[] s_shrink = BuildShrinkTable();
 
-    private double[][] _levels = [[]];
+    // Items are held as order keys (see OrderKeys), so sorts and merges compare integers.
+    private long[][] _levels = [[]];
     private int[] _sizes = new int[1];
     private long[] _compactions = new long[1];
     private int _levelCount = 1;
@@ -112,7 +113,7 @@ public sealed class KllSketch
         {
             // Object header and fields ~72 B; each array carries a 24 B header.
             long bytes = 72 + (3 * 24) + (_levels.Length * (8 + 4 + 8));
-            foreach (double[] level in _levels)
+            foreach (long[] level in _levels)
             {
                 bytes += 24 + (8L * level.Length);
             }
@@ -178,7 +179,7 @@ public sealed class KllSketch
         }
 
         EnsureRoom(0, 1);
-        _levels[0][_sizes[0]++] = value;
+        _levels[0][_sizes[0]++] = OrderKeys.Of(value);
         _retained++;
         TrackRange(value, value, 1);
     }
@@ -190,13 +191,10 @@ public sealed class KllSketch
             return;
         }
 
-        double min = values[0];
-        double max = values[0];
-        foreach (double v in values)
-        {
-            min = Math.Min(min, v);
-            max = Math.Max(max, v);
-        }
+        // The extremes are tracked as keys while the values are converted: their order is the
+        // values' order, −0 below +0, as Math.Min and Math.Max order them.
+        long min = long.MaxValue;
+        long max = long.MinValue;
 
         // A full sketch compacts every few values, so the span goes in as many small chunks, each
         // as large as the room left; the per-chunk work is kept to a few comparisons.
@@ -216,13 +214,13 @@ public sealed class KllSketch
 
             int take = Math.Min(Math.Min(_capacity - _retained, level0Limit - _sizes[0]), values.Length - next);
             EnsureRoom(0, take);
-            values.Slice(next, take).CopyTo(_levels[0].AsSpan(_sizes[0]));
+            OrderKeys.Convert(values.Slice(next, take), _levels[0].AsSpan(_sizes[0], take), ref min, ref max);
             _sizes[0] += take;
             _retained += take;
             next += take;
         }
 
-        TrackRange(min, max, values.Length);
+        TrackRange(OrderKeys.ValueOf(min), OrderKeys.ValueOf(max), values.Length);
     }
 
     /// <summary>Merges another sketch into this one. The other sketch is left unchanged.</summary>
@@ -246,7 +244,7 @@ public sealed class KllSketch
 
         for (int h = 0; h < other._levelCount; h++)
         {
-            ReadOnlySpan<double> items = other._levels[h].AsSpan(0, other._sizes[h]);
+            ReadOnlySpan<long> items = other._levels[h].AsSpan(0, other._sizes[h]);
             if (h == 0)
             {
                 EnsureRoom(0, items.Length);
@@ -284,7 +282,9 @@ public sealed class KllSketch
         }
 
         EnsureRoom(0, items.Length);
-        items.CopyTo(_levels[0].AsSpan(_sizes[0]));
+        long ignoredMin = long.MaxValue;
+        long ignoredMax = long.MinValue;
+        OrderKeys.Convert(items, _levels[0].AsSpan(_sizes[0], items.Length), ref ignoredMin, ref ignoredMax);
         _sizes[0] += items.Length;
         _retained += items.Length;
         TrackRange(min, max, items.Length);
@@ -300,7 +300,7 @@ public sealed class KllSketch
     public KllSketch Clone()
     {
         var copy = (KllSketch)MemberwiseClone();
-        copy._levels = new double[_levels.Length][];
+        copy._levels = new long[_levels.Length][];
         for (int h = 0; h < _levels.Length; h++)
         {
             copy._levels[h] = _levels[h].AsSpan(0, _sizes[h]).ToArray();
@@ -314,16 +314,16 @@ public sealed class KllSketch
     /// <summary>Builds the sorted, weighted view that answers rank and quantile queries.</summary>
     public KllSortedView CreateView()
     {
-        var values = new double[_retained];
+        var keys = new long[_retained];
         var weights = new long[_retained];
-        var scratchValues = new double[_retained];
+        var scratchKeys = new long[_retained];
         var scratchWeights = new long[_retained];
 
         // Level 0 is the only unsorted level; every level above is kept sorted, so the view is a
         // sequence of linear merges rather than a sort of everything.
         int filled = _sizes[0];
-        _levels[0].AsSpan(0, filled).CopyTo(values);
-        RunSort.Sort(values.AsSpan(0, filled));
+        _levels[0].AsSpan(0, filled).CopyTo(keys);
+        RunSort.Sort(keys.AsSpan(0, filled));
         weights.AsSpan(0, filled).Fill(1);
         for (int h = 1; h < _levelCount; h++)
         {
@@ -334,8 +334,8 @@ public sealed class KllSketch
             }
 
             long weight = 1L << h;
-            MergeWeighted(values, weights, filled, _levels[h].AsSpan(0, size), weight, scratchValues, scratchWeights);
-            (values, scratchValues) = (scratchValues, values);
+            MergeWeighted(keys, weights, filled, _levels[h].AsSpan(0, size), weight, scratchKeys, scratchWeights);
+            (keys, scratchKeys) = (scratchKeys, keys);
             (weights, scratchWeights) = (scratchWeights, weights);
             filled += size;
         }
@@ -345,7 +345,7 @@ public sealed class KllSketch
             weights[i] += weights[i - 1];
         }
 
-        return new KllSortedView(values, weights, Count, Min, Max);
+        return new KllSortedView(OrderKeys.ToValues(keys), weights, Count, Min, Max);
     }
 
     /// <summary>Capacity of level <paramref name="level"/> when <paramref name="levelCount"/> levels are in use.</summary>
@@ -355,7 +355,8 @@ public sealed class KllSketch
         return Math.Max(MinLevelWidth, (int)Math.Ceiling(k * s_shrink[depth]));
     }
 
-    internal ReadOnlySpan<double> LevelItems(int level) => _levels[level].AsSpan(0, _sizes[level]);
+    /// <summary>The items of one level as values, in the order the level holds them.</summary>
+    internal double[] LevelValues(int level) => OrderKeys.ToValues(_levels[level].AsSpan(0, _sizes[level]));
 
     internal long LevelCompactions(int level) => _compactions[level];
 
@@ -370,7 +371,7 @@ public sealed class KllSketch
             Min = count == 0 ? double.NaN : min,
             Max = count == 0 ? double.NaN : max,
             _levelCount = levels.Length,
-            _levels = levels,
+            _levels = levels.Select(l => OrderKeys.Of(l)).ToArray(),
             _sizes = levels.Select(l => l.Length).ToArray(),
             _compactions = compactions,
         };
@@ -433,7 +434,7 @@ public sealed class KllSketch
 
     private void CompactLevel(int h)
     {
-        double[] items = _levels[h];
+        long[] items = _levels[h];
         int size = _sizes[h];
         if (h == 0)
         {
@@ -444,7 +445,7 @@ public sealed class KllSketch
         // may be compacted without changing the error argument.
         int even = size & ~1;
         bool odd = (size & 1) == 1;
-        double leftover = odd ? items[even] : 0;
+        long leftover = odd ? items[even] : 0;
         int offset = _random.NextBit();
         int half = even / 2;
         for (int i = 0; i < half; i++)
@@ -514,7 +515,7 @@ public sealed class KllSketch
 
     private void EnsureRoom(int level, int extra)
     {
-        double[] items = _levels[level];
+        long[] items = _levels[level];
         int needed = _sizes[level] + extra;
         if (needed <= items.Length)
         {
@@ -525,8 +526,7 @@ public sealed class KllSketch
         Array.Resize(ref _levels[level], grown);
     }
 
-    // Merges sorted items into a sorted level in place, from the back, so no scratch buffer is needed.
-    private void MergeSortedInto(int level, ReadOnlySpan<double> incoming)
+    private void MergeSortedInto(int level, ReadOnlySpan<long> incoming)
     {
         if (incoming.IsEmpty)
         {
@@ -534,26 +534,13 @@ public sealed class KllSketch
         }
 
         EnsureRoom(level, incoming.Length);
-        double[] target = _levels[level];
-        int i = _sizes[level] - 1;
-        int j = incoming.Length - 1;
-        int write = _sizes[level] + incoming.Length - 1;
-        while (j >= 0)
-        {
-            if (i >= 0 && target[i] > incoming[j])
-            {
-                target[write--] = target[i--];
-            }
-            else
-            {
-                target[write--] = incoming[j--];
-            }
-        }
-
+        int size = _sizes[level];
+        Span<long> target = _levels[level].AsSpan(0, size + incoming.Length);
+        RunSort.Merge(target[..size], incoming, target);
         _sizes[level] += incoming.Length;
     }
 
-    private static void MergeWeighted(double[] values, long[] weights, int filled, ReadOnlySpan<double> level, long weight, double[] outValues, long[] outWeights)
+    private static void MergeWeighted(long[] values, long[] weights, int filled, ReadOnlySpan<long> level, long weight, long[] outValues, long[] outWeights)
     {
         int i = 0;
         int j = 0;

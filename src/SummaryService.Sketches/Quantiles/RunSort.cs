@@ -6,83 +6,110 @@ using System.Runtime.Intrinsics;
 namespace SummaryService.Sketches.Quantiles;
 
 /// <summary>
-/// Sorts the short runs of doubles that KLL compaction sorts at level 0 (mostly 8 to a few hundred
-/// items) without data-dependent branches.
+/// Sorts and merges the runs of order keys (see <see cref="OrderKeys"/>) a KLL sketch sorts and
+/// merges: level-0 runs of mostly 8 to a few hundred keys, and the merges of sorted levels, without
+/// data-dependent branches.
 /// </summary>
 /// <remarks>
-/// <para>Every value folded into a KLL sketch passes through exactly one level-0 sort, and on
-/// random data a comparison sort mispredicts about one branch per comparison, which made
-/// <see cref="MemoryExtensions.Sort{T}(Span{T})"/> about half of the sketch's update cost. Here values become 64-bit keys whose signed order is the
-/// order of the doubles (the sign-magnitude bits with the magnitude flipped for negatives, so
-/// −0 sorts just below +0), blocks of 8, 16 or 32 keys are sorted column-wise by a sorting network of
-/// vector compares and blends, and the columns are merged bottom-up by merges that select with
-/// arithmetic instead of branching, working from both ends of each pair of runs at once so two
-/// independent chains overlap.</para>
-/// <para>Distinct finite doubles have distinct keys, so the result is the unique ascending order
-/// and does not depend on the path taken: machines without 256-bit vectors sort the same keys
-/// with <see cref="MemoryExtensions.Sort{T}(Span{T})"/> and get the same bits.</para>
+/// <para>Every value folded into a KLL sketch passes through exactly one level-0 sort and about
+/// two merges, and on random data a comparison sort or merge mispredicts about one branch per
+/// comparison, which made them most of the sketch's update cost. Here blocks of 8, 16 or 32 keys
+/// are sorted column-wise by a sorting network of vector compares and blends, and runs are merged
+/// by merges that select with arithmetic instead of branching, working from both ends of each pair
+/// of runs at once so two independent chains overlap.</para>
+/// <para>Distinct keys sort one way only, so the result does not depend on the path taken:
+/// machines without 256-bit vectors sort with <see cref="MemoryExtensions.Sort{T}(Span{T})"/> and
+/// get the same keys.</para>
 /// </remarks>
 internal static class RunSort
 {
-    // Runs up to this long sort in stack buffers; longer ones (large merges) rent from the pool.
-    private const int StackLimit = 512;
-
     // Merges read up to one element (one column stride, 4 keys) past either end of a run.
     private const int Slack = 4;
 
-    /// <summary>Sorts finite values ascending, −0 before +0.</summary>
-    public static void Sort(Span<double> items) => Sort(items, Vector256.IsHardwareAccelerated);
+    // Scratch a thread keeps between calls (16 KB per buffer); longer runs rent from the pool.
+    private const int KeptScratch = 2048;
 
-    /// <summary>As <see cref="Sort(Span{double})"/>, choosing the path, so tests can show both give the same bits.</summary>
-    internal static void Sort(Span<double> items, bool vectorized)
+    [ThreadStatic]
+    private static long[]? t_first;
+
+    [ThreadStatic]
+    private static long[]? t_second;
+
+    /// <summary>Sorts keys ascending.</summary>
+    public static void Sort(Span<long> keys) => Sort(keys, Vector256.IsHardwareAccelerated);
+
+    /// <summary>As <see cref="Sort(Span{long})"/>, choosing the path, so tests can show both give the same keys.</summary>
+    internal static void Sort(Span<long> keys, bool vectorized)
     {
-        int n = items.Length;
+        int n = keys.Length;
         if (n < 2)
         {
+            return;
+        }
+
+        if (!vectorized)
+        {
+            keys.Sort();
             return;
         }
 
         int block = n <= 8 ? 8 : n <= 16 ? 16 : 32;
         int padded = (n + block - 1) & ~(block - 1);
         int length = padded + (2 * Slack);
-        long[]? rentedA = null;
-        long[]? rentedB = null;
-        Span<long> first = padded <= StackLimit ? stackalloc long[length] : (rentedA = ArrayPool<long>.Shared.Rent(length));
-        Span<long> second = padded <= StackLimit ? stackalloc long[length] : (rentedB = ArrayPool<long>.Shared.Rent(length));
-        Span<long> keys = first.Slice(Slack, padded);
-        Span<long> scratch = second.Slice(Slack, padded);
-        for (int i = 0; i < n; i++)
-        {
-            keys[i] = KeyOf(items[i]);
-        }
+        long[] first = Rent(ref t_first, length);
+        long[] second = Rent(ref t_second, length);
+        Span<long> work = first.AsSpan(Slack, padded);
+        keys.CopyTo(work);
 
-        // Finite doubles' keys stay below long.MaxValue, so the padding sorts last and is dropped.
-        keys[n..].Fill(long.MaxValue);
-        ReadOnlySpan<long> sorted = vectorized ? SortKeys(keys, scratch, block) : SortKeysPortably(keys);
-        for (int i = 0; i < n; i++)
-        {
-            items[i] = ValueOf(sorted[i]);
-        }
-
-        if (rentedA is not null)
-        {
-            ArrayPool<long>.Shared.Return(rentedA);
-            ArrayPool<long>.Shared.Return(rentedB!);
-        }
+        // Keys of finite doubles stay below long.MaxValue, so the padding sorts last and is dropped.
+        work[n..].Fill(long.MaxValue);
+        SortKeys(work, second.AsSpan(Slack, padded), block)[..n].CopyTo(keys);
+        Return(ref t_first, first);
+        Return(ref t_second, second);
     }
 
-    /// <summary>Key whose signed order is the order of the finite doubles.</summary>
-    internal static long KeyOf(double value) => Flip(BitConverter.DoubleToInt64Bits(value));
-
-    internal static double ValueOf(long key) => BitConverter.Int64BitsToDouble(Flip(key));
-
-    // Flips the magnitude bits of negative numbers; the sign bit is kept, so applying it twice is the identity.
-    private static long Flip(long bits) => bits ^ (long)((ulong)(bits >> 63) >> 1);
-
-    private static ReadOnlySpan<long> SortKeysPortably(Span<long> keys)
+    /// <summary>
+    /// Merges two ascending runs into <paramref name="output"/>, which must be exactly as long as
+    /// both together and may overlap either run (the runs are read from a copy).
+    /// </summary>
+    public static void Merge(ReadOnlySpan<long> x, ReadOnlySpan<long> y, Span<long> output)
     {
-        keys.Sort();
-        return keys;
+        if (x.IsEmpty || y.IsEmpty)
+        {
+            (x.IsEmpty ? y : x).CopyTo(output);
+            return;
+        }
+
+        long[] buffer = Rent(ref t_first, x.Length + y.Length + (3 * Slack));
+        x.CopyTo(buffer.AsSpan(Slack));
+        y.CopyTo(buffer.AsSpan((2 * Slack) + x.Length));
+        Merge(ref buffer[Slack], x.Length, ref buffer[(2 * Slack) + x.Length], y.Length, 0, ref MemoryMarshal.GetReference(output));
+        Return(ref t_first, buffer);
+    }
+
+    // The thread's kept buffer if it is long enough (taken out, so a nested use cannot share it), else a pooled one.
+    private static long[] Rent(ref long[]? kept, int length)
+    {
+        long[]? buffer = kept;
+        if (buffer is not null && buffer.Length >= length)
+        {
+            kept = null;
+            return buffer;
+        }
+
+        return length <= KeptScratch ? new long[Math.Max(length, 256)] : ArrayPool<long>.Shared.Rent(length);
+    }
+
+    private static void Return(ref long[]? kept, long[] buffer)
+    {
+        if (buffer.Length <= KeptScratch)
+        {
+            kept = buffer;
+        }
+        else
+        {
+            ArrayPool<long>.Shared.Return(buffer);
+        }
     }
 
     // Returns whichever of the two buffers ends up holding the sorted keys.

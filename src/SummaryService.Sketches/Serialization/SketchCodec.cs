@@ -141,7 +141,7 @@ public static class SketchCodec
         for (int h = 0; h < sketch.LevelCount; h++)
         {
             var level = new KllLevel { Compactions = (ulong)sketch.LevelCompactions(h) };
-            level.Items.AddRange(sketch.LevelItems(h).ToArray());
+            level.Items.AddRange(sketch.LevelValues(h));
             state.Levels.Add(level);
         }
 

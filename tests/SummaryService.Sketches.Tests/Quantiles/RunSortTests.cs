@@ -2,7 +2,7 @@ using SummaryService.Sketches.Quantiles;
 
 namespace SummaryService.Sketches.Tests.Quantiles;
 
-/// <summary>The level-0 sort agrees with a plain comparison sort on every length and shape of input.</summary>
+/// <summary>The level-0 sort and the level merge agree with a plain comparison sort on every length and shape of input.</summary>
 public class RunSortTests
 {
     [Fact]
@@ -22,7 +22,7 @@ public class RunSortTests
     public void Minus_zero_sorts_just_below_plus_zero_and_keeps_its_sign()
     {
         double[] values = [0.0, -0.0, 1.0, -0.0, 0.0, -1.0, double.Epsilon, -double.Epsilon];
-        RunSort.Sort(values);
+        values = SortedByKeys(values);
         double[] expected = [-1.0, -double.Epsilon, -0.0, -0.0, 0.0, 0.0, double.Epsilon, 1.0];
         Assert.Equal(expected.Select(BitConverter.DoubleToInt64Bits), values.Select(BitConverter.DoubleToInt64Bits));
     }
@@ -64,11 +64,11 @@ public class RunSortTests
         {
             foreach (double[] values in Shapes(n, rng))
             {
-                double[] vector = (double[])values.Clone();
-                double[] portable = (double[])values.Clone();
+                long[] vector = OrderKeys.Of(values);
+                long[] portable = OrderKeys.Of(values);
                 RunSort.Sort(vector, vectorized: true);
                 RunSort.Sort(portable, vectorized: false);
-                Assert.Equal(portable.Select(BitConverter.DoubleToInt64Bits), vector.Select(BitConverter.DoubleToInt64Bits));
+                Assert.Equal(portable, vector);
             }
         }
     }
@@ -78,9 +78,46 @@ public class RunSortTests
         // Reference: Array.Sort's comparison order, with −0 and +0 (equal to it) told apart by sign.
         double[] expected = (double[])values.Clone();
         Array.Sort(expected, static (a, b) => a != b ? a.CompareTo(b) : double.IsNegative(b).CompareTo(double.IsNegative(a)));
-        double[] actual = (double[])values.Clone();
-        RunSort.Sort(actual);
-        Assert.Equal(expected.Select(BitConverter.DoubleToInt64Bits), actual.Select(BitConverter.DoubleToInt64Bits));
+        Assert.Equal(expected.Select(BitConverter.DoubleToInt64Bits), SortedByKeys(values).Select(BitConverter.DoubleToInt64Bits));
+    }
+
+    [Fact]
+    public void Merging_two_sorted_runs_gives_what_sorting_both_together_gives()
+    {
+        var rng = new Random(73);
+        for (int n = 0; n <= 300; n += 3)
+        {
+            foreach (double[] values in Shapes(n, rng))
+            {
+                int split = n == 0 ? 0 : rng.Next(n + 1);
+                long[] x = OrderKeys.Of(values.AsSpan(0, split));
+                long[] y = OrderKeys.Of(values.AsSpan(split));
+                Array.Sort(x);
+                Array.Sort(y);
+                long[] expected = x.Concat(y).ToArray();
+                Array.Sort(expected);
+                var output = new long[n];
+                RunSort.Merge(x, y, output);
+                Assert.Equal(expected, output);
+            }
+        }
+    }
+
+    [Fact]
+    public void A_merge_may_write_over_the_run_it_reads()
+    {
+        // A KLL level merges what a compaction promotes into its own buffer.
+        long[] buffer = [1, 4, 9, 16, 0, 0, 0];
+        long[] incoming = [2, 9, 20];
+        RunSort.Merge(buffer.AsSpan(0, 4), incoming, buffer);
+        Assert.Equal([1, 2, 4, 9, 9, 16, 20], buffer);
+    }
+
+    private static double[] SortedByKeys(double[] values)
+    {
+        long[] keys = OrderKeys.Of(values);
+        RunSort.Sort(keys);
+        return OrderKeys.ToValues(keys);
     }
 
     private static IEnumerable<double[]> Shapes(int n, Random rng)

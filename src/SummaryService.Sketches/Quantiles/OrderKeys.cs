@@ -1,0 +1,98 @@
+using System.Runtime.InteropServices;
+using System.Runtime.Intrinsics;
+
+namespace SummaryService.Sketches.Quantiles;
+
+/// <summary>
+/// 64-bit keys whose signed order is the order of the finite doubles: the sign-magnitude bits with
+/// the magnitude flipped for negatives, so −0 sorts just below +0. A KLL sketch holds its items as
+/// these keys, so its sorts and merges compare integers and no value is converted on the way.
+/// </summary>
+/// <remarks>Distinct finite doubles have distinct keys and the map is its own inverse.</remarks>
+internal static class OrderKeys
+{
+    /// <summary>Key of a finite value.</summary>
+    public static long Of(double value) => Flip(BitConverter.DoubleToInt64Bits(value));
+
+    /// <summary>Value of a key.</summary>
+    public static double ValueOf(long key) => BitConverter.Int64BitsToDouble(Flip(key));
+
+    /// <summary>
+    /// Writes the keys of <paramref name="values"/> into <paramref name="keys"/> and widens
+    /// [<paramref name="min"/>, <paramref name="max"/>] to take them in, four at a time where the
+    /// machine has 256-bit vectors.
+    /// </summary>
+    public static void Convert(ReadOnlySpan<double> values, Span<long> keys, ref long min, ref long max)
+    {
+        ReadOnlySpan<long> bits = MemoryMarshal.Cast<double, long>(values);
+        int i = 0;
+        if (Vector256.IsHardwareAccelerated && bits.Length >= Vector256<long>.Count)
+        {
+            var low = Vector256.Create(min);
+            var high = Vector256.Create(max);
+            for (; i <= bits.Length - Vector256<long>.Count; i += Vector256<long>.Count)
+            {
+                var raw = Vector256.Create(bits.Slice(i, Vector256<long>.Count));
+                var key = raw ^ Vector256.ShiftRightLogical(Vector256.LessThan(raw, Vector256<long>.Zero), 1);
+                key.CopyTo(keys.Slice(i, Vector256<long>.Count));
+                low = Vector256.ConditionalSelect(Vector256.LessThan(key, low), key, low);
+                high = Vector256.ConditionalSelect(Vector256.GreaterThan(key, high), key, high);
+            }
+
+            for (int lane = 0; lane < Vector256<long>.Count; lane++)
+            {
+                min = Math.Min(min, low[lane]);
+                max = Math.Max(max, high[lane]);
+            }
+        }
+
+        for (; i < bits.Length; i++)
+        {
+            long key = Flip(bits[i]);
+            keys[i] = key;
+            min = Math.Min(min, key);
+            max = Math.Max(max, key);
+        }
+    }
+
+    /// <summary>Writes the values of <paramref name="keys"/> into <paramref name="values"/>.</summary>
+    public static void ToValues(ReadOnlySpan<long> keys, Span<double> values)
+    {
+        Span<long> bits = MemoryMarshal.Cast<double, long>(values);
+        int i = 0;
+        if (Vector256.IsHardwareAccelerated)
+        {
+            for (; i <= keys.Length - Vector256<long>.Count; i += Vector256<long>.Count)
+            {
+                var key = Vector256.Create(keys.Slice(i, Vector256<long>.Count));
+                (key ^ Vector256.ShiftRightLogical(Vector256.LessThan(key, Vector256<long>.Zero), 1)).CopyTo(bits.Slice(i, Vector256<long>.Count));
+            }
+        }
+
+        for (; i < keys.Length; i++)
+        {
+            bits[i] = Flip(keys[i]);
+        }
+    }
+
+    /// <summary>The values of <paramref name="keys"/> as a new array.</summary>
+    public static double[] ToValues(ReadOnlySpan<long> keys)
+    {
+        var values = new double[keys.Length];
+        ToValues(keys, values);
+        return values;
+    }
+
+    /// <summary>The keys of finite <paramref name="values"/> as a new array.</summary>
+    public static long[] Of(ReadOnlySpan<double> values)
+    {
+        var keys = new long[values.Length];
+        long min = long.MaxValue;
+        long max = long.MinValue;
+        Convert(values, keys, ref min, ref max);
+        return keys;
+    }
+
+    // Flips the magnitude bits of negative numbers; the sign bit is kept, so applying it twice is the identity.
+    private static long Flip(long bits) => bits ^ (long)((ulong)(bits >> 63) >> 1);
+}
