@@ -1,5 +1,3 @@
-using System.Numerics;
-
 namespace SummaryService.Sketches.Modes;
 
 /// <summary>
@@ -31,10 +29,7 @@ public sealed class ModeSketch
 
     private ExactCounter? _exact = new();
     private CountMinTable? _table;
-    private long[] _candidateKeys = [];
-    private long[] _candidateCounts = [];
-    private int _candidateCount;
-    private long _candidateFloor;
+    private CandidateHeap _candidates;
 
     /// <summary>Creates an empty sketch.</summary>
     /// <param name="resolution">Bin width used to key values; 0 keys values by their exact bits.</param>
@@ -50,6 +45,7 @@ public sealed class ModeSketch
         Width = width;
         Depth = depth;
         CandidateLimit = candidateLimit;
+        _candidates = new CandidateHeap(candidateLimit);
     }
 
     /// <summary>Bin width used to key values; 0 keys values by their exact bits.</summary>
@@ -98,7 +94,7 @@ public sealed class ModeSketch
 
     /// <summary>Approximate heap bytes: object, exact counter or count-min table, candidates.</summary>
     public long EstimatedBytes =>
-        96 + (_exact?.EstimatedBytes ?? 0) + (_table is null ? 0 : 48 + (8L * _table.Counters.Length)) + 48 + (16L * _candidateKeys.Length);
+        96 + (_exact?.EstimatedBytes ?? 0) + (_table is null ? 0 : 48 + (8L * _table.Counters.Length)) + _candidates.EstimatedBytes;
 
     /// <summary>Counts one finite value.</summary>
     public void Add(double value)
@@ -156,9 +152,9 @@ public sealed class ModeSketch
             for (int i = 0; i < n; i++)
             {
                 long estimate = table.AddAt(chunkCells, i, n, 1);
-                if (_candidateCount < CandidateLimit || estimate > _candidateFloor)
+                if (_candidates.Wants(estimate))
                 {
-                    TrackCandidate(keys[i], estimate);
+                    _candidates.Track(keys[i], estimate);
                 }
             }
 
@@ -193,9 +189,9 @@ public sealed class ModeSketch
 
         _table!.AddTable(other._table!);
         Count += other.Count;
-        var keys = new long[_candidateCount + other._candidateCount];
-        CandidateKeys().CopyTo(keys);
-        other.CandidateKeys().CopyTo(keys.AsSpan(_candidateCount));
+        var keys = new long[_candidates.Count + other._candidates.Count];
+        _candidates.Keys.CopyTo(keys);
+        other._candidates.Keys.CopyTo(keys.AsSpan(_candidates.Count));
         RebuildCandidates(keys);
     }
 
@@ -273,8 +269,7 @@ public sealed class ModeSketch
         var copy = (ModeSketch)MemberwiseClone();
         copy._exact = _exact?.Clone();
         copy._table = _table?.Clone();
-        copy._candidateKeys = (long[])_candidateKeys.Clone();
-        copy._candidateCounts = (long[])_candidateCounts.Clone();
+        copy._candidates = _candidates.Clone();
         return copy;
     }
 
@@ -283,17 +278,7 @@ public sealed class ModeSketch
     internal ReadOnlySpan<long> TableCounters => _table is null ? default : _table.Counters;
 
     /// <summary>Candidates with the counts they were last tracked at, in ascending key order.</summary>
-    internal (long Key, long Count)[] SortedCandidates()
-    {
-        var candidates = new (long Key, long Count)[_candidateCount];
-        for (int i = 0; i < _candidateCount; i++)
-        {
-            candidates[i] = (_candidateKeys[i], _candidateCounts[i]);
-        }
-
-        Array.Sort(candidates, static (a, b) => a.Key.CompareTo(b.Key));
-        return candidates;
-    }
+    internal (long Key, long Count)[] SortedCandidates() => _candidates.SortedByKey();
 
     internal long TableEstimate(long key) => _table!.Estimate(key);
 
@@ -314,10 +299,7 @@ public sealed class ModeSketch
         empty._exact = null;
         empty._table = new CountMinTable(empty.Width, empty.Depth, counters!);
         empty.Count = count;
-        empty._candidateKeys = candidates.Select(c => c.Key).ToArray();
-        empty._candidateCounts = candidates.Select(c => c.Count).ToArray();
-        empty._candidateCount = candidates.Length;
-        empty.RefreshFloor();
+        empty._candidates.Reset(candidates);
         return empty;
     }
 
@@ -336,121 +318,10 @@ public sealed class ModeSketch
         }
 
         long estimate = _table!.Add(key, count);
-        if (_candidateCount < CandidateLimit || estimate > _candidateFloor)
+        if (_candidates.Wants(estimate))
         {
-            TrackCandidate(key, estimate);
+            _candidates.Track(key, estimate);
         }
-    }
-
-    // Candidate sets are tiny (32 by default) but touched on most updates of distinct-valued data,
-    // so membership and the weakest entry are found with vectorized span searches.
-    private void TrackCandidate(long key, long estimate)
-    {
-        Span<long> keys = _candidateKeys.AsSpan(0, _candidateCount);
-        Span<long> counts = _candidateCounts.AsSpan(0, _candidateCount);
-        int found = keys.IndexOf(key);
-        if (found >= 0)
-        {
-            bool wasFloor = counts[found] == _candidateFloor;
-            counts[found] = estimate;
-            if (wasFloor)
-            {
-                RefreshFloor();
-            }
-
-            return;
-        }
-
-        if (_candidateCount < CandidateLimit)
-        {
-            if (_candidateCount == _candidateKeys.Length)
-            {
-                int grown = Math.Min(CandidateLimit, Math.Max(4, _candidateCount * 2));
-                Array.Resize(ref _candidateKeys, grown);
-                Array.Resize(ref _candidateCounts, grown);
-            }
-
-            _candidateKeys[_candidateCount] = key;
-            _candidateCounts[_candidateCount++] = estimate;
-            RefreshFloor();
-            return;
-        }
-
-        // Lowest count, ties to the smallest key: a choice that depends on the set, not on the order
-        // it is held in, so a restored sketch evicts exactly what the original would have.
-        int weakest = keys.IndexOf(SmallestKeyAt(keys, counts, _candidateFloor));
-        keys[weakest] = key;
-        counts[weakest] = estimate;
-        RefreshFloor();
-    }
-
-    // The smallest key among the candidates counted exactly `count`, in vector passes: with many
-    // candidates tied at the floor, as in a young sketch of distinct values, a scan that stopped at
-    // each tie took time in proportion to the ties. Keys in a candidate set are distinct.
-    private static long SmallestKeyAt(ReadOnlySpan<long> keys, ReadOnlySpan<long> counts, long count)
-    {
-        int width = Vector<long>.Count;
-        long smallest = long.MaxValue;
-        int i = 0;
-        if (Vector.IsHardwareAccelerated && keys.Length >= width)
-        {
-            var wanted = new Vector<long>(count);
-            var none = new Vector<long>(long.MaxValue);
-            var lanes = none;
-            for (; i + width <= keys.Length; i += width)
-            {
-                var tied = Vector.Equals(new Vector<long>(counts[i..]), wanted);
-                lanes = Vector.Min(lanes, Vector.ConditionalSelect(tied, new Vector<long>(keys[i..]), none));
-            }
-
-            for (int lane = 0; lane < width; lane++)
-            {
-                smallest = Math.Min(smallest, lanes[lane]);
-            }
-        }
-
-        for (; i < keys.Length; i++)
-        {
-            if (counts[i] == count)
-            {
-                smallest = Math.Min(smallest, keys[i]);
-            }
-        }
-
-        return smallest;
-    }
-
-    private void RefreshFloor()
-    {
-        ReadOnlySpan<long> counts = _candidateCounts.AsSpan(0, _candidateCount);
-        _candidateFloor = counts.IsEmpty ? 0 : MinOf(counts);
-    }
-
-    private static long MinOf(ReadOnlySpan<long> values)
-    {
-        int width = Vector<long>.Count;
-        long min = values[0];
-        int i = 0;
-        if (Vector.IsHardwareAccelerated && values.Length >= width)
-        {
-            var lanes = new Vector<long>(values);
-            for (i = width; i + width <= values.Length; i += width)
-            {
-                lanes = Vector.Min(lanes, new Vector<long>(values[i..]));
-            }
-
-            for (int lane = 0; lane < width; lane++)
-            {
-                min = Math.Min(min, lanes[lane]);
-            }
-        }
-
-        for (; i < values.Length; i++)
-        {
-            min = Math.Min(min, values[i]);
-        }
-
-        return min;
     }
 
     private void SwitchToTable()
@@ -487,20 +358,14 @@ public sealed class ModeSketch
         }
 
         Array.Sort(ranked);
-        int kept = Math.Min(CandidateLimit, distinct);
-        _candidateKeys = new long[kept];
-        _candidateCounts = new long[kept];
-        for (int i = 0; i < kept; i++)
+        var kept = new (long Key, long Count)[Math.Min(CandidateLimit, distinct)];
+        for (int i = 0; i < kept.Length; i++)
         {
-            _candidateKeys[i] = ranked[i].Key;
-            _candidateCounts[i] = -ranked[i].Count;
+            kept[i] = (ranked[i].Key, -ranked[i].Count);
         }
 
-        _candidateCount = kept;
-        RefreshFloor();
+        _candidates.Reset(kept);
     }
-
-    private ReadOnlySpan<long> CandidateKeys() => _candidateKeys.AsSpan(0, _candidateCount);
 
     private List<ModeEstimate> Estimates()
     {
@@ -511,8 +376,8 @@ public sealed class ModeSketch
                 .ToList();
         }
 
-        var list = new List<ModeEstimate>(_candidateCount);
-        foreach (long key in CandidateKeys())
+        var list = new List<ModeEstimate>(_candidates.Count);
+        foreach (long key in _candidates.Keys)
         {
             list.Add(EstimateOf(key));
         }
