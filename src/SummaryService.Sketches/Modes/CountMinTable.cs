@@ -41,6 +41,9 @@ internal sealed class CountMinTable
 
     public ReadOnlySpan<long> Counters => _counters;
 
+    /// <summary>Brings the counters into cache before a run of updates (see <see cref="CacheLines"/>).</summary>
+    public void Touch() => CacheLines.Touch(_counters, _counters.Length);
+
     /// <summary>Adds <paramref name="count"/> occurrences of a key and returns its new estimate.</summary>
     public long Add(long key, long count)
     {
@@ -83,10 +86,14 @@ internal sealed class CountMinTable
     /// <param name="keys">The batch's keys, n of them.</param>
     /// <param name="hashes">Scratch of at least n entries.</param>
     /// <param name="cells">Receives n · <see cref="Depth"/> cell indices.</param>
-    public void FillCells(ReadOnlySpan<long> keys, Span<ulong> hashes, Span<int> cells)
+    public void FillCells(ReadOnlySpan<long> keys, Span<ulong> hashes, Span<int> cells) => FillCells(keys, hashes, cells, vectorized: true);
+
+    /// <summary>As <see cref="FillCells(ReadOnlySpan{long}, Span{ulong}, Span{int})"/>, choosing the path, so tests can show both give the same cells.</summary>
+    internal void FillCells(ReadOnlySpan<long> keys, Span<ulong> hashes, Span<int> cells, bool vectorized)
     {
         int n = keys.Length;
-        for (int i = 0; i < n; i++)
+        int done = vectorized ? VectorCells.Fill(keys, cells, Width, Depth) : 0;
+        for (int i = done; i < n; i++)
         {
             hashes[i] = ModeKey.Hash(keys[i]);
         }
@@ -100,7 +107,7 @@ internal sealed class CountMinTable
             bool pair = row + 1 < Depth;
             Span<int> high = pair ? cells.Slice((row + 1) * n, n) : default;
             int highBase = lowBase + Width;
-            for (int i = 0; i < n; i++)
+            for (int i = done; i < n; i++)
             {
                 ulong word = row == 0 ? hashes[i] : SplitMix64.Mix(hashes[i] + step);
                 low[i] = lowBase + (int)(((word & 0xFFFF_FFFFUL) * width) >> 32);
