@@ -1,3 +1,6 @@
+using System.Runtime.InteropServices;
+using System.Runtime.Intrinsics;
+
 namespace SummaryService.Sketches;
 
 /// <summary>Guards the one precondition every sketch shares: values are finite.</summary>
@@ -25,24 +28,40 @@ public static class FiniteValues
     /// <summary>Index of the first NaN or infinity, or −1.</summary>
     public static int IndexOfNonFinite(ReadOnlySpan<double> values)
     {
-        // x − x is 0 for finite x and NaN otherwise; summing in blocks keeps the common case branch-light.
+        // A double is NaN or infinite exactly when its exponent bits are all ones; blocks are
+        // checked with vector compares and only a block that has one is searched value by value.
         const int Block = 64;
-        for (int start = 0; start < values.Length; start += Block)
+        const long Exponent = 0x7FF0_0000_0000_0000;
+        ReadOnlySpan<long> bits = MemoryMarshal.Cast<double, long>(values);
+        for (int start = 0; start < bits.Length; start += Block)
         {
-            ReadOnlySpan<double> block = values.Slice(start, Math.Min(Block, values.Length - start));
-            double probe = 0;
-            foreach (double v in block)
+            ReadOnlySpan<long> block = bits.Slice(start, Math.Min(Block, bits.Length - start));
+            int i = 0;
+            bool suspect = false;
+            if (Vector256.IsHardwareAccelerated)
             {
-                probe += v - v;
+                var mask = Vector256.Create(Exponent);
+                var found = Vector256<long>.Zero;
+                for (; i <= block.Length - Vector256<long>.Count; i += Vector256<long>.Count)
+                {
+                    found |= Vector256.Equals(Vector256.Create(block.Slice(i, Vector256<long>.Count)) & mask, mask);
+                }
+
+                suspect = found != Vector256<long>.Zero;
             }
 
-            if (probe != 0 || double.IsNaN(probe))
+            for (; i < block.Length && !suspect; i++)
             {
-                for (int i = 0; i < block.Length; i++)
+                suspect = (block[i] & Exponent) == Exponent;
+            }
+
+            if (suspect)
+            {
+                for (int j = 0; j < block.Length; j++)
                 {
-                    if (!double.IsFinite(block[i]))
+                    if ((block[j] & Exponent) == Exponent)
                     {
-                        return start + i;
+                        return start + j;
                     }
                 }
             }
