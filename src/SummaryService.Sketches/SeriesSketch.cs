@@ -187,6 +187,12 @@ public sealed class SeriesSketch
         _modes!.Merge(other._modes!);
     }
 
+    /// <summary>
+    /// Gives back working space the parts keep while values arrive (see <see cref="KllSketch.TrimExcess"/>),
+    /// for a sketch that is done growing. Answers and serialized form are unchanged.
+    /// </summary>
+    public void TrimExcess() => _quantiles?.TrimExcess();
+
     /// <summary>Creates an independent copy in the same form.</summary>
     public SeriesSketch Clone() => _quantiles is null
         ? new(_moments.Clone(), _options, _seed, null, null, Count == 0 ? null : HeldValues.ToArray())

@@ -294,12 +294,28 @@ internal sealed class SeriesTimeline(SeriesKey key, StoreOptions options)
             sketch = new SeriesSketch(options.Sketch, SeedFor(tier, bucketStart));
             buckets.Add(bucketStart, sketch);
             sketch.Add(values);
-            return sketch.EstimatedBytes;
+            return sketch.EstimatedBytes + TrimBucketBefore(buckets, bucketStart);
         }
 
         long previous = sketch.EstimatedBytes;
         sketch.Add(values);
         return sketch.EstimatedBytes - previous;
+    }
+
+    // A series writes into its newest bucket; once a newer one opens, the one before it is done
+    // growing and gives back its working space. Returns the change in estimated bytes (≤ 0).
+    private static long TrimBucketBefore(SortedList<long, SeriesSketch> buckets, long bucketStart)
+    {
+        int at = buckets.IndexOfKey(bucketStart);
+        if (at == 0)
+        {
+            return 0;
+        }
+
+        SeriesSketch previous = buckets.Values[at - 1];
+        long before = previous.EstimatedBytes;
+        previous.TrimExcess();
+        return previous.EstimatedBytes - before;
     }
 
     // Each bucket's coin sequence comes from its own identity: independent across buckets, as the

@@ -31,9 +31,6 @@ public sealed class KllSketch
     /// <summary>No level is narrower than this, so low levels still compact in useful batches.</summary>
     public const int MinLevelWidth = 8;
 
-    /// <summary>Items an emptied level may keep in its buffer however narrow the level (512 bytes).</summary>
-    internal const int NarrowLevelBuffer = 8 * MinLevelWidth;
-
     /// <summary>Enough levels for 2^62 values at any k.</summary>
     internal const int MaxLevels = 62;
 
@@ -301,6 +298,28 @@ public sealed class KllSketch
         TrimLevels();
     }
 
+    /// <summary>
+    /// Gives back buffer space beyond the items held, for a sketch that is done growing (a closed
+    /// time bucket). Answers and serialized form are unchanged; a later update regrows what it needs.
+    /// </summary>
+    public void TrimExcess()
+    {
+        if (_levels.Length > _levelCount)
+        {
+            Array.Resize(ref _levels, _levelCount);
+            Array.Resize(ref _sizes, _levelCount);
+            Array.Resize(ref _compactions, _levelCount);
+        }
+
+        for (int h = 0; h < _levelCount; h++)
+        {
+            if (_levels[h].Length > _sizes[h])
+            {
+                Array.Resize(ref _levels[h], _sizes[h]);
+            }
+        }
+    }
+
     /// <summary>Creates an independent copy, including the state of its random source.</summary>
     public KllSketch Clone()
     {
@@ -468,15 +487,9 @@ public sealed class KllSketch
         _compactions[h]++;
         _retained -= half;
 
-        // A lazily compacted level can swell well past its capacity before its turn comes; once it
-        // is emptied its buffer goes back to that capacity so a long-lived sketch stays near ~3k items.
-        // Narrow levels routinely swell to a few times their capacity between compactions, so their
-        // buffers are kept up to a small fixed size instead of being given back and regrown each time.
-        int capacity = LevelCapacity(K, h, _levelCount);
-        if (items.Length > Math.Max(2 * capacity, NarrowLevelBuffer))
-        {
-            Array.Resize(ref _levels[h], capacity);
-        }
+        // The emptied buffer is kept: a lazily compacted level swells to a few times its capacity
+        // before each turn, and giving the buffer back here meant regrowing it in steps every
+        // time, a tenth of the update cost. TrimExcess gives it back once the sketch stops growing.
     }
 
     private void AddLevel()
