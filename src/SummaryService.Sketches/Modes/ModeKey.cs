@@ -1,3 +1,6 @@
+using System.Runtime.InteropServices;
+using System.Runtime.Intrinsics;
+
 namespace SummaryService.Sketches.Modes;
 
 /// <summary>
@@ -21,6 +24,28 @@ internal static class ModeKey
         }
 
         return representative == 0 ? 0 : BitConverter.DoubleToInt64Bits(representative);
+    }
+
+    /// <summary>The keys of <paramref name="values"/>, as <see cref="Of(double, double)"/> gives them one by one.</summary>
+    public static void Of(ReadOnlySpan<double> values, double resolution, Span<long> keys)
+    {
+        int i = 0;
+        if (resolution == 0 && Vector256.IsHardwareAccelerated)
+        {
+            // Keyed by their own bits, with −0 folded onto +0's key 0.
+            ReadOnlySpan<long> bits = MemoryMarshal.Cast<double, long>(values);
+            var minusZero = Vector256.Create(long.MinValue);
+            for (; i <= bits.Length - Vector256<long>.Count; i += Vector256<long>.Count)
+            {
+                var v = Vector256.Create(bits.Slice(i, Vector256<long>.Count));
+                Vector256.AndNot(v, Vector256.Equals(v, minusZero)).CopyTo(keys.Slice(i, Vector256<long>.Count));
+            }
+        }
+
+        for (; i < values.Length; i++)
+        {
+            keys[i] = Of(values[i], resolution);
+        }
     }
 
     public static double ValueOf(long key) => BitConverter.Int64BitsToDouble(key);

@@ -143,10 +143,7 @@ public sealed class ModeSketch
         {
             ReadOnlySpan<double> chunk = values.Slice(start, Math.Min(Chunk, values.Length - start));
             int n = chunk.Length;
-            for (int i = 0; i < n; i++)
-            {
-                keys[i] = ModeKey.Of(chunk[i], resolution);
-            }
+            ModeKey.Of(chunk, resolution, keys[..n]);
 
             ReadOnlySpan<int> chunkCells = cells[..(n * depth)];
             table.FillCells(keys[..n], hashes, cells);
