@@ -1,3 +1,5 @@
+using System.Runtime.CompilerServices;
+
 namespace SummaryService.Sketches.Modes;
 
 /// <summary>
@@ -120,6 +122,7 @@ internal sealed class CountMinTable
     }
 
     /// <summary>As <see cref="Add"/> for key i of a batch whose cells <see cref="FillCells(ReadOnlySpan{long}, Span{ulong}, Span{int})"/> gave.</summary>
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
     public long AddAt(ReadOnlySpan<int> cells, int i, int n, long count)
     {
         long[] counters = _counters;
