@@ -1,3 +1,5 @@
+using System.Runtime.CompilerServices;
+
 namespace SummaryService.Sketches.Modes;
 
 /// <summary>
@@ -36,6 +38,7 @@ internal sealed class CandidateHeap
     public long EstimatedBytes => 48 + (16L * _keys.Length);
 
     /// <summary>Whether a key just raised to <paramref name="estimate"/> has to be looked at: the set has room, or the estimate beats the floor.</summary>
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
     public bool Wants(long estimate) => Count < Limit || estimate > _counts[0];
 
     /// <summary>Applies the rule to a key whose estimate is now <paramref name="estimate"/>.</summary>
