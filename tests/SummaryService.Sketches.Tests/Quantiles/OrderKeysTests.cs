@@ -37,7 +37,7 @@ public class OrderKeysTests
     [InlineData(7)]
     [InlineData(64)]
     [InlineData(1001)]
-    public void Converting_a_span_tracks_the_extremes_Math_Min_and_Max_find(int n)
+    public void Converting_a_span_and_its_range_find_the_extremes_Math_Min_and_Max_find(int n)
     {
         // Reference: Math.Min/Math.Max folds, which order −0 below +0 (.NET documentation).
         var rng = new Random(n);
@@ -49,5 +49,9 @@ public class OrderKeysTests
         Assert.Equal(OrderKeys.Of(values), keys);
         Assert.Equal(BitConverter.DoubleToInt64Bits(values.Aggregate(Math.Min)), BitConverter.DoubleToInt64Bits(OrderKeys.ValueOf(min)));
         Assert.Equal(BitConverter.DoubleToInt64Bits(values.Aggregate(Math.Max)), BitConverter.DoubleToInt64Bits(OrderKeys.ValueOf(max)));
+
+        (double low, double high) = OrderKeys.RangeOf(values);
+        Assert.Equal(BitConverter.DoubleToInt64Bits(values.Aggregate(Math.Min)), BitConverter.DoubleToInt64Bits(low));
+        Assert.Equal(BitConverter.DoubleToInt64Bits(values.Aggregate(Math.Max)), BitConverter.DoubleToInt64Bits(high));
     }
 }
