@@ -175,7 +175,7 @@ public sealed class SeriesSketch
 
             Grow();
             _moments.Merge(other._moments);
-            (double min, double max) = RangeOf(held);
+            (double min, double max) = OrderKeys.RangeOf(held);
             _quantiles!.MergeUncompacted(held, min, max);
             _modes!.MergeExactEntries(ModeSketch.ExactEntriesOf(held, _options.ModeResolution));
             return;
@@ -284,23 +284,9 @@ public sealed class SeriesSketch
             return true;
         }
 
-        (double min, double max) = RangeOf(items);
+        (double min, double max) = OrderKeys.RangeOf(items);
         return BitConverter.DoubleToInt64Bits(min) == BitConverter.DoubleToInt64Bits(quantiles.Min)
             && BitConverter.DoubleToInt64Bits(max) == BitConverter.DoubleToInt64Bits(quantiles.Max);
-    }
-
-    // The same fold as the KLL part's: Math.Min/Max order −0 below +0 whatever the arrival order.
-    private static (double Min, double Max) RangeOf(ReadOnlySpan<double> values)
-    {
-        double min = values[0];
-        double max = values[0];
-        foreach (double v in values)
-        {
-            min = Math.Min(min, v);
-            max = Math.Max(max, v);
-        }
-
-        return (min, max);
     }
 
     // Appends the values to the held ones if the sketch stays within its small limit; the buffer

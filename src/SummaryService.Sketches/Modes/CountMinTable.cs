@@ -43,9 +43,6 @@ internal sealed class CountMinTable
 
     public ReadOnlySpan<long> Counters => _counters;
 
-    /// <summary>Brings the counters into cache before a run of updates (see <see cref="CacheLines"/>).</summary>
-    public void Touch() => CacheLines.Touch(_counters, _counters.Length);
-
     /// <summary>Adds <paramref name="count"/> occurrences of a key and returns its new estimate.</summary>
     public long Add(long key, long count)
     {

@@ -135,7 +135,6 @@ public sealed class ModeSketch
         int depth = Depth;
         double resolution = Resolution;
         CountMinTable table = _table!;
-        table.Touch();
         Span<long> keys = stackalloc long[Chunk];
         Span<ulong> hashes = stackalloc ulong[Chunk];
         Span<int> cells = stackalloc int[Chunk * depth];

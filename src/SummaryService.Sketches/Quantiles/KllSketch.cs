@@ -188,11 +188,6 @@ public sealed class KllSketch
             return;
         }
 
-        for (int h = 0; h < _levelCount; h++)
-        {
-            CacheLines.Touch(_levels[h], _sizes[h]);
-        }
-
         // The extremes are tracked as keys while the values are converted: their order is the
         // values' order, −0 below +0, as Math.Min and Math.Max order them.
         long min = long.MaxValue;

@@ -1,3 +1,4 @@
+using System.Runtime.CompilerServices;
 using System.Runtime.InteropServices;
 using System.Runtime.Intrinsics;
 
@@ -22,38 +23,8 @@ internal static class OrderKeys
     /// [<paramref name="min"/>, <paramref name="max"/>] to take them in, four at a time where the
     /// machine has 256-bit vectors.
     /// </summary>
-    public static void Convert(ReadOnlySpan<double> values, Span<long> keys, ref long min, ref long max)
-    {
-        ReadOnlySpan<long> bits = MemoryMarshal.Cast<double, long>(values);
-        int i = 0;
-        if (Vector256.IsHardwareAccelerated && bits.Length >= Vector256<long>.Count)
-        {
-            var low = Vector256.Create(min);
-            var high = Vector256.Create(max);
-            for (; i <= bits.Length - Vector256<long>.Count; i += Vector256<long>.Count)
-            {
-                var raw = Vector256.Create(bits.Slice(i, Vector256<long>.Count));
-                var key = raw ^ Vector256.ShiftRightLogical(Vector256.LessThan(raw, Vector256<long>.Zero), 1);
-                key.CopyTo(keys.Slice(i, Vector256<long>.Count));
-                low = Vector256.ConditionalSelect(Vector256.LessThan(key, low), key, low);
-                high = Vector256.ConditionalSelect(Vector256.GreaterThan(key, high), key, high);
-            }
-
-            for (int lane = 0; lane < Vector256<long>.Count; lane++)
-            {
-                min = Math.Min(min, low[lane]);
-                max = Math.Max(max, high[lane]);
-            }
-        }
-
-        for (; i < bits.Length; i++)
-        {
-            long key = Flip(bits[i]);
-            keys[i] = key;
-            min = Math.Min(min, key);
-            max = Math.Max(max, key);
-        }
-    }
+    public static void Convert(ReadOnlySpan<double> values, Span<long> keys, ref long min, ref long max) =>
+        Scan(MemoryMarshal.Cast<double, long>(values), keys, store: true, ref min, ref max);
 
     /// <summary>
     /// Smallest and largest of finite, non-empty <paramref name="values"/> as Math.Min and Math.Max
@@ -61,36 +32,9 @@ internal static class OrderKeys
     /// </summary>
     public static (double Min, double Max) RangeOf(ReadOnlySpan<double> values)
     {
-        ReadOnlySpan<long> bits = MemoryMarshal.Cast<double, long>(values);
         long min = long.MaxValue;
         long max = long.MinValue;
-        int i = 0;
-        if (Vector256.IsHardwareAccelerated && bits.Length >= Vector256<long>.Count)
-        {
-            var low = Vector256.Create(min);
-            var high = Vector256.Create(max);
-            for (; i <= bits.Length - Vector256<long>.Count; i += Vector256<long>.Count)
-            {
-                var raw = Vector256.Create(bits.Slice(i, Vector256<long>.Count));
-                var key = raw ^ Vector256.ShiftRightLogical(Vector256.LessThan(raw, Vector256<long>.Zero), 1);
-                low = Vector256.ConditionalSelect(Vector256.LessThan(key, low), key, low);
-                high = Vector256.ConditionalSelect(Vector256.GreaterThan(key, high), key, high);
-            }
-
-            for (int lane = 0; lane < Vector256<long>.Count; lane++)
-            {
-                min = Math.Min(min, low[lane]);
-                max = Math.Max(max, high[lane]);
-            }
-        }
-
-        for (; i < bits.Length; i++)
-        {
-            long key = Flip(bits[i]);
-            min = Math.Min(min, key);
-            max = Math.Max(max, key);
-        }
-
+        Scan(MemoryMarshal.Cast<double, long>(values), default, store: false, ref min, ref max);
         return (ValueOf(min), ValueOf(max));
     }
 
@@ -103,8 +47,7 @@ internal static class OrderKeys
         {
             for (; i <= keys.Length - Vector256<long>.Count; i += Vector256<long>.Count)
             {
-                var key = Vector256.Create(keys.Slice(i, Vector256<long>.Count));
-                (key ^ Vector256.ShiftRightLogical(Vector256.LessThan(key, Vector256<long>.Zero), 1)).CopyTo(bits.Slice(i, Vector256<long>.Count));
+                Flip(Vector256.Create(keys.Slice(i, Vector256<long>.Count))).CopyTo(bits.Slice(i, Vector256<long>.Count));
             }
         }
 
@@ -131,6 +74,50 @@ internal static class OrderKeys
         Convert(values, keys, ref min, ref max);
         return keys;
     }
+
+    // Keys of the doubles whose bits are given, optionally written out, and their extremes. Inlined
+    // into both callers, so the store test folds away.
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    private static void Scan(ReadOnlySpan<long> bits, Span<long> keys, bool store, ref long min, ref long max)
+    {
+        int i = 0;
+        if (Vector256.IsHardwareAccelerated && bits.Length >= Vector256<long>.Count)
+        {
+            var low = Vector256.Create(min);
+            var high = Vector256.Create(max);
+            for (; i <= bits.Length - Vector256<long>.Count; i += Vector256<long>.Count)
+            {
+                var key = Flip(Vector256.Create(bits.Slice(i, Vector256<long>.Count)));
+                if (store)
+                {
+                    key.CopyTo(keys.Slice(i, Vector256<long>.Count));
+                }
+
+                low = Vector256.ConditionalSelect(Vector256.LessThan(key, low), key, low);
+                high = Vector256.ConditionalSelect(Vector256.GreaterThan(key, high), key, high);
+            }
+
+            for (int lane = 0; lane < Vector256<long>.Count; lane++)
+            {
+                min = Math.Min(min, low[lane]);
+                max = Math.Max(max, high[lane]);
+            }
+        }
+
+        for (; i < bits.Length; i++)
+        {
+            long key = Flip(bits[i]);
+            if (store)
+            {
+                keys[i] = key;
+            }
+
+            min = Math.Min(min, key);
+            max = Math.Max(max, key);
+        }
+    }
+
+    private static Vector256<long> Flip(Vector256<long> bits) => bits ^ Vector256.ShiftRightLogical(Vector256.LessThan(bits, Vector256<long>.Zero), 1);
 
     // Flips the magnitude bits of negative numbers; the sign bit is kept, so applying it twice is the identity.
     private static long Flip(long bits) => bits ^ (long)((ulong)(bits >> 63) >> 1);

@@ -212,12 +212,10 @@ internal static class RunSort
         var c1 = Reverse(b0);
         Exchange(ref a0, ref c0);
         Exchange(ref a1, ref c1);
-        Exchange(ref a0, ref a1);
-        Exchange(ref c0, ref c1);
-        a0 = CleanWithinVector(a0);
-        a1 = CleanWithinVector(a1);
-        b0 = CleanWithinVector(c0);
-        b1 = CleanWithinVector(c1);
+        CleanBitonic8(ref a0, ref a1);
+        CleanBitonic8(ref c0, ref c1);
+        b0 = c0;
+        b1 = c1;
     }
 
     // As MergeRunsOf8 for runs of 16: (a0..a3) and (b0..b3) become the ascending run a0..a3, b0..b3.
@@ -240,18 +238,23 @@ internal static class RunSort
         b3 = c3;
     }
 
-    // Sorts a bitonic run of 16 held in four vectors: half-cleaners at distances 8, 4, 2 and 1.
+    // Sorts a bitonic run of 16 held in four vectors: a half-cleaner at distance 8, then each half as a run of 8.
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
     private static void CleanBitonic16(ref Vector256<long> v0, ref Vector256<long> v1, ref Vector256<long> v2, ref Vector256<long> v3)
     {
         Exchange(ref v0, ref v2);
         Exchange(ref v1, ref v3);
+        CleanBitonic8(ref v0, ref v1);
+        CleanBitonic8(ref v2, ref v3);
+    }
+
+    // Sorts a bitonic run of 8 held in two vectors: half-cleaners at distances 4, 2 and 1.
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    private static void CleanBitonic8(ref Vector256<long> v0, ref Vector256<long> v1)
+    {
         Exchange(ref v0, ref v1);
-        Exchange(ref v2, ref v3);
         v0 = CleanWithinVector(v0);
         v1 = CleanWithinVector(v1);
-        v2 = CleanWithinVector(v2);
-        v3 = CleanWithinVector(v3);
     }
 
     // Sorts a bitonic run of four lanes: half-cleaners at distance 2, then 1. Each lane is compared

@@ -13,6 +13,8 @@ public class OrderKeysTests
     [Fact]
     public void Keys_ascend_with_the_values_and_minus_zero_sits_just_below_plus_zero()
     {
+        // Reference: the totalOrder predicate of IEEE 754-2008 (§5.10), which on finite values is the
+        // numeric order with −0 below +0; the ladder is listed in that order.
         long[] keys = OrderKeys.Of(Ladder);
         for (int i = 1; i < keys.Length; i++)
         {

@@ -127,6 +127,7 @@ public class RunSortTests
                 long[] y = OrderKeys.Of(values.AsSpan(split));
                 Array.Sort(x);
                 Array.Sort(y);
+                // Reference: Array.Sort of both runs together.
                 long[] expected = x.Concat(y).ToArray();
                 Array.Sort(expected);
                 var output = new long[n];
