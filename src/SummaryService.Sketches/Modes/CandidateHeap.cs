@@ -1,5 +1,3 @@
-using System.Runtime.CompilerServices;
-
 namespace SummaryService.Sketches.Modes;
 
 /// <summary>
@@ -37,9 +35,11 @@ internal sealed class CandidateHeap
     /// <summary>Approximate heap bytes of the two arrays.</summary>
     public long EstimatedBytes => 48 + (16L * _keys.Length);
 
+    /// <summary>What a key's new estimate has to exceed to be looked at: nothing while the set has room, else the floor.</summary>
+    public long Threshold => Count < Limit ? long.MinValue : _counts[0];
+
     /// <summary>Whether a key just raised to <paramref name="estimate"/> has to be looked at: the set has room, or the estimate beats the floor.</summary>
-    [MethodImpl(MethodImplOptions.AggressiveInlining)]
-    public bool Wants(long estimate) => Count < Limit || estimate > _counts[0];
+    public bool Wants(long estimate) => estimate > Threshold;
 
     /// <summary>Applies the rule to a key whose estimate is now <paramref name="estimate"/>.</summary>
     public void Track(long key, long estimate)
@@ -122,47 +122,66 @@ internal sealed class CandidateHeap
         return copy;
     }
 
-    private bool Below(int a, int b) => _counts[a] < _counts[b] || (_counts[a] == _counts[b] && _keys[a] < _keys[b]);
+    // (count, key) order: the weakest candidate has the lowest count, ties going to the smallest
+    // key. Non-short-circuit operators keep it free of branches: which of two children is lower is
+    // a coin toss, and a branch on it would mispredict about half the time at every level.
+    private static bool Below(long count, long key, long otherCount, long otherKey) =>
+        (count < otherCount) | ((count == otherCount) & (key < otherKey));
 
+    // Both sifts carry the moving entry in registers and shift the others past it, writing it once
+    // where it stops instead of swapping at every level.
     private void SiftUp(int at)
     {
+        long key = _keys[at];
+        long count = _counts[at];
         while (at > 0)
         {
             int parent = (at - 1) / 2;
-            if (!Below(at, parent))
+            if (!Below(count, key, _counts[parent], _keys[parent]))
             {
-                return;
+                break;
             }
 
-            Swap(at, parent);
+            _keys[at] = _keys[parent];
+            _counts[at] = _counts[parent];
             at = parent;
         }
+
+        _keys[at] = key;
+        _counts[at] = count;
     }
 
     private void SiftDown(int at)
     {
+        long[] keys = _keys;
+        long[] counts = _counts;
+        long key = keys[at];
+        long count = counts[at];
+        int size = Count;
         while (true)
         {
-            int left = (2 * at) + 1;
-            if (left >= Count)
+            int child = (2 * at) + 1;
+            if (child >= size)
             {
-                return;
+                break;
             }
 
-            int child = left + 1 < Count && Below(left + 1, left) ? left + 1 : left;
-            if (!Below(child, at))
+            if (child + 1 < size)
             {
-                return;
+                child += Below(counts[child + 1], keys[child + 1], counts[child], keys[child]) ? 1 : 0;
             }
 
-            Swap(at, child);
+            if (!Below(counts[child], keys[child], count, key))
+            {
+                break;
+            }
+
+            keys[at] = keys[child];
+            counts[at] = counts[child];
             at = child;
         }
-    }
 
-    private void Swap(int a, int b)
-    {
-        (_keys[a], _keys[b]) = (_keys[b], _keys[a]);
-        (_counts[a], _counts[b]) = (_counts[b], _counts[a]);
+        keys[at] = key;
+        counts[at] = count;
     }
 }

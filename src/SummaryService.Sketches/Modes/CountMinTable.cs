@@ -1,5 +1,3 @@
-using System.Runtime.CompilerServices;
-
 namespace SummaryService.Sketches.Modes;
 
 /// <summary>
@@ -118,25 +116,45 @@ internal sealed class CountMinTable
         }
     }
 
-    /// <summary>As <see cref="Add"/> for key i of a batch whose cells <see cref="FillCells(ReadOnlySpan{long}, Span{ulong}, Span{int})"/> gave.</summary>
-    [MethodImpl(MethodImplOptions.AggressiveInlining)]
-    public long AddAt(ReadOnlySpan<int> cells, int i, int n, long count)
+    /// <summary>
+    /// Adds one occurrence of each key of a batch whose cells <see cref="FillCells(ReadOnlySpan{long}, Span{ulong}, Span{int})"/>
+    /// gave, from key <paramref name="from"/> on, exactly as <see cref="Add"/> would one by one, and
+    /// stops after the first key whose new estimate exceeds <paramref name="threshold"/>.
+    /// </summary>
+    /// <returns>That key's index, with its estimate; or n when no key got past the threshold.</returns>
+    /// <remarks>
+    /// A leaf with no calls, so its loop keeps every index in a register; with the candidate check
+    /// in the same loop, the call it sometimes makes forced the loop's state onto the stack, and
+    /// the update took about 190 instructions a key instead of about 90.
+    /// </remarks>
+    public int AddUntilAbove(ReadOnlySpan<int> cells, int from, int n, long threshold, out long estimate)
     {
         long[] counters = _counters;
-        long estimate = counters[cells[i]];
-        for (int at = i + n; at < cells.Length; at += n)
+        int length = cells.Length;
+        for (int i = from; i < n; i++)
         {
-            estimate = MinOf(estimate, counters[cells[at]]);
+            long lowest = counters[cells[i]];
+            for (int at = i + n; at < length; at += n)
+            {
+                lowest = MinOf(lowest, counters[cells[at]]);
+            }
+
+            long raised = lowest + 1;
+            for (int at = i; at < length; at += n)
+            {
+                int cell = cells[at];
+                counters[cell] = MaxOf(counters[cell], raised);
+            }
+
+            if (raised > threshold)
+            {
+                estimate = raised;
+                return i;
+            }
         }
 
-        long raised = estimate + count;
-        for (int at = i; at < cells.Length; at += n)
-        {
-            int cell = cells[at];
-            counters[cell] = MaxOf(counters[cell], raised);
-        }
-
-        return raised;
+        estimate = 0;
+        return n;
     }
 
     /// <summary>Adds another table of the same shape cell by cell; estimates stay over-counts of the combined stream.</summary>

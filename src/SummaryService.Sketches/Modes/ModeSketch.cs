@@ -146,13 +146,10 @@ public sealed class ModeSketch
 
             ReadOnlySpan<int> chunkCells = cells[..(n * depth)];
             table.FillCells(keys[..n], hashes, cells);
-            for (int i = 0; i < n; i++)
+            for (int i = table.AddUntilAbove(chunkCells, 0, n, _candidates.Threshold, out long estimate); i < n;
+                 i = table.AddUntilAbove(chunkCells, i + 1, n, _candidates.Threshold, out estimate))
             {
-                long estimate = table.AddAt(chunkCells, i, n, 1);
-                if (_candidates.Wants(estimate))
-                {
-                    _candidates.Track(keys[i], estimate);
-                }
+                _candidates.Track(keys[i], estimate);
             }
 
             Count += n;

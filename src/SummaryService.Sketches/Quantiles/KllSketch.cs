@@ -43,6 +43,10 @@ public sealed class KllSketch
     private int _levelCount = 1;
     private int _retained;
     private int _capacity;
+
+    // Σ of the level buffers' lengths, kept as they change: the store reads EstimatedBytes around
+    // every append, and walking the levels touched a cold array header per level each time.
+    private long _bufferedItems;
     private SplitMix64 _random;
 
     /// <summary>Creates an empty sketch.</summary>
@@ -109,13 +113,7 @@ public sealed class KllSketch
         get
         {
             // Object header and fields ~72 B; each array carries a 24 B header.
-            long bytes = 72 + (3 * 24) + (_levels.Length * (8 + 4 + 8));
-            foreach (long[] level in _levels)
-            {
-                bytes += 24 + (8L * level.Length);
-            }
-
-            return bytes;
+            return 72 + (3 * 24) + (_levels.Length * (8 + 4 + 8 + 24)) + (8 * _bufferedItems);
         }
     }
 
@@ -310,7 +308,7 @@ public sealed class KllSketch
         {
             if (_levels[h].Length > _sizes[h])
             {
-                Array.Resize(ref _levels[h], _sizes[h]);
+                ResizeLevel(h, _sizes[h]);
             }
         }
     }
@@ -325,6 +323,7 @@ public sealed class KllSketch
             copy._levels[h] = _levels[h].AsSpan(0, _sizes[h]).ToArray();
         }
 
+        copy._bufferedItems = _retained;
         copy._sizes = (int[])_sizes.Clone();
         copy._compactions = (long[])_compactions.Clone();
         return copy;
@@ -395,6 +394,7 @@ public sealed class KllSketch
             _compactions = compactions,
         };
         sketch._retained = sketch._sizes.Sum();
+        sketch._bufferedItems = sketch._retained;
         sketch._capacity = TotalCapacity(k, levels.Length);
         return sketch;
     }
@@ -521,7 +521,7 @@ public sealed class KllSketch
             int need = Math.Max(_sizes[h], LevelCapacity(K, h, _levelCount));
             if (_levels[h].Length > 2 * need)
             {
-                Array.Resize(ref _levels[h], need);
+                ResizeLevel(h, need);
             }
         }
     }
@@ -536,7 +536,13 @@ public sealed class KllSketch
         }
 
         int grown = Math.Max(needed, Math.Max(MinLevelWidth, items.Length + (items.Length / 2)));
-        Array.Resize(ref _levels[level], grown);
+        ResizeLevel(level, grown);
+    }
+
+    private void ResizeLevel(int level, int length)
+    {
+        _bufferedItems += length - _levels[level].Length;
+        Array.Resize(ref _levels[level], length);
     }
 
     private void MergeSortedInto(int level, ReadOnlySpan<long> incoming)
