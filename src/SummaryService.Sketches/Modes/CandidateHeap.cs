@@ -132,23 +132,25 @@ internal sealed class CandidateHeap
     // where it stops instead of swapping at every level.
     private void SiftUp(int at)
     {
-        long key = _keys[at];
-        long count = _counts[at];
+        long[] keys = _keys;
+        long[] counts = _counts;
+        long key = keys[at];
+        long count = counts[at];
         while (at > 0)
         {
             int parent = (at - 1) / 2;
-            if (!Below(count, key, _counts[parent], _keys[parent]))
+            if (!Below(count, key, counts[parent], keys[parent]))
             {
                 break;
             }
 
-            _keys[at] = _keys[parent];
-            _counts[at] = _counts[parent];
+            keys[at] = keys[parent];
+            counts[at] = counts[parent];
             at = parent;
         }
 
-        _keys[at] = key;
-        _counts[at] = count;
+        keys[at] = key;
+        counts[at] = count;
     }
 
     private void SiftDown(int at)

@@ -146,10 +146,10 @@ public sealed class ModeSketch
 
             ReadOnlySpan<int> chunkCells = cells[..(n * depth)];
             table.FillCells(keys[..n], hashes, cells);
-            for (int i = table.AddUntilAbove(chunkCells, 0, n, _candidates.Threshold, out long estimate); i < n;
-                 i = table.AddUntilAbove(chunkCells, i + 1, n, _candidates.Threshold, out estimate))
+            int stopped = -1;
+            while ((stopped = table.AddUntilAbove(chunkCells, stopped + 1, n, _candidates.Threshold, out long estimate)) < n)
             {
-                _candidates.Track(keys[i], estimate);
+                _candidates.Track(keys[stopped], estimate);
             }
 
             Count += n;
