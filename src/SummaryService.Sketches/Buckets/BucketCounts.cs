@@ -148,18 +148,26 @@ internal sealed class BucketCounts
     /// <summary>Gives back cells beyond the occupied indices and narrows counters to the largest count.</summary>
     public void TrimExcess()
     {
+        BucketCounts trimmed = Clone();
+        if (trimmed._cells.Length != _cells.Length || trimmed.WidthLog2 != WidthLog2)
+        {
+            (_cells, First, WidthLog2) = (trimmed._cells, trimmed.First, trimmed.WidthLog2);
+        }
+    }
+
+    /// <summary>An independent copy holding only the occupied cells, its counters as narrow as its largest count allows.</summary>
+    public BucketCounts Clone()
+    {
+        var copy = new BucketCounts { Total = Total };
         if (Occupied() is not (int low, int high))
         {
-            _cells = [];
-            First = 0;
-            WidthLog2 = 0;
-            return;
+            return copy;
         }
 
         long largest = 0;
-        foreach ((_, long count) in Buckets())
+        for (int cell = low - First; cell <= high - First; cell++)
         {
-            largest = Math.Max(largest, count);
+            largest = Math.Max(largest, Read(cell));
         }
 
         int width = 0;
@@ -168,25 +176,14 @@ internal sealed class BucketCounts
             width++;
         }
 
-        if (low == First && high == First + Length - 1 && width == WidthLog2)
+        copy.First = low;
+        copy.WidthLog2 = width;
+        copy._cells = new byte[(high - low + 1) << width];
+        for (int cell = low - First; cell <= high - First; cell++)
         {
-            return;
+            copy.Write(cell - (low - First), Read(cell));
         }
 
-        var trimmed = new BucketCounts { First = low, WidthLog2 = width, _cells = new byte[(high - low + 1) << width] };
-        foreach ((int index, long count) in Buckets())
-        {
-            trimmed.Write(index - low, count);
-        }
-
-        (_cells, First, WidthLog2) = (trimmed._cells, low, width);
-    }
-
-    /// <summary>An independent copy holding only the occupied cells.</summary>
-    public BucketCounts Clone()
-    {
-        var copy = new BucketCounts { First = First, WidthLog2 = WidthLog2, _cells = (byte[])_cells.Clone(), Total = Total };
-        copy.TrimExcess();
         return copy;
     }
 

@@ -71,7 +71,7 @@ public sealed class LogBucketSketch
     public long ZeroCount { get; private set; }
 
     /// <summary>Approximate heap bytes: this object and both ranges.</summary>
-    public long EstimatedBytes => 56 + (_positive?.EstimatedBytes ?? 0) + (_negative?.EstimatedBytes ?? 0);
+    public long EstimatedBytes => 64 + (_positive?.EstimatedBytes ?? 0) + (_negative?.EstimatedBytes ?? 0);
 
     internal ExponentialMapping Mapping => _mapping;
 
@@ -89,8 +89,7 @@ public sealed class LogBucketSketch
     public void Add(double value)
     {
         FiniteValues.Require(value);
-        AddOne(value);
-        Count++;
+        AddUnchecked(value);
     }
 
     /// <summary>Counts a span of finite values; a span holding a NaN or infinity is rejected whole.</summary>
@@ -111,6 +110,12 @@ public sealed class LogBucketSketch
 
     /// <summary>Occupied negative buckets, ascending index (ascending magnitude).</summary>
     public IEnumerable<(int Index, long Count)> NegativeBuckets() => _negative?.Buckets() ?? [];
+
+    internal void AddUnchecked(double value)
+    {
+        AddOne(value);
+        Count++;
+    }
 
     internal void AddUnchecked(ReadOnlySpan<double> values)
     {

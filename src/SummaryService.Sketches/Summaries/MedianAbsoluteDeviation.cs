@@ -3,36 +3,44 @@ using SummaryService.Sketches.Quantiles;
 namespace SummaryService.Sketches.Summaries;
 
 /// <summary>
-/// Median absolute deviation MAD = median |x − median| (unscaled), read from the weighted items of a
-/// KLL sketch, with an interval derived from the rank bounds.
+/// Median absolute deviation MAD = median |x − median| (unscaled), estimated from weighted values
+/// (the KLL items, or the log buckets' midpoints), with an interval derived from the count bounds.
 /// </summary>
 /// <remarks>
-/// <para>The estimate is the definition-7 median of the deviations of the retained items from the
-/// estimated median, with their weights; it is exact while the sketch is exact.</para>
+/// <para>The estimate is the definition-7 median of the deviations of the weighted values from the
+/// estimated median; it is exact while the sketch is exact.</para>
 /// <para>Interval: with the true median M inside the median interval [m₋, m₊], the number of values
-/// strictly closer than a to M is at most Ŵ⁻(m₊ + a) − Ŵ(m₋ − a) + 2t and the number at distance at
-/// most a is at least Ŵ(m₋ + a) − Ŵ⁻(m₊ − a) − 2t. The deviation order statistic d₍ⱼ₎ therefore lies
-/// between the largest a whose upper count stays below j and the smallest a whose lower count reaches
-/// j. Failure budget: δ/2 on the median interval, δ/2 over the eight one-sided count events at the
-/// fixed points M ± d₍ⱼ₎.</para>
+/// strictly closer than a to M is at most U&lt;(m₊ + a) − L≤(m₋ − a) and the number at distance at
+/// most a is at least L≤(m₋ + a) − U&lt;(m₊ − a), where L and U are the lower and upper bounds on
+/// the counts below a point (<see cref="SummaryBounds.CountBelow"/>: the KLL part's ±t intersected
+/// with the log buckets' exact bounds). The deviation order statistic d₍ⱼ₎ therefore lies between
+/// the largest a whose upper count stays below j and the smallest a whose lower count reaches j.
+/// Failure budget of the KLL part: δ/2 on the median interval, δ/2 over the eight one-sided count
+/// events at the fixed points M ± d₍ⱼ₎; the log buckets' bounds are certain.</para>
 /// </remarks>
 internal static class MedianAbsoluteDeviation
 {
     // 2^−60 of the data's range: finer than any retained item can resolve.
     private const int BisectionSteps = 60;
 
-    public static (double Mad, double Low, double High) Estimate(RankBounds bounds, bool exact)
+    /// <summary>
+    /// The MAD and its interval; <paramref name="certainOnly"/> leaves the KLL part's bounds out
+    /// (used to tell which bound gave each end).
+    /// </summary>
+    public static (double Mad, double Low, double High) Estimate(SummaryBounds bounds, bool certainOnly)
     {
-        KllSortedView view = bounds.View;
+        KllSortedView view = bounds.EstimateView!;
         double median = view.Quantile(0.5);
         double mad = Deviations(view, median).Quantile(0.5);
-        if (exact)
+        if (bounds.Exact)
         {
             return (mad, mad, mad);
         }
 
-        var (medianLow, medianHigh) = bounds.MedianIntervalForMad();
-        double t = bounds.MadShift;
+        double rankError = certainOnly ? double.PositiveInfinity : bounds.Rank?.MadShift ?? 0;
+        QuantileEstimate medianInterval = bounds.MedianForMad(certainOnly);
+        double medianLow = medianInterval.Low;
+        double medianHigh = medianInterval.High;
         double n = view.Count;
         double span = view.Max - view.Min;
         double h = ((view.Count - 1) * 0.5) + 1;
@@ -41,9 +49,9 @@ internal static class MedianAbsoluteDeviation
         double f = h - j0;
 
         double UpperCountCloserThan(double a) =>
-            Math.Min(n, view.CountBelow(medianHigh + a) + t) - Math.Max(0, view.CountAtOrBelow(medianLow - a) - t);
+            bounds.CountBelow(medianHigh + a, strict: true, rankError).High - bounds.CountBelow(medianLow - a, strict: false, rankError).Low;
         double LowerCountWithin(double a) =>
-            Math.Max(0, view.CountAtOrBelow(medianLow + a) - t) - Math.Min(n, view.CountBelow(medianHigh - a) + t);
+            bounds.CountBelow(medianLow + a, strict: false, rankError).Low - bounds.CountBelow(medianHigh - a, strict: true, rankError).High;
 
         double LowerEnd(double j) => LargestWhere(a => UpperCountCloserThan(a) < j, span);
         double UpperEnd(double j) => SmallestWhere(a => LowerCountWithin(a) >= j, span);
@@ -55,7 +63,7 @@ internal static class MedianAbsoluteDeviation
         return (mad, Math.Min(low, mad), Math.Max(high, mad));
     }
 
-    /// <summary>Deviations of the retained items from <paramref name="centre"/>, ascending, with the items' weights.</summary>
+    /// <summary>Deviations of the weighted values from <paramref name="centre"/>, ascending, with their weights.</summary>
     private static KllSortedView Deviations(KllSortedView view, double centre)
     {
         ReadOnlySpan<double> values = view.Values;

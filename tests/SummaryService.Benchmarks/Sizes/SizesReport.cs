@@ -108,7 +108,8 @@ internal static class SizesReport
     {
         SeriesSketch parts = sketch.Clone();
         string form = sketch.IsSmall ? "small" : "full";
-        return $"{parts.Quantiles.RetainedItems,11}{parts.Quantiles.LevelCount,12}{(parts.Modes.IsExact ? "exact" : "count-min"),11}{form,7}";
+        string modes = parts.Modes.IsExact ? "exact" : parts.Modes.IsContinuous ? "density" : "count-min";
+        return $"{parts.Quantiles?.RetainedItems,11}{parts.Quantiles?.LevelCount,12}{modes,11}{form,7}";
     }
 
     // The allocated figure is an upper bound, so only it can prove the target met; when it is over,
