@@ -228,6 +228,7 @@ public sealed class SeriesSketch
             return;
         }
 
+        bool changes = _keepsRank || _quantiles is not null || (_modes is not null && !_modes.IsExact && !_modes.IsContinuous);
         _keepsRank = false;
         if (_grown)
         {
@@ -238,7 +239,11 @@ public sealed class SeriesSketch
             }
         }
 
-        TrimExcess();
+        // Trimmed when the form changes; an already compact bucket that takes late values keeps its slack.
+        if (changes)
+        {
+            TrimExcess();
+        }
     }
 
     /// <summary>

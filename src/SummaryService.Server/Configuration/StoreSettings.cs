@@ -12,7 +12,7 @@ public sealed class StoreSettings
     /// <summary>Number of shards, a power of two.</summary>
     public int ShardCount { get; set; } = 16;
 
-    /// <summary>Tiers from finest to coarsest; empty means the store's defaults (10 s for 6 h, 1 min for 7 d, 1 h for 90 d).</summary>
+    /// <summary>Tiers from finest to coarsest; empty means the store's defaults (10 s for 6 h, 1 min for 2 d, 10 min for 14 d, 1 h for 90 d).</summary>
     public List<TierSettings> Tiers { get; set; } = [];
 
     /// <summary>Most series the store holds.</summary>

@@ -3,6 +3,8 @@ using SummaryService.Contract.V1;
 using SummaryService.Sketches.Modes;
 using SummaryService.Sketches.Serialization;
 using SummaryService.Sketches.Summaries;
+using BoundSource = SummaryService.Sketches.Summaries.BoundSource;
+using SketchForm = SummaryService.Sketches.Summaries.SketchForm;
 using Summary = SummaryService.Sketches.Summaries.Summary;
 
 namespace SummaryService.Sketches.Tests.Buckets;
