@@ -302,6 +302,12 @@ internal sealed class SeriesTimeline(SeriesKey key, StoreOptions options)
             long before = existing.EstimatedBytes;
             existing.Merge(sketch);
             KeepForm(tier, existing);
+            if (tier > 0)
+            {
+                // An aged bucket grows by whole merges, not by values: no slack to keep.
+                existing.TrimExcess();
+            }
+
             return existing.EstimatedBytes - before;
         }
 

@@ -88,21 +88,16 @@ public static class SketchComparison
     {
         KllSortedView aView = a.CreateView();
         KllSortedView bView = b.CreateView();
-        double na = aView.Count;
-        double nb = bView.Count;
-        double distance = 0;
-        foreach (double x in aView.Values)
+        long na = aView.Count;
+        long nb = bView.Count;
+        Int128 largest = 0;
+        foreach (double x in aView.Values.ToArray().Concat(bView.Values.ToArray()))
         {
-            distance = Math.Max(distance, Math.Abs((aView.CountAtOrBelow(x) / na) - (bView.CountAtOrBelow(x) / nb)));
-        }
-
-        foreach (double x in bView.Values)
-        {
-            distance = Math.Max(distance, Math.Abs((aView.CountAtOrBelow(x) / na) - (bView.CountAtOrBelow(x) / nb)));
+            largest = Int128.Max(largest, Difference((long)aView.CountAtOrBelow(x), na, (long)bView.CountAtOrBelow(x), nb));
         }
 
         double delta = 1 - confidence;
-        return (distance, (a.RankErrorCount(delta / 4) / na) + (b.RankErrorCount(delta / 4) / nb));
+        return (Share(largest, na, nb), (a.RankErrorCount(delta / 4) / na) + (b.RankErrorCount(delta / 4) / nb));
     }
 
     private static (double Low, double High) BucketDistance(LogBucketSketch a, LogBucketSketch b)
@@ -110,23 +105,29 @@ public static class SketchComparison
         int scale = Math.Min(a.Scale, b.Scale);
         LogBucketSketch aCommon = AtScale(a, scale);
         LogBucketSketch bCommon = AtScale(b, scale);
-        double na = aCommon.Count;
-        double nb = bCommon.Count;
-        double low = 0;
-        double high = 0;
+        long na = aCommon.Count;
+        long nb = bCommon.Count;
+        Int128 low = 0;
+        Int128 high = 0;
         long aBefore = 0;
         long bBefore = 0;
         foreach ((long aCount, long bCount) in BucketsInValueOrder(aCommon, bCommon))
         {
             long aAfter = aBefore + aCount;
             long bAfter = bBefore + bCount;
-            low = Math.Max(low, Math.Abs((aAfter / na) - (bAfter / nb)));
-            high = Math.Max(high, Math.Max(Math.Abs((aAfter / na) - (bBefore / nb)), Math.Abs((bAfter / nb) - (aBefore / na))));
+            low = Int128.Max(low, Difference(aAfter, na, bAfter, nb));
+            high = Int128.Max(high, Int128.Max(Difference(aAfter, na, bBefore, nb), Difference(aBefore, na, bAfter, nb)));
             (aBefore, bBefore) = (aAfter, bAfter);
         }
 
-        return (low, high);
+        // One rounding each; an ulp outward keeps the certain bounds certain.
+        return (Math.BitDecrement(Share(low, na, nb)), Math.BitIncrement(Share(high, na, nb)));
     }
+
+    // |a/na − b/nb|·na·nb in integers, so that equal shares compare equal and the share is rounded once.
+    private static Int128 Difference(long a, long na, long b, long nb) => Int128.Abs(((Int128)a * nb) - ((Int128)b * na));
+
+    private static double Share(Int128 difference, long na, long nb) => Math.Clamp((double)difference / ((double)na * nb), 0, 1);
 
     private static LogBucketSketch AtScale(LogBucketSketch sketch, int scale)
     {

@@ -41,7 +41,7 @@ internal sealed class SummaryBounds
     /// <summary>The weighted values point estimates are read from: the KLL items, or else the bucket midpoints.</summary>
     public KllSortedView? EstimateView => _rank?.View ?? Buckets?.Midpoints();
 
-    /// <summary>A quantile with the intersected interval; the estimate is the KLL one when exact, else the interval's middle.</summary>
+    /// <summary>A quantile with the intersected interval; the estimate is the KLL one inside it, or without a KLL part the interval's middle.</summary>
     public QuantileEstimate Quantile(double q) => Quantile(q, 0, _rank?.ValueShift ?? 0);
 
     /// <summary>
@@ -168,9 +168,10 @@ internal sealed class SummaryBounds
 
         Bounded b = Bounded.Intersect(candidates[..used]);
 
-        // With log buckets the middle of the interval is within the relative bound of every point
-        // in it; without them the KLL estimate stands, as it always did.
-        double value = Buckets is null && _rank is not null ? Math.Clamp(rankValue, b.Low, b.High) : b.Middle;
+        // The KLL estimate where there is one (an observed value on discrete data), kept inside the
+        // interval; from the log buckets alone the middle of the interval, within the relative bound
+        // of every point in it.
+        double value = _rank is not null ? Math.Clamp(rankValue, b.Low, b.High) : b.Middle;
         return new QuantileEstimate(q, value, b.Low, b.High, Epsilon) { LowSource = b.LowSource, HighSource = b.HighSource };
     }
 }
