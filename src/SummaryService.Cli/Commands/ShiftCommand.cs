@@ -105,6 +105,7 @@ public static class ShiftCommand
         }
 
         console.Write(table);
+        console.WriteLine(BoundText.Shifts(reply.Shifts));
         console.WriteLine($"Kolmogorov–Smirnov distance {Figures.Of(reply.KsDistance)} [{Figures.Of(reply.KsLow)}, {Figures.Of(reply.KsHigh)}] at {Figures.Percent(request.Confidence)} confidence");
         console.WriteLine("A verdict appears only where the quantile's two intervals (rank error plus sampling error) do not overlap.");
     }

@@ -58,7 +58,7 @@ public sealed class IngestAndAdminTests(ServerFixture server)
         var stats = (await CliRun.AgainstAsync(server.Address, "store", "--json")).Json<GetStatsReply>();
         Assert.True(stats.Series >= 1);
         Assert.Equal("Wal", stats.Durability);
-        Assert.Equal(3, stats.Tiers.Count);
+        Assert.Equal(4, stats.Tiers.Count);
         var storeTable = await CliRun.AgainstAsync(server.Address, "store", "--shards");
         Assert.Contains("durability Wal", storeTable.Out, StringComparison.Ordinal);
         Assert.Contains($"{stats.ProducerMarks} producer marks", storeTable.Out, StringComparison.Ordinal);
