@@ -1,4 +1,5 @@
 using System.Numerics;
+using System.Runtime.CompilerServices;
 using System.Runtime.InteropServices;
 
 namespace SummaryService.Sketches.Buckets;
@@ -302,42 +303,52 @@ public sealed class LogBucketSketch
 
     // The update loop: values of one sign whose bucket has a cell and whose counter has room, in
     // a few integer operations each (ExponentialMapping.IndexOf, inlined); stops at the first other.
+    // The slot index is below the table's length by construction (the top bits of a significand)
+    // and the cell index is range-checked once, so both are read without further bounds checks.
     private int AddRun<T>(ReadOnlySpan<long> bits, int start, long sign, byte[] raw, int first)
         where T : unmanaged, IBinaryInteger<T>, IUnsignedNumber<T>
     {
+        // With the sign bit flipped off for this range's sign, a normal magnitude of that sign lies
+        // in [2^52, 2^63): one unsigned comparison turns away the other sign, zeros and subnormals.
+        const ulong SmallestNormal = 1UL << ExponentialMapping.SignificandBits;
+        const ulong NormalSpan = (1UL << 63) - SmallestNormal;
         Span<T> cells = MemoryMarshal.Cast<byte, T>(raw.AsSpan());
+        ref T cell0 = ref MemoryMarshal.GetReference(cells);
+        uint length = (uint)cells.Length;
         ExponentialMapping mapping = _mapping;
-        long[] slots = mapping.Slots;
+        ref long slot0 = ref MemoryMarshal.GetArrayDataReference(mapping.Slots);
         int slotShift = mapping.SlotShift;
         int up = mapping.ScaleUp;
         int down = mapping.ScaleDown;
+
+        // index = ((biased exponent − 1023) << up) + (boundaries below − 1), before the shift down.
+        int bias = -(1023 << up) - 1;
         int i = start;
         for (; i < bits.Length; i++)
         {
-            long b = bits[i];
-            long exponent = (b & long.MaxValue) >> ExponentialMapping.SignificandBits;
-            if (((b ^ sign) < 0) | (exponent == 0))
+            ulong magnitude = (ulong)(bits[i] ^ sign);
+            if (magnitude - SmallestNormal >= NormalSpan)
             {
                 break;
             }
 
-            long significand = b & ExponentialMapping.SignificandMask;
-            long slot = slots[(int)(significand >> slotShift)];
-            int within = (int)(slot & ExponentialMapping.BelowMask) + ((slot >> ExponentialMapping.BelowBits) < significand ? 1 : 0) - 1;
-            int index = ((((int)exponent - 1023) << up) + within) >> down;
+            long significand = (long)(magnitude & ExponentialMapping.SignificandMask);
+            long slot = Unsafe.Add(ref slot0, (nint)(significand >> slotShift));
+            int index = (((int)(magnitude >> ExponentialMapping.SignificandBits) << up) + (int)(slot & ExponentialMapping.BelowMask) + ((slot >> ExponentialMapping.BelowBits) < significand ? 1 : 0) + bias) >> down;
             uint cell = (uint)(index - first);
-            if (cell >= (uint)cells.Length)
+            if (cell >= length)
             {
                 break;
             }
 
-            T count = cells[(int)cell] + T.One;
+            ref T counter = ref Unsafe.Add(ref cell0, (nint)cell);
+            T count = counter + T.One;
             if (T.IsZero(count))
             {
                 break;
             }
 
-            cells[(int)cell] = count;
+            counter = count;
         }
 
         return i;
