@@ -30,6 +30,12 @@ public sealed class LogBucketSketch
     /// <summary>Bucket indices a range may span at most: 32 octaves (9.6 decades) at the default scale.</summary>
     public const int DefaultMaxBuckets = 2048;
 
+    /// <summary>Finest scale: base 2^(1/256), relative bound 0.14%.</summary>
+    public const int MaxScale = ExponentialMapping.MaxScale;
+
+    /// <summary>Coarsest scale: base 2^1024.</summary>
+    public const int MinScale = ExponentialMapping.MinScale;
+
     /// <summary>Smallest accepted <see cref="MaxBuckets"/>: at the coarsest scale every double fits in three.</summary>
     public const int MinMaxBuckets = 8;
 
