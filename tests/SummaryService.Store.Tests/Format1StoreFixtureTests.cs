@@ -1,7 +1,7 @@
 using System.Text.Json;
 using Microsoft.Extensions.Logging.Abstractions;
 using Microsoft.Extensions.Time.Testing;
-using SummaryService.Sketches.Summaries;
+using SummaryService.Sketches.Tests.Legacy;
 using SummaryService.Sketches.Tests.Support;
 using SummaryService.Store.Persistence;
 using SummaryService.TestSupport;
@@ -23,14 +23,6 @@ namespace SummaryService.Store.Tests;
 public class Format1StoreFixtureTests
 {
     private static readonly string Folder = Path.Combine(AppContext.BaseDirectory, "Data", "Format1");
-
-    private static readonly SummaryOptions RecordedOptions = new()
-    {
-        Quantiles = [0, 0.01, 0.25, 0.5, 0.75, 0.9, 0.99, 0.999, 1],
-        RankOf = [-5, 0, 1, 10, 100, 250],
-        Histogram = HistogramSpec.Automatic(10),
-        MaxModes = 5,
-    };
 
     // The tier layout the fixture was written with.
     private static readonly StoreOptions WrittenWith = new()
@@ -68,7 +60,7 @@ public class Format1StoreFixtureTests
         {
             JsonElement recorded = JsonDocument.Parse(line).RootElement;
             var window = new TimeRange(recorded.GetProperty("FromUnixMs").GetInt64(), recorded.GetProperty("ToUnixMs").GetInt64());
-            var answer = store.Summarize(new Selector(recorded.GetProperty("Metric").GetString()!), window, ["route"], RecordedOptions);
+            var answer = store.Summarize(new Selector(recorded.GetProperty("Metric").GetString()!), window, ["route"], Format1Options.Recorded);
 
             JsonElement now = JsonSerializer.SerializeToElement(new
             {

@@ -1,3 +1,4 @@
+using System.Numerics;
 using System.Runtime.InteropServices;
 
 namespace SummaryService.Sketches.Buckets;
@@ -46,31 +47,26 @@ internal sealed class BucketCounts
     /// <summary>Smallest and largest occupied index, or null when every count is 0.</summary>
     public (int Low, int High)? Occupied()
     {
-        int n = Length;
-        int low = 0;
-        while (low < n && Read(low) == 0)
-        {
-            low++;
-        }
-
-        if (low == n)
+        // A counter is occupied when any of its bytes is; the byte scans are vectorized.
+        int firstByte = _cells.AsSpan().IndexOfAnyExcept((byte)0);
+        if (firstByte < 0)
         {
             return null;
         }
 
-        int high = n - 1;
-        while (Read(high) == 0)
-        {
-            high--;
-        }
-
-        return (First + low, First + high);
+        int lastByte = _cells.AsSpan().LastIndexOfAnyExcept((byte)0);
+        return (First + (firstByte >> WidthLog2), First + (lastByte >> WidthLog2));
     }
 
     /// <summary>Occupied buckets in ascending index order.</summary>
     public IEnumerable<(int Index, long Count)> Buckets()
     {
-        for (int cell = 0; cell < Length; cell++)
+        if (Occupied() is not (int low, int high))
+        {
+            yield break;
+        }
+
+        for (int cell = low - First; cell <= high - First; cell++)
         {
             long count = Read(cell);
             if (count != 0)
@@ -79,6 +75,15 @@ internal sealed class BucketCounts
             }
         }
     }
+
+    /// <summary>The occupied buckets as two arrays, ascending index: what the readers of a sketch walk.</summary>
+    public (int[] Indices, long[] Counts) OccupiedBuckets() => WidthLog2 switch
+    {
+        0 => OccupiedBuckets<byte>(),
+        1 => OccupiedBuckets<ushort>(),
+        2 => OccupiedBuckets<uint>(),
+        _ => OccupiedBuckets<ulong>(),
+    };
 
     /// <summary>True when <paramref name="index"/> has a cell.</summary>
     public bool Covers(int index) => (uint)(index - First) < (uint)Length;
@@ -104,6 +109,86 @@ internal sealed class BucketCounts
 
         Write(cell, sum);
         Total += count;
+    }
+
+    /// <summary>
+    /// Adds every count of <paramref name="other"/>, its bucket i going to i &gt;&gt; <paramref name="shift"/>
+    /// (a finer scale folded into this one): the cells are grown once to take in the whole range,
+    /// and counters widened as sums need. The caller has made sure the span stays within its limit.
+    /// </summary>
+    public void AddFrom(BucketCounts other, int shift, int maxCells)
+    {
+        if (other.Occupied() is not (int low, int high))
+        {
+            return;
+        }
+
+        Add(low >> shift, 0, maxCells);
+        Add(high >> shift, 0, maxCells);
+        while (WidthLog2 < other.WidthLog2)
+        {
+            Widen();
+        }
+
+        // Cell by cell in the counters' own types; a sum past this width's limit widens and goes on.
+        int from = low - other.First;
+        int to = high - other.First;
+        while (from <= to)
+        {
+            from = AddCells(other, from, to, shift);
+            if (from <= to)
+            {
+                Widen();
+            }
+        }
+
+        Total += other.Total;
+    }
+
+    // Adds other's cells from..to (inclusive) into this one's; returns where a sum overflowed, or to + 1.
+    private int AddCells(BucketCounts other, int from, int to, int shift) => WidthLog2 switch
+    {
+        0 => AddCells<byte>(other, from, to, shift),
+        1 => AddCells<ushort>(other, from, to, shift),
+        2 => AddCells<uint>(other, from, to, shift),
+        _ => AddCells<ulong>(other, from, to, shift),
+    };
+
+    private int AddCells<TInto>(BucketCounts other, int from, int to, int shift)
+        where TInto : unmanaged, IBinaryInteger<TInto>, IUnsignedNumber<TInto> => other.WidthLog2 switch
+        {
+            0 => AddCells<TInto, byte>(other, from, to, shift),
+            1 => AddCells<TInto, ushort>(other, from, to, shift),
+            2 => AddCells<TInto, uint>(other, from, to, shift),
+            _ => AddCells<TInto, ulong>(other, from, to, shift),
+        };
+
+    private int AddCells<TInto, TFrom>(BucketCounts other, int from, int to, int shift)
+        where TInto : unmanaged, IBinaryInteger<TInto>, IUnsignedNumber<TInto>
+        where TFrom : unmanaged, IBinaryInteger<TFrom>, IUnsignedNumber<TFrom>
+    {
+        Span<TInto> into = MemoryMarshal.Cast<byte, TInto>(_cells.AsSpan());
+        ReadOnlySpan<TFrom> source = MemoryMarshal.Cast<byte, TFrom>(other._cells.AsSpan());
+        ulong limit = (ulong)MaxOf(WidthLog2);
+        for (int cell = from; cell <= to; cell++)
+        {
+            ulong count = ulong.CreateTruncating(source[cell]);
+            if (count == 0)
+            {
+                continue;
+            }
+
+            int target = ((other.First + cell) >> shift) - First;
+            ulong sum = ulong.CreateTruncating(into[target]) + count;
+            if (sum > limit)
+            {
+                return cell;
+            }
+
+            into[target] = TInto.CreateTruncating(sum);
+        }
+
+        return to + 1;
     }
 
     /// <summary>Records <paramref name="count"/> values added by the typed update loop (counts already in the cells).</summary>
@@ -148,20 +233,10 @@ internal sealed class BucketCounts
     /// <summary>Gives back cells beyond the occupied indices and narrows counters to the largest count.</summary>
     public void TrimExcess()
     {
-        BucketCounts trimmed = Clone();
-        if (trimmed._cells.Length != _cells.Length || trimmed.WidthLog2 != WidthLog2)
-        {
-            (_cells, First, WidthLog2) = (trimmed._cells, trimmed.First, trimmed.WidthLog2);
-        }
-    }
-
-    /// <summary>An independent copy holding only the occupied cells, its counters as narrow as its largest count allows.</summary>
-    public BucketCounts Clone()
-    {
-        var copy = new BucketCounts { Total = Total };
         if (Occupied() is not (int low, int high))
         {
-            return copy;
+            (_cells, First, WidthLog2) = ([], 0, 0);
+            return;
         }
 
         long largest = 0;
@@ -176,16 +251,23 @@ internal sealed class BucketCounts
             width++;
         }
 
-        copy.First = low;
-        copy.WidthLog2 = width;
-        copy._cells = new byte[(high - low + 1) << width];
-        for (int cell = low - First; cell <= high - First; cell++)
+        if (low == First && high == First + Length - 1 && width == WidthLog2)
         {
-            copy.Write(cell - (low - First), Read(cell));
+            return;
         }
 
-        return copy;
+        var trimmed = new BucketCounts { First = low, WidthLog2 = width, _cells = new byte[(high - low + 1) << width] };
+        for (int cell = low - First; cell <= high - First; cell++)
+        {
+            trimmed.Write(cell - (low - First), Read(cell));
+        }
+
+        (_cells, First, WidthLog2) = (trimmed._cells, low, width);
     }
+
+    /// <summary>An independent copy, cells as they are (a closed bucket's are already trimmed).</summary>
+    public BucketCounts Clone() =>
+        new() { First = First, WidthLog2 = WidthLog2, _cells = _cells.Length == 0 ? [] : (byte[])_cells.Clone(), Total = Total };
 
     /// <summary>Largest count a counter of 2^<paramref name="widthLog2"/> bytes holds.</summary>
     internal static long MaxOf(int widthLog2) => widthLog2 switch
@@ -221,6 +303,26 @@ internal sealed class BucketCounts
                 MemoryMarshal.Cast<byte, long>(_cells.AsSpan())[cell] = value;
                 break;
         }
+    }
+
+    private (int[] Indices, long[] Counts) OccupiedBuckets<T>()
+        where T : unmanaged, IBinaryInteger<T>, IUnsignedNumber<T>
+    {
+        ReadOnlySpan<T> cells = MemoryMarshal.Cast<byte, T>(_cells.AsSpan());
+        int occupied = cells.Length - cells.Count(T.Zero);
+        var indices = new int[occupied];
+        var counts = new long[occupied];
+        int next = 0;
+        for (int cell = 0; cell < cells.Length && next < occupied; cell++)
+        {
+            if (!T.IsZero(cells[cell]))
+            {
+                indices[next] = First + cell;
+                counts[next++] = long.CreateTruncating(cells[cell]);
+            }
+        }
+
+        return (indices, counts);
     }
 
     // Re-allocates to take in `index` with slack on the side that grew: a quarter of the span, at

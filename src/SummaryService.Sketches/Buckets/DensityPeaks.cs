@@ -32,51 +32,89 @@ internal static class DensityPeaks
     public static List<ModeEstimate> Find(LogBucketSketch sketch, double min, double max, long total)
     {
         var peaks = new List<(double Prominence, ModeEstimate Mode)>();
-        peaks.AddRange(OfRange(sketch.PositiveBuckets().ToList(), sketch.Mapping, negative: false, min, max, total));
-        peaks.AddRange(OfRange(sketch.NegativeBuckets().ToList(), sketch.Mapping, negative: true, min, max, total));
+        peaks.AddRange(OfRange(sketch.PositiveArrays(), sketch.Mapping, negative: false, min, max, total));
+        peaks.AddRange(OfRange(sketch.NegativeArrays(), sketch.Mapping, negative: true, min, max, total));
         return peaks.OrderByDescending(p => p.Prominence).Select(p => p.Mode).ToList();
     }
 
     // Prominence is returned as its logarithm, so ranges of any magnitude compare without overflow.
-    private static IEnumerable<(double Prominence, ModeEstimate Mode)> OfRange(List<(int Index, long Count)> buckets, ExponentialMapping mapping, bool negative, double min, double max, long total)
+    private static IEnumerable<(double Prominence, ModeEstimate Mode)> OfRange((int[] Indices, long[] Counts) buckets, ExponentialMapping mapping, bool negative, double min, double max, long total)
     {
-        if (buckets.Count == 0)
+        (int[] indices, long[] occupied) = buckets;
+        if (indices.Length == 0)
         {
             yield break;
+        }
+
+        // The smoothing blurs over h buckets anyway: read the density at the coarsest scale where the
+        // kernel still spans two buckets (neighbours combined exactly), which divides the work by
+        // up to h/2 and loses nothing the smoothing kept.
+        double bandwidthAtScale = Bandwidth(indices, occupied);
+        int fold = Math.Max(0, Math.Min(mapping.Scale - ExponentialMapping.MinScale, (int)Math.Floor(Math.Log2(bandwidthAtScale / 2))));
+        if (fold > 0)
+        {
+            (indices, occupied) = Folded(indices, occupied, fold);
+            mapping = ExponentialMapping.ForScale(mapping.Scale - fold);
         }
 
         double logBase = Math.Log(mapping.Base);
 
         // Three passes of a box of 2r + 1 buckets: a near-Gaussian kernel of standard deviation
         // sqrt(r(r + 1)), in time linear in the buckets spanned.
-        int radius = BoxRadius(Bandwidth(buckets));
+        int radius = BoxRadius(Math.Max(1, bandwidthAtScale / (1 << fold)));
         double bandwidth = Math.Sqrt(radius * (radius + 1.0));
         int reach = (3 * radius) + 1;
-        int first = buckets[0].Index - reach;
-        int length = buckets[^1].Index - buckets[0].Index + 1 + (2 * reach);
+        int first = indices[0] - reach;
+        int length = indices[^1] - indices[0] + 1 + (2 * reach);
         var counts = new double[length];
-        foreach ((int index, long count) in buckets)
+        for (int j = 0; j < indices.Length; j++)
         {
-            counts[index - first] = count;
+            counts[indices[j] - first] = occupied[j];
         }
 
-        double[] smoothed = Smooth(Smooth(Smooth(counts, radius), radius), radius);
+        var smoothed = new double[length];
+        var scratch = new double[length];
+        Smooth(counts, smoothed, radius);
+        Smooth(smoothed, scratch, radius);
+        Smooth(scratch, smoothed, radius);
 
-        // Log density: ln S − ln(width), width = base^k·(base − 1) in value units.
-        double logStep = Math.Log(mapping.Base - 1);
-        var logDensity = new double[length];
+        // Density S/width with width = base^k·(base − 1), scaled so that the highest is 1. Each bucket
+        // is 1/base as wide as the next, so the density is carried by one multiply per bucket; the
+        // logarithm of the scale (top) keeps the two ranges comparable whatever their magnitudes.
+        var density = new double[length];
+        double stepDown = 1 / mapping.Base;
+        double factor = 1;
+        double logFactor = 0;
         for (int k = 0; k < length; k++)
         {
-            logDensity[k] = smoothed[k] > 0 ? Math.Log(smoothed[k]) - (((first + k) * logBase) + logStep) : double.NegativeInfinity;
+            if (factor < 1e-250)
+            {
+                // Rescale before the factor underflows (wide ranges at coarse scales).
+                logFactor += Math.Log(factor);
+                for (int j = 0; j < k; j++)
+                {
+                    density[j] /= factor;
+                }
+
+                factor = 1;
+            }
+
+            density[k] = smoothed[k] * factor;
+            factor *= stepDown;
         }
 
-        double top = logDensity.Max();
-        var density = logDensity.Select(d => Math.Exp(d - top)).ToArray();
-        var deviation = new double[length];
+        int peakAt = Array.IndexOf(density, density.Max());
+        double peakDensity = density[peakAt];
+        double top = Math.Log(peakDensity) + logFactor - ((first * logBase) + Math.Log(mapping.Base - 1));
+        double toUnit = 1 / peakDensity;
         for (int k = 0; k < length; k++)
         {
-            deviation[k] = smoothed[k] > 0 ? density[k] / Math.Sqrt(smoothed[k] * EffectiveWidth * bandwidth) : 0;
+            density[k] *= toUnit;
         }
+
+        // Standard deviation of a density, read only where a peak is weighed.
+        double perCount = EffectiveWidth * bandwidth;
+        double Deviation(int k) => smoothed[k] > 0 ? density[k] / Math.Sqrt(smoothed[k] * perCount) : 0;
 
         var kept = new List<(int At, double Prominence)>();
         for (int k = 0; k < length; k++)
@@ -88,10 +126,19 @@ internal static class DensityPeaks
                 continue;
             }
 
+            // Even a dip to nothing could not lift a peak this close to its own noise: skip the
+            // search for its base (the sparse tail is full of such small maxima).
+            bool highest = k == peakAt;
+            double peakDeviation = Deviation(k);
+            if (!highest && density[k] <= NoiseDeviations * peakDeviation)
+            {
+                continue;
+            }
+
             int baseAt = BaseOf(density, k);
             double rise = density[k] - density[baseAt];
-            bool highest = density[k] == 1;
-            double noise = NoiseDeviations * Math.Sqrt((deviation[k] * deviation[k]) + (deviation[baseAt] * deviation[baseAt]));
+            double baseDeviation = Deviation(baseAt);
+            double noise = NoiseDeviations * Math.Sqrt((peakDeviation * peakDeviation) + (baseDeviation * baseDeviation));
             if (highest || rise > noise)
             {
                 kept.Add((k, top + Math.Log(rise > 0 ? rise : 1)));
@@ -110,7 +157,7 @@ internal static class DensityPeaks
             }
 
             // Where the density cannot be told from the peak's: within the noise of the top.
-            double floor = density[at] - (NoiseDeviations * deviation[at]);
+            double floor = density[at] - (NoiseDeviations * Deviation(at));
             int left = at;
             while (left > from && density[left - 1] >= floor)
             {
@@ -143,12 +190,46 @@ internal static class DensityPeaks
     }
 
     // Silverman's rule on ln|x| with each bucket's values at its log-midpoint, in bucket units.
-    private static double Bandwidth(List<(int Index, long Count)> buckets)
+    // Buckets i → i >> by, counts of merged buckets added: the same data at a coarser scale.
+    private static (int[] Indices, long[] Counts) Folded(int[] indices, long[] counts, int by)
     {
-        double n = buckets.Sum(b => (double)b.Count);
-        double mean = buckets.Sum(b => b.Count * (b.Index + 0.5)) / n;
-        double variance = buckets.Sum(b => b.Count * Math.Pow(b.Index + 0.5 - mean, 2)) / n;
-        double iqr = IndexAtShare(buckets, n, 0.75) - IndexAtShare(buckets, n, 0.25);
+        var foldedIndices = new int[indices.Length];
+        var foldedCounts = new long[indices.Length];
+        int n = -1;
+        for (int j = 0; j < indices.Length; j++)
+        {
+            int index = indices[j] >> by;
+            if (n < 0 || foldedIndices[n] != index)
+            {
+                foldedIndices[++n] = index;
+            }
+
+            foldedCounts[n] += counts[j];
+        }
+
+        return (foldedIndices[..(n + 1)], foldedCounts[..(n + 1)]);
+    }
+
+    private static double Bandwidth(int[] indices, long[] counts)
+    {
+        double n = 0;
+        double sum = 0;
+        for (int j = 0; j < indices.Length; j++)
+        {
+            n += counts[j];
+            sum += counts[j] * (indices[j] + 0.5);
+        }
+
+        double mean = sum / n;
+        double squares = 0;
+        for (int j = 0; j < indices.Length; j++)
+        {
+            double d = indices[j] + 0.5 - mean;
+            squares += counts[j] * d * d;
+        }
+
+        double variance = squares / n;
+        double iqr = IndexAtShare(indices, counts, n, 0.75) - IndexAtShare(indices, counts, n, 0.25);
         double spread = Math.Min(Math.Sqrt(variance), iqr / 1.34);
         if (!(spread > 0))
         {
@@ -159,29 +240,28 @@ internal static class DensityPeaks
         return Math.Max(1, 0.9 * spread * Math.Pow(n, -0.2));
     }
 
-    private static double IndexAtShare(List<(int Index, long Count)> buckets, double n, double share)
+    private static double IndexAtShare(int[] indices, long[] counts, double n, double share)
     {
         double running = 0;
-        foreach ((int index, long count) in buckets)
+        for (int j = 0; j < indices.Length; j++)
         {
-            running += count;
+            running += counts[j];
             if (running >= share * n)
             {
-                return index + 0.5;
+                return indices[j] + 0.5;
             }
         }
 
-        return buckets[^1].Index + 0.5;
+        return indices[^1] + 0.5;
     }
 
     // The r whose triple box has the standard deviation closest to the bandwidth: r(r + 1) = h².
     private static int BoxRadius(double bandwidth) =>
         Math.Max(1, (int)Math.Round((Math.Sqrt(1 + (4 * bandwidth * bandwidth)) - 1) / 2));
 
-    // Moving average over 2r + 1 buckets, zeros beyond the ends.
-    private static double[] Smooth(double[] values, int radius)
+    // Moving average over 2r + 1 buckets, zeros beyond the ends, from values into smoothed.
+    private static void Smooth(double[] values, double[] smoothed, int radius)
     {
-        var smoothed = new double[values.Length];
         double width = (2 * radius) + 1;
         double window = 0;
         for (int k = -radius; k < values.Length; k++)
@@ -194,8 +274,6 @@ internal static class DensityPeaks
                 smoothed[k] = Math.Max(0, window / width);
             }
         }
-
-        return smoothed;
     }
 
     // The base of the peak at k: on each side, the lowest point before higher ground (or the end);

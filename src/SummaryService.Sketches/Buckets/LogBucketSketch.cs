@@ -118,6 +118,12 @@ public sealed class LogBucketSketch
     /// <summary>Occupied negative buckets, ascending index (ascending magnitude).</summary>
     public IEnumerable<(int Index, long Count)> NegativeBuckets() => _negative?.Buckets() ?? [];
 
+    /// <summary>Occupied positive buckets as index and count arrays, ascending index.</summary>
+    internal (int[] Indices, long[] Counts) PositiveArrays() => _positive?.OccupiedBuckets() ?? ([], []);
+
+    /// <summary>Occupied negative buckets as index and count arrays, ascending index (ascending magnitude).</summary>
+    internal (int[] Indices, long[] Counts) NegativeArrays() => _negative?.OccupiedBuckets() ?? ([], []);
+
     internal void AddUnchecked(double value)
     {
         AddOne(value);
@@ -201,7 +207,7 @@ public sealed class LogBucketSketch
         _negative?.TrimExcess();
     }
 
-    /// <summary>An independent copy, trimmed.</summary>
+    /// <summary>An independent copy, in the same form.</summary>
     public LogBucketSketch Clone()
     {
         var copy = (LogBucketSketch)MemberwiseClone();
@@ -271,14 +277,9 @@ public sealed class LogBucketSketch
 
     private void MergeRange(ref BucketCounts? range, BucketCounts? other, int shift)
     {
-        if (other is null)
+        if (other is not null)
         {
-            return;
-        }
-
-        foreach ((int index, long count) in other.Buckets())
-        {
-            (range ??= new BucketCounts()).Add(index >> shift, count, MaxBuckets);
+            (range ??= new BucketCounts()).AddFrom(other, shift, MaxBuckets);
         }
     }
 
@@ -287,13 +288,15 @@ public sealed class LogBucketSketch
     {
         long low = long.MaxValue;
         long high = long.MinValue;
-        foreach ((BucketCounts? range, int from) in new[] { (mine, myScale), (theirs, theirScale) })
+        if (mine?.Occupied() is (int myLow, int myHigh))
         {
-            if (range?.Occupied() is (int l, int h))
-            {
-                low = Math.Min(low, l >> (from - scale));
-                high = Math.Max(high, h >> (from - scale));
-            }
+            (low, high) = (myLow >> (myScale - scale), myHigh >> (myScale - scale));
+        }
+
+        if (theirs?.Occupied() is (int theirLow, int theirHigh))
+        {
+            low = Math.Min(low, theirLow >> (theirScale - scale));
+            high = Math.Max(high, theirHigh >> (theirScale - scale));
         }
 
         return low > high || high - low < MaxBuckets;

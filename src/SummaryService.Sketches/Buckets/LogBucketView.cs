@@ -50,38 +50,47 @@ internal sealed class LogBucketView
     /// <summary>Reads a sketch whose values lie in [<paramref name="min"/>, <paramref name="max"/>].</summary>
     public static LogBucketView Of(LogBucketSketch sketch, double min, double max)
     {
-        var low = new List<double>();
-        var high = new List<double>();
-        var cumulative = new List<long>();
-        long running = 0;
         ExponentialMapping mapping = sketch.Mapping;
+        (int[] negIndex, long[] negCount) = sketch.NegativeArrays();
+        (int[] posIndex, long[] posCount) = sketch.PositiveArrays();
+        int zeros = sketch.ZeroCount > 0 ? 1 : 0;
+        int total = negIndex.Length + zeros + posIndex.Length;
+        var low = new double[total];
+        var high = new double[total];
+        var cumulative = new long[total];
+        long running = 0;
+        int at = 0;
 
-        void Add(double l, double h, long count)
+        // Neighbouring buckets share a boundary: Floor(i + 1) of one is Floor(i) of the next.
+        for (int j = negIndex.Length - 1; j >= 0; j--)
         {
-            running += count;
-            low.Add(Math.Max(l, min));
-            high.Add(Math.Min(h, max));
-            cumulative.Add(running);
+            (double l, double h) = mapping.Bounds(negIndex[j]);
+            running += negCount[j];
+            (low[at], high[at], cumulative[at]) = (Math.Max(-h, min), Math.Min(-l, max), running);
+            at++;
         }
 
-        foreach ((int index, long count) in sketch.NegativeBuckets().Reverse())
+        if (zeros == 1)
         {
-            (double l, double h) = mapping.Bounds(index);
-            Add(-h, -l, count);
+            running += sketch.ZeroCount;
+            (low[at], high[at], cumulative[at]) = (Math.Max(0, min), Math.Min(0, max), running);
+            at++;
         }
 
-        if (sketch.ZeroCount > 0)
+        double nextFloor = double.NaN;
+        int nextIndex = int.MinValue;
+        for (int j = 0; j < posIndex.Length; j++)
         {
-            Add(0, 0, sketch.ZeroCount);
+            int index = posIndex[j];
+            double floor = index == nextIndex ? nextFloor : mapping.Floor(index);
+            nextFloor = mapping.Floor(index + 1L);
+            nextIndex = index + 1;
+            running += posCount[j];
+            (low[at], high[at], cumulative[at]) = (Math.Max(Math.BitIncrement(floor), min), Math.Min(nextFloor, max), running);
+            at++;
         }
 
-        foreach ((int index, long count) in sketch.PositiveBuckets())
-        {
-            (double l, double h) = mapping.Bounds(index);
-            Add(l, h, count);
-        }
-
-        return new LogBucketView([.. low], [.. high], [.. cumulative], mapping.RelativeError, min, max);
+        return new LogBucketView(low, high, cumulative, mapping.RelativeError, min, max);
     }
 
     /// <summary>

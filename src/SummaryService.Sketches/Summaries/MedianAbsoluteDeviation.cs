@@ -20,25 +20,28 @@ namespace SummaryService.Sketches.Summaries;
 /// </remarks>
 internal static class MedianAbsoluteDeviation
 {
-    // 2^−60 of the data's range: finer than any retained item can resolve.
+    // 2^−60 of the data's range: finer than any retained item can resolve. Where log buckets take
+    // part the interval is at least a bucket wide, so 2^−32 of the range is ample and the end is
+    // found in about half the steps; each step reads both parts' counts.
     private const int BisectionSteps = 60;
+    private const int BisectionStepsWithBuckets = 32;
 
     /// <summary>
-    /// The MAD and its interval; <paramref name="certainOnly"/> leaves the KLL part's bounds out
-    /// (used to tell which bound gave each end).
+    /// The MAD and its interval, with the source of each end: the weaker of the sources of the two
+    /// count bounds that decided it (evaluated at that end).
     /// </summary>
-    public static (double Mad, double Low, double High) Estimate(SummaryBounds bounds, bool certainOnly)
+    public static (double Mad, double Low, double High, BoundSource LowSource, BoundSource HighSource) Estimate(SummaryBounds bounds)
     {
         KllSortedView view = bounds.EstimateView!;
         double median = view.Quantile(0.5);
         double mad = Deviations(view, median).Quantile(0.5);
         if (bounds.Exact)
         {
-            return (mad, mad, mad);
+            return (mad, mad, mad, BoundSource.Exact, BoundSource.Exact);
         }
 
-        double rankError = certainOnly ? double.PositiveInfinity : bounds.Rank?.MadShift ?? 0;
-        QuantileEstimate medianInterval = bounds.MedianForMad(certainOnly);
+        double rankError = bounds.Rank?.MadShift ?? 0;
+        QuantileEstimate medianInterval = bounds.MedianForMad();
         double medianLow = medianInterval.Low;
         double medianHigh = medianInterval.High;
         double n = view.Count;
@@ -53,14 +56,21 @@ internal static class MedianAbsoluteDeviation
         double LowerCountWithin(double a) =>
             bounds.CountBelow(medianLow + a, strict: false, rankError).Low - bounds.CountBelow(medianHigh - a, strict: true, rankError).High;
 
-        double LowerEnd(double j) => LargestWhere(a => UpperCountCloserThan(a) < j, span);
-        double UpperEnd(double j) => SmallestWhere(a => LowerCountWithin(a) >= j, span);
+        int steps = bounds.Buckets is null ? BisectionSteps : BisectionStepsWithBuckets;
+        double LowerEnd(double j) => LargestWhere(a => UpperCountCloserThan(a) < j, span, steps);
+        double UpperEnd(double j) => SmallestWhere(a => LowerCountWithin(a) >= j, span, steps);
 
         double low0 = LowerEnd(j0);
         double high0 = UpperEnd(j0);
         double low = f == 0 ? low0 : low0 + (f * (LowerEnd(j1) - low0));
         double high = f == 0 ? high0 : high0 + (f * (UpperEnd(j1) - high0));
-        return (mad, Math.Min(low, mad), Math.Max(high, mad));
+        BoundSource lowSource = Bounded.Weaker(
+            Bounded.Weaker(bounds.CountBelow(medianHigh + low0, strict: true, rankError).HighSource, bounds.CountBelow(medianLow - low0, strict: false, rankError).LowSource),
+            Bounded.Weaker(medianInterval.LowSource, medianInterval.HighSource));
+        BoundSource highSource = Bounded.Weaker(
+            Bounded.Weaker(bounds.CountBelow(medianLow + high0, strict: false, rankError).LowSource, bounds.CountBelow(medianHigh - high0, strict: true, rankError).HighSource),
+            Bounded.Weaker(medianInterval.LowSource, medianInterval.HighSource));
+        return (mad, Math.Min(low, mad), Math.Max(high, mad), lowSource, highSource);
     }
 
     /// <summary>Deviations of the weighted values from <paramref name="centre"/>, ascending, with their weights.</summary>
@@ -91,7 +101,7 @@ internal static class MedianAbsoluteDeviation
     }
 
     // Bisection on a monotone predicate over [0, limit]; stops when no double lies strictly between.
-    private static double LargestWhere(Func<double, bool> holds, double limit)
+    private static double LargestWhere(Func<double, bool> holds, double limit, int steps)
     {
         if (!holds(0))
         {
@@ -105,7 +115,7 @@ internal static class MedianAbsoluteDeviation
 
         double lo = 0;
         double hi = limit;
-        for (int step = 0; step < BisectionSteps; step++)
+        for (int step = 0; step < steps; step++)
         {
             double mid = lo + ((hi - lo) / 2);
             if (mid <= lo || mid >= hi)
@@ -126,7 +136,7 @@ internal static class MedianAbsoluteDeviation
         return lo;
     }
 
-    private static double SmallestWhere(Func<double, bool> holds, double limit)
+    private static double SmallestWhere(Func<double, bool> holds, double limit, int steps)
     {
         if (holds(0))
         {
@@ -140,7 +150,7 @@ internal static class MedianAbsoluteDeviation
 
         double lo = 0;
         double hi = limit;
-        for (int step = 0; step < BisectionSteps; step++)
+        for (int step = 0; step < steps; step++)
         {
             double mid = lo + ((hi - lo) / 2);
             if (mid <= lo || mid >= hi)

@@ -50,12 +50,8 @@ internal sealed class SummaryBounds
     /// </summary>
     public QuantileEstimate Quantile(double q, double samplingShift) => Quantile(q, samplingShift, _rank?.ValueShift ?? 0);
 
-    /// <summary>
-    /// Median interval for the MAD: the KLL part at a quarter of the failure budget, or with
-    /// <paramref name="certainOnly"/> the certain bounds alone (the KLL part's interval opened to [min, max]).
-    /// </summary>
-    public QuantileEstimate MedianForMad(bool certainOnly) =>
-        Quantile(0.5, 0, certainOnly ? double.PositiveInfinity : _rank?.MedianShiftForMad ?? 0);
+    /// <summary>Median interval for the MAD: the KLL part at a quarter of the failure budget.</summary>
+    public QuantileEstimate MedianForMad() => Quantile(0.5, 0, _rank?.MedianShiftForMad ?? 0);
 
     /// <summary>The share of values at or below <paramref name="x"/>, with the intersected interval.</summary>
     public RankEstimate ShareAtOrBelow(double x)
@@ -80,31 +76,45 @@ internal sealed class SummaryBounds
             return new CountBound(exact, exact, BoundSource.Range, exact, BoundSource.Range);
         }
 
-        Span<(double Low, double High, BoundSource Source)> candidates = stackalloc (double, double, BoundSource)[2];
-        int used = 0;
+        // The KLL part's ± t and the log buckets' certain bounds, intersected (this runs in the MAD's
+        // bisection, so without the general intersection's loop): the surer source wins ties, and a
+        // KLL interval that misses the certain one altogether is left out.
+        double total = n;
+        double low = 0;
+        double high = total;
+        BoundSource lowSource = BoundSource.Range;
+        BoundSource highSource = BoundSource.Range;
         double estimate = double.NaN;
+        bool hasBuckets = Buckets is not null && !Exact;
+        double bucketLow = 0;
+        double bucketHigh = total;
+        if (hasBuckets)
+        {
+            (double bucketEstimate, long certainLow, long certainHigh) = Buckets!.CountBelow(x, strict);
+            (estimate, bucketLow, bucketHigh) = (bucketEstimate, certainLow, certainHigh);
+            (low, lowSource, high, highSource) = (certainLow, BoundSource.LogBuckets, certainHigh, BoundSource.LogBuckets);
+        }
+
         if (_rank is not null)
         {
             double rank = strict ? _rank.View.CountBelow(x) : _rank.View.CountAtOrBelow(x);
             estimate = rank;
             BoundSource source = Exact ? BoundSource.Exact : BoundSource.RankError;
-            candidates[used++] = (Math.Max(0, rank - rankError), Math.Min(n, rank + rankError), source);
+            double rankLow = Math.Max(0, rank - rankError);
+            double rankHigh = Math.Min(total, rank + rankError);
+            if (!hasBuckets || (rankLow <= bucketHigh && rankHigh >= bucketLow))
+            {
+                (low, lowSource) = !hasBuckets || rankLow > low ? (rankLow, source) : (low, lowSource);
+                (high, highSource) = !hasBuckets || rankHigh < high ? (rankHigh, source) : (high, highSource);
+            }
         }
 
-        if (Buckets is not null && !Exact)
+        if (double.IsNaN(estimate))
         {
-            (double bucketEstimate, long low, long high) = Buckets.CountBelow(x, strict);
-            estimate = double.IsNaN(estimate) ? bucketEstimate : estimate;
-            candidates[used++] = (low, high, BoundSource.LogBuckets);
+            return new CountBound(total / 2, 0, BoundSource.Range, total, BoundSource.Range);
         }
 
-        if (used == 0)
-        {
-            return new CountBound(n / 2.0, 0, BoundSource.Range, n, BoundSource.Range);
-        }
-
-        Bounded b = Bounded.Intersect(candidates[..used]);
-        return new CountBound(Math.Clamp(estimate, b.Low, b.High), b.Low, b.LowSource, b.High, b.HighSource);
+        return new CountBound(Math.Clamp(estimate, low, high), low, lowSource, high, highSource);
     }
 
     /// <summary>Bins between the given edges: each count's interval from the bounds at its two edges.</summary>

@@ -60,32 +60,8 @@ internal static class SummaryBuilder
         };
     }
 
-    // The MAD from the combined count bounds; each end's source is the log buckets' where the
-    // certain bounds alone give the same end, else the rank bound's.
-    private static (double Mad, double Low, double High, BoundSource LowSource, BoundSource HighSource)? Mad(SummaryBounds bounds)
-    {
-        if (bounds.EstimateView is null)
-        {
-            return null;
-        }
-
-        var (mad, low, high) = MedianAbsoluteDeviation.Estimate(bounds, certainOnly: false);
-        if (bounds.Exact)
-        {
-            return (mad, low, high, BoundSource.Exact, BoundSource.Exact);
-        }
-
-        if (bounds.Rank is null || bounds.Buckets is null)
-        {
-            BoundSource only = bounds.Rank is null ? BoundSource.LogBuckets : BoundSource.RankError;
-            return (mad, low, high, only, only);
-        }
-
-        var (_, certainLow, certainHigh) = MedianAbsoluteDeviation.Estimate(bounds, certainOnly: true);
-        return (mad, low, high,
-            low == certainLow ? BoundSource.LogBuckets : BoundSource.RankError,
-            high == certainHigh ? BoundSource.LogBuckets : BoundSource.RankError);
-    }
+    private static (double Mad, double Low, double High, BoundSource LowSource, BoundSource HighSource)? Mad(SummaryBounds bounds) =>
+        bounds.EstimateView is null ? null : MedianAbsoluteDeviation.Estimate(bounds);
 
     // Discrete data: the mode sketch's values. Continuous data (or an aged bucket past its exact
     // counts): the log buckets' density peaks, led by the zeros when they outnumber every bucket.

@@ -45,11 +45,15 @@ public class SummarizePartsBenchmarks
         SummaryOptions.DefaultQuantiles.Select(q => _bounds.Quantile(q)).ToArray();
 
     [Benchmark]
-    public (double Mad, double Low, double High) MadWithInterval() =>
-        MedianAbsoluteDeviation.Estimate(_bounds, certainOnly: false);
+    public (double Mad, double Low, double High, BoundSource LowSource, BoundSource HighSource) MadWithInterval() =>
+        MedianAbsoluteDeviation.Estimate(_bounds);
 
     [Benchmark]
     public ModeEstimate[] Modes() => _sketch.Modes.Modes(SummaryOptions.DefaultMaxModes);
+
+    /// <summary>Density peaks of the log buckets: the modes of continuous data.</summary>
+    [Benchmark]
+    public List<ModeEstimate> DensityPeaksOfBuckets() => Sketches.Buckets.DensityPeaks.Find(_sketch.LogBuckets!, _sketch.Moments.Min, _sketch.Moments.Max, _sketch.Count);
 
     [Benchmark]
     public int ModeCandidateCount() => _sketch.Modes.ModeCandidateCount();

@@ -1,6 +1,5 @@
 using System.Text.Json;
 using SummaryService.Sketches.Serialization;
-using SummaryService.Sketches.Summaries;
 using SummaryService.Sketches.Tests.Support;
 
 namespace SummaryService.Sketches.Tests.Legacy;
@@ -13,15 +12,6 @@ namespace SummaryService.Sketches.Tests.Legacy;
 public class Format1SketchFixtureTests
 {
     private static readonly string Folder = Path.Combine(AppContext.BaseDirectory, "Data", "Format1");
-
-    // The options the fixture's answers were recorded with (see the README).
-    private static readonly SummaryOptions RecordedOptions = new()
-    {
-        Quantiles = [0, 0.01, 0.25, 0.5, 0.75, 0.9, 0.99, 0.999, 1],
-        RankOf = [-5, 0, 1, 10, 100, 250],
-        Histogram = HistogramSpec.Automatic(10),
-        MaxModes = 5,
-    };
 
     public static TheoryData<string> Names()
     {
@@ -47,7 +37,7 @@ public class Format1SketchFixtureTests
     {
         SeriesSketch loaded = SketchCodec.Deserialize(Sketches()[name]);
 
-        JsonElement now = JsonSerializer.SerializeToElement(loaded.Summarize(RecordedOptions));
+        JsonElement now = JsonSerializer.SerializeToElement(loaded.Summarize(Format1Options.Recorded));
 
         JsonSubset.AssertContained(Answers()[name], now);
     }
