@@ -10,7 +10,12 @@ namespace SummaryService.Store.Persistence;
 /// </summary>
 internal static class SnapshotFiles
 {
-    public const uint FormatVersion = 1;
+    /// <summary>Version written: 2, whose buckets may be sketch states of version 2 (log buckets, compact form).</summary>
+    public const uint FormatVersion = 2;
+
+    /// <summary>Versions read: 1 (sketch states of version 1 only) and 2; a newer one is refused as unusable.</summary>
+    public static bool CanRead(uint version) => version is 1 or FormatVersion;
+
     /// <summary>Name of the manifest file in a generation's directory.</summary>
     public const string ManifestName = "manifest.bin";
 
@@ -47,7 +52,7 @@ internal static class SnapshotFiles
             }
 
             manifest = SnapshotManifest.Parser.ParseFrom(manifestRecords[0].Span);
-            if (manifest.FormatVersion != FormatVersion || manifest.ShardCount == 0 || manifest.ShardLsns.Count != manifest.ShardCount)
+            if (!CanRead(manifest.FormatVersion) || manifest.ShardCount == 0 || manifest.ShardLsns.Count != manifest.ShardCount)
             {
                 problem = $"manifest has format version {manifest.FormatVersion} and {manifest.ShardLsns.Count} shard marks for {manifest.ShardCount} shards";
                 return false;
@@ -71,7 +76,7 @@ internal static class SnapshotFiles
 
                 var header = ShardHeader.Parser.ParseFrom(records[0].Span);
                 var footer = ShardFooter.Parser.ParseFrom(records[^1].Span);
-                if (header.FormatVersion != FormatVersion || header.Shard != shard || header.Generation != manifest.Generation || footer.Series != (ulong)(records.Count - 2))
+                if (header.FormatVersion != manifest.FormatVersion || header.Shard != shard || header.Generation != manifest.Generation || footer.Series != (ulong)(records.Count - 2))
                 {
                     problem = $"{Path.GetFileName(file)}: header or footer does not match the manifest";
                     return false;
