@@ -40,7 +40,7 @@ internal static class SizesReport
         const int FullTarget = 12 * 1024;
         const int CompactTarget = 2 * 1024;
         output.WriteLine($"Buckets as the store keeps them (targets: full first-tier bucket <= {FullTarget} bytes, full aged bucket <= {CompactTarget} bytes)");
-        output.WriteLine($"{"distribution",-18}{"values",10}{"bucket",16}{"live~",9}{"own",9}{"KLL items",11}{"KLL levels",12}{"modes",11}{"form",7}  verdict");
+        output.WriteLine($"{"distribution",-18}{"values",10}{"bucket",16}{"live~",9}{"own",9}{"KLL items",11}{"KLL levels",12}{"modes",11}{"form",9}  verdict");
         foreach (Distribution distribution in new[] { Distribution.LogNormalLatency, Distribution.StatusCodes })
         {
             foreach (int count in new[] { 2778, SampleData.FullSketchValues })
@@ -76,7 +76,7 @@ internal static class SizesReport
     private static void WriteSerialized(TextWriter output)
     {
         output.WriteLine($"Serialized size of a default sketch (target: full sketch <= {SerializedTargetBytes} bytes)");
-        output.WriteLine($"{"distribution",-18}{"values",10}{"bytes",10}{"KLL items",11}{"KLL levels",12}{"modes",11}{"form",7}  verdict");
+        output.WriteLine($"{"distribution",-18}{"values",10}{"bytes",10}{"KLL items",11}{"KLL levels",12}{"modes",11}{"form",9}  verdict");
         foreach (Distribution distribution in s_distributions)
         {
             WriteSerializedRow(output, distribution, SampleData.FullSketchValues, SerializedTargetBytes);
@@ -100,7 +100,7 @@ internal static class SizesReport
         output.WriteLine("In-memory size: bytes allocated by construction + adds (an upper bound on live bytes)");
         output.WriteLine("and live bytes estimated from the collected heap while many copies are held; 'own' is SeriesSketch.EstimatedBytes");
         output.WriteLine($"(target: {SmallSketchValues}-value sketch <= {SmallSketchMemoryTargetBytes} bytes)");
-        output.WriteLine($"{"distribution",-18}{"values",10}{"fed",8}{"allocated",11}{"live~",9}{"own",9}{"KLL items",11}{"KLL levels",12}{"modes",11}{"form",7}  verdict");
+        output.WriteLine($"{"distribution",-18}{"values",10}{"fed",8}{"allocated",11}{"live~",9}{"own",9}{"KLL items",11}{"KLL levels",12}{"modes",11}{"form",9}  verdict");
         foreach (Distribution distribution in s_distributions)
         {
             double[] few = SampleData.Generate(distribution, SmallSketchValues, seed: 1);
@@ -152,7 +152,7 @@ internal static class SizesReport
         SeriesSketch parts = sketch.Clone();
         string form = sketch.IsSmall ? "small" : sketch.KeepsRankPart ? "full" : "compact";
         string modes = parts.Modes.IsExact ? "exact" : parts.Modes.IsContinuous ? "density" : "count-min";
-        return $"{parts.Quantiles?.RetainedItems,11}{parts.Quantiles?.LevelCount,12}{modes,11}{form,7}";
+        return $"{parts.Quantiles?.RetainedItems,11}{parts.Quantiles?.LevelCount,12}{modes,11}{form,9}";
     }
 
     // The allocated figure is an upper bound, so only it can prove the target met; when it is over,
