@@ -20,6 +20,8 @@ public sealed class PersistentSeriesStore : ISeriesStore, IAsyncDisposable
     private readonly ILogger _logger;
     private readonly WriteAheadLog? _log;
     private readonly SemaphoreSlim _snapshotGate = new(1, 1);
+    private readonly object _snapshotRequests = new();
+    private TaskCompletionSource<SnapshotInfo>? _nextSnapshot;
     private readonly List<(ulong Generation, ulong LogStart)> _kept;
     private ulong _nextGeneration;
     private bool _disposed;
@@ -113,68 +115,111 @@ public sealed class PersistentSeriesStore : ISeriesStore, IAsyncDisposable
     /// <inheritdoc/>
     public void Roll() => Inner.Roll();
 
-    /// <summary>Writes a new snapshot generation, prunes old ones and the log segments they no longer need.</summary>
-    public async Task<SnapshotInfo> TakeSnapshotAsync(CancellationToken cancellationToken = default)
+    /// <summary>
+    /// Writes a new snapshot generation, prunes old ones and the log segments they no longer need.
+    /// Requests arriving while a snapshot is being written share the next one, which starts when it
+    /// ends and so holds everything acknowledged before any of them asked: however many requests
+    /// come in, at most one snapshot runs and one waits.
+    /// </summary>
+    public Task<SnapshotInfo> TakeSnapshotAsync(CancellationToken cancellationToken = default)
     {
-        await _snapshotGate.WaitAsync(cancellationToken).ConfigureAwait(false);
+        TaskCompletionSource<SnapshotInfo> next;
+        bool start = false;
+        lock (_snapshotRequests)
+        {
+            if (_nextSnapshot is null)
+            {
+                _nextSnapshot = new TaskCompletionSource<SnapshotInfo>(TaskCreationOptions.RunContinuationsAsynchronously);
+                start = true;
+            }
+
+            next = _nextSnapshot;
+        }
+
+        if (start)
+        {
+            _ = WriteWhenFreeAsync(next);
+        }
+
+        return next.Task.WaitAsync(cancellationToken);
+    }
+
+    private async Task WriteWhenFreeAsync(TaskCompletionSource<SnapshotInfo> next)
+    {
+        await _snapshotGate.WaitAsync().ConfigureAwait(false);
         try
         {
-            var watch = Stopwatch.StartNew();
-
-            // Producer marks first: every sequence they cover is then in a shard export or in the log after it.
-            var producers = Inner.Producers.Export();
-            ulong logStart = Inner.LastLsn + 1;
-            if (_log is not null)
+            lock (_snapshotRequests)
             {
-                await _log.RotateAsync(logStart).WaitAsync(cancellationToken).ConfigureAwait(false);
+                // From here on, new requests wait for the snapshot after this one.
+                _nextSnapshot = null;
             }
 
-            ulong generation = _nextGeneration++;
-            var manifest = new SnapshotManifest
-            {
-                FormatVersion = SnapshotFiles.FormatVersion,
-                Generation = generation,
-                CreatedUnixMs = _time.GetUtcNow().ToUnixTimeMilliseconds(),
-                ShardCount = (uint)Inner.ShardCount,
-                LogStart = logStart,
-            };
-            foreach (var (producer, mark) in producers)
-            {
-                manifest.Producers[producer] = mark.Highest;
-                manifest.ProducersLastSeenUnixMs[producer] = mark.LastSeenUnixMs;
-            }
-
-            int series = 0;
-            string directory;
-            using (var writer = SnapshotWriter.Begin(SnapshotDirectory(_persistence), generation))
-            {
-                for (int i = 0; i < Inner.ShardCount; i++)
-                {
-                    var (lsn, records) = Inner.ExportShard(i);
-                    manifest.ShardLsns.Add(lsn);
-                    series += records.Count;
-                    var header = new ShardHeader { FormatVersion = SnapshotFiles.FormatVersion, Generation = generation, Shard = (uint)i, ShardCount = (uint)Inner.ShardCount, AppliedLsn = lsn };
-                    header.TierWidthsMs.AddRange(Inner.Options.Tiers.Select(t => t.WidthMs));
-                    await Task.Run(() => writer.WriteShard(header, records), cancellationToken).ConfigureAwait(false);
-                }
-
-                directory = writer.Complete(manifest);
-            }
-
-            _kept.Insert(0, (generation, logStart));
-            SnapshotFiles.Prune(SnapshotDirectory(_persistence), _persistence.SnapshotsKept, _logger);
-            _kept.RemoveRange(Math.Min(_kept.Count, _persistence.SnapshotsKept), Math.Max(0, _kept.Count - _persistence.SnapshotsKept));
-            LogSegments.DeleteBefore(LogDirectory(_persistence), _kept.Min(k => k.LogStart), _logger);
-            long bytes = Directory.EnumerateFiles(directory).Sum(f => new FileInfo(f).Length);
-            watch.Stop();
-            SnapshotObserved?.Invoke(watch.Elapsed);
-            _logger.LogInformation("Snapshot {Generation}: {Series} series, {Bytes} bytes in {Elapsed} ms.", generation, series, bytes, watch.ElapsedMilliseconds);
-            return new SnapshotInfo(generation, series, bytes, watch.Elapsed);
+            next.TrySetResult(await WriteSnapshotAsync().ConfigureAwait(false));
+        }
+        catch (Exception ex)
+        {
+            next.TrySetException(ex);
         }
         finally
         {
             _snapshotGate.Release();
         }
+    }
+
+    private async Task<SnapshotInfo> WriteSnapshotAsync()
+    {
+        var watch = Stopwatch.StartNew();
+
+        // Producer marks first: every sequence they cover is then in a shard export or in the log after it.
+        var producers = Inner.Producers.Export();
+        ulong logStart = Inner.LastLsn + 1;
+        if (_log is not null)
+        {
+            await _log.RotateAsync(logStart).ConfigureAwait(false);
+        }
+
+        ulong generation = _nextGeneration++;
+        var manifest = new SnapshotManifest
+        {
+            FormatVersion = SnapshotFiles.FormatVersion,
+            Generation = generation,
+            CreatedUnixMs = _time.GetUtcNow().ToUnixTimeMilliseconds(),
+            ShardCount = (uint)Inner.ShardCount,
+            LogStart = logStart,
+        };
+        foreach (var (producer, mark) in producers)
+        {
+            manifest.Producers[producer] = mark.Highest;
+            manifest.ProducersLastSeenUnixMs[producer] = mark.LastSeenUnixMs;
+        }
+
+        int series = 0;
+        string directory;
+        using (var writer = SnapshotWriter.Begin(SnapshotDirectory(_persistence), generation))
+        {
+            for (int i = 0; i < Inner.ShardCount; i++)
+            {
+                var (lsn, records) = Inner.ExportShard(i);
+                manifest.ShardLsns.Add(lsn);
+                series += records.Count;
+                var header = new ShardHeader { FormatVersion = SnapshotFiles.FormatVersion, Generation = generation, Shard = (uint)i, ShardCount = (uint)Inner.ShardCount, AppliedLsn = lsn };
+                header.TierWidthsMs.AddRange(Inner.Options.Tiers.Select(t => t.WidthMs));
+                await Task.Run(() => writer.WriteShard(header, records)).ConfigureAwait(false);
+            }
+
+            directory = writer.Complete(manifest);
+        }
+
+        _kept.Insert(0, (generation, logStart));
+        SnapshotFiles.Prune(SnapshotDirectory(_persistence), _persistence.SnapshotsKept, _logger);
+        _kept.RemoveRange(Math.Min(_kept.Count, _persistence.SnapshotsKept), Math.Max(0, _kept.Count - _persistence.SnapshotsKept));
+        LogSegments.DeleteBefore(LogDirectory(_persistence), _kept.Min(k => k.LogStart), _logger);
+        long bytes = Directory.EnumerateFiles(directory).Sum(f => new FileInfo(f).Length);
+        watch.Stop();
+        SnapshotObserved?.Invoke(watch.Elapsed);
+        _logger.LogDebug("Snapshot {Generation}: {Series} series, {Bytes} bytes in {Elapsed} ms.", generation, series, bytes, watch.ElapsedMilliseconds);
+        return new SnapshotInfo(generation, series, bytes, watch.Elapsed);
     }
 
     /// <summary>Takes a final snapshot (unless durability is none) and closes the log.</summary>

@@ -11,4 +11,7 @@ public sealed class ServerSettings
 
     /// <summary>Most steps one Series call may ask for.</summary>
     public int MaxSeriesSteps { get; set; } = 10_000;
+
+    /// <summary>Refused calls are logged per client at most once per this interval, with counts.</summary>
+    public TimeSpan RefusalLogInterval { get; set; } = TimeSpan.FromSeconds(10);
 }

@@ -86,6 +86,11 @@ internal sealed class SettingsValidator :
             return Fail($"Server:MaxMessageBytes is {options.MaxMessageBytes}; it must be at least 1024.");
         }
 
+        if (options.RefusalLogInterval < TimeSpan.FromSeconds(1))
+        {
+            return Fail($"Server:RefusalLogInterval is {options.RefusalLogInterval}; it must be at least 1 second.");
+        }
+
         return options.MaxSeriesSteps < 1
             ? Fail($"Server:MaxSeriesSteps is {options.MaxSeriesSteps}; it must be at least 1.")
             : ValidateOptionsResult.Success;

@@ -13,6 +13,7 @@ namespace SummaryService.Server.Services;
 /// Admin RPCs. Listing needs the read scope, the others admin. A key limited to metric prefixes
 /// sees and deletes only its own series, and cannot run store-wide operations.
 /// </summary>
+[BindServiceMethod(typeof(DecodeCheckedBinding<Admin.AdminBase>), nameof(DecodeCheckedBinding<Admin.AdminBase>.BindService))]
 public sealed class AdminService(StoreHost host) : Admin.AdminBase
 {
     /// <inheritdoc/>

@@ -15,6 +15,7 @@ namespace SummaryService.Server.Services;
 /// Ingest RPCs. Each batch is checked for access, then handed to the store, which validates it
 /// whole; so a refused batch, for whatever reason, changes nothing.
 /// </summary>
+[BindServiceMethod(typeof(DecodeCheckedBinding<Ingest.IngestBase>), nameof(DecodeCheckedBinding<Ingest.IngestBase>.BindService))]
 public sealed class IngestService(StoreHost host, ServerMetrics metrics, IHostApplicationLifetime lifetime) : Ingest.IngestBase
 {
     /// <summary>Applied batches a stream may hold unanswered while their log group commits.</summary>

@@ -15,6 +15,7 @@ using StoreTimeRange = SummaryService.Store.TimeRange;
 namespace SummaryService.Server.Services;
 
 /// <summary>Query RPCs: every request is validated field by field before the store is read; reads never change stored data.</summary>
+[BindServiceMethod(typeof(DecodeCheckedBinding<Query.QueryBase>), nameof(DecodeCheckedBinding<Query.QueryBase>.BindService))]
 public sealed class QueryService(StoreHost host, ServerMetrics metrics, TimeProvider time, IOptions<ServerSettings> settings, IHostApplicationLifetime lifetime) : Query.QueryBase
 {
     private static readonly double[] DefaultCompareQuantiles = [0.5, 0.9, 0.99];
