@@ -75,13 +75,31 @@ public sealed class PersistentSeriesStore : ISeriesStore, IAsyncDisposable
             logger.LogWarning("Snapshot {Generation} is unusable ({Problem}); trying an older one.", generation, problem);
         }
 
+        // No whole generation: the valid part of the newest beats starting empty.
+        if (store is null && onDisk.Count > 0 && TryLoad(onDisk[0].Path, options, time, out store, out loaded, report, out _, salvage: true))
+        {
+            report.SnapshotGeneration = onDisk[0].Generation;
+            report.SnapshotSalvaged = true;
+            logger.LogWarning("Snapshot {Generation} was salvaged in part: {Losses}", onDisk[0].Generation, string.Join("; ", report.Warnings));
+        }
+
         store ??= new ShardedSeriesStore(options, time);
         Func<SeriesKey, ulong> snapshotLsn = loaded is null
             ? _ => 0
             : key => loaded.ShardLsns[(int)(key.Hash & (ulong)(loaded.ShardCount - 1))];
         foreach (LogRecord record in LogSegments.ReadAll(LogDirectory(persistence), logger, report))
         {
-            store.Replay(record, snapshotLsn, report);
+            try
+            {
+                store.Replay(record, snapshotLsn, report);
+            }
+            catch (Exception ex) when (ex is SketchFormatException or ArgumentException or InvalidOperationException or IndexOutOfRangeException or OverflowException)
+            {
+                // A record whose frame checks out but whose content cannot be applied: skipped, and said so.
+                report.LogRecordsUnusable++;
+                report.Warnings.Add($"log record {record.Lsn} of {record.Metric} skipped: {ex.Message}");
+                logger.LogWarning("Write-ahead log record {Lsn} skipped: {Reason}", record.Lsn, ex.Message);
+            }
         }
 
         var kept = onDisk.Select(g => (g.Generation, LogStart: ReadLogStart(g.Path))).Where(g => g.LogStart.HasValue).Select(g => (g.Generation, g.LogStart!.Value)).ToList();
@@ -256,10 +274,14 @@ public sealed class PersistentSeriesStore : ISeriesStore, IAsyncDisposable
         _snapshotGate.Dispose();
     }
 
-    private static bool TryLoad(string path, StoreOptions options, TimeProvider time, out ShardedSeriesStore? store, out SnapshotManifest? manifest, RecoveryReport report, out string? problem)
+    private static bool TryLoad(string path, StoreOptions options, TimeProvider time, out ShardedSeriesStore? store, out SnapshotManifest? manifest, RecoveryReport report, out string? problem, bool salvage = false)
     {
         store = null;
-        if (!SnapshotFiles.TryRead(path, out manifest, out var shards, out problem))
+        problem = null;
+        bool read = salvage
+            ? SnapshotFiles.TrySalvage(path, out manifest, out var shards, report.Warnings)
+            : SnapshotFiles.TryRead(path, out manifest, out shards, out problem);
+        if (!read)
         {
             return false;
         }
@@ -274,8 +296,15 @@ public sealed class PersistentSeriesStore : ISeriesStore, IAsyncDisposable
                 bool sameLayout = candidate.HasTierWidths(header.TierWidthsMs);
                 foreach (SeriesRecord record in records)
                 {
-                    buckets += candidate.Load(record, header.AppliedLsn, sameLayout);
-                    series++;
+                    try
+                    {
+                        buckets += candidate.Load(record, header.AppliedLsn, sameLayout);
+                        series++;
+                    }
+                    catch (Exception ex) when (salvage && ex is SketchFormatException or ArgumentException)
+                    {
+                        report.Warnings.Add($"series {record.Metric} of shard {header.Shard} skipped: {ex.Message}");
+                    }
                 }
             }
         }
