@@ -266,8 +266,22 @@ public sealed partial class ShardedSeriesStore : ISeriesStore
         return total;
     }
 
-    private static string TenantOf(SeriesKey key)
+    private string TenantOf(SeriesKey key)
     {
+        string? prefix = null;
+        foreach (string candidate in _options.TenantPrefixes)
+        {
+            if (key.Metric.StartsWith(candidate, StringComparison.Ordinal) && candidate.Length > (prefix?.Length ?? -1))
+            {
+                prefix = candidate;
+            }
+        }
+
+        if (prefix is not null)
+        {
+            return prefix;
+        }
+
         int dot = key.Metric.IndexOf('.', StringComparison.Ordinal);
         return dot < 0 ? key.Metric : key.Metric[..dot];
     }

@@ -86,6 +86,16 @@ internal sealed class SettingsValidator :
             return Fail($"Server:MaxMessageBytes is {options.MaxMessageBytes}; it must be at least 1024.");
         }
 
+        if (options.MaxIngestBytesHeld < options.MaxMessageBytes)
+        {
+            return Fail($"Server:MaxIngestBytesHeld is {options.MaxIngestBytesHeld}; it must be at least Server:MaxMessageBytes ({options.MaxMessageBytes}).");
+        }
+
+        if (options.WatchMaxLag < TimeSpan.FromSeconds(1))
+        {
+            return Fail($"Server:WatchMaxLag is {options.WatchMaxLag}; it must be at least 1 second.");
+        }
+
         if (options.RefusalLogInterval < TimeSpan.FromSeconds(1))
         {
             return Fail($"Server:RefusalLogInterval is {options.RefusalLogInterval}; it must be at least 1 second.");

@@ -31,6 +31,7 @@ public static class ServiceRegistration
         services.AddSingleton<StoreHost>();
         services.AddSingleton<ApiKeyRegistry>();
         services.AddSingleton<RefusalLog>();
+        services.AddSingleton<IngestBudget>();
         services.AddHostedService<RefusalLogFlush>();
         services.AddHostedService<StartupNotices>();
         services.AddHostedService<SnapshotService>();

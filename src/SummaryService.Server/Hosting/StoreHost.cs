@@ -16,12 +16,18 @@ public sealed class StoreHost : IAsyncDisposable
     private readonly PersistentSeriesStore? _persistent;
 
     /// <summary>Opens the configured store.</summary>
-    public StoreHost(IOptions<StoreSettings> store, IOptions<PersistenceSettings> persistence, TimeProvider time, ServerMetrics metrics, ILogger<StoreHost> logger)
+    public StoreHost(IOptions<StoreSettings> store, IOptions<PersistenceSettings> persistence, IOptions<AuthSettings> auth, TimeProvider time, ServerMetrics metrics, ILogger<StoreHost> logger)
     {
         ArgumentNullException.ThrowIfNull(store);
         ArgumentNullException.ThrowIfNull(persistence);
+        ArgumentNullException.ThrowIfNull(auth);
         ArgumentNullException.ThrowIfNull(metrics);
-        StoreOptions options = store.Value.ToStoreOptions();
+
+        // With keys configured, a key's metric prefixes are the tenants whose series are counted together.
+        StoreOptions options = store.Value.ToStoreOptions() with
+        {
+            TenantPrefixes = auth.Value.Enabled ? auth.Value.Keys.SelectMany(k => k.Prefixes).Where(p => p.Length > 0).Distinct(StringComparer.Ordinal).ToArray() : [],
+        };
         Durability = persistence.Value.Durability;
         if (Durability == DurabilityMode.None)
         {

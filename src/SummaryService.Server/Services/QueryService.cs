@@ -91,7 +91,8 @@ public sealed class QueryService(StoreHost host, ServerMetrics metrics, TimeProv
 
     /// <summary>
     /// Pushes the trailing-window summary at once and then every interval, until the caller cancels,
-    /// <c>max_updates</c> is reached, or the host stops (the stream then ends cleanly).
+    /// <c>max_updates</c> is reached, or the host stops (the stream then ends cleanly). A caller that
+    /// takes no update for <c>Server:WatchMaxLag</c> is cut off with ResourceExhausted.
     /// </summary>
     public override async Task Watch(WatchRequest request, IServerStreamWriter<SummarizeReply> responseStream, ServerCallContext context)
     {
@@ -128,7 +129,7 @@ public sealed class QueryService(StoreHost host, ServerMetrics metrics, TimeProv
                 StoreTimeRange window = QueryRequests.WindowOf(query.Window, "query.window", NowMs());
                 SummarizeReply reply = SummaryMapping.ToProto(host.Store.Summarize(selector, window, groupBy, options));
                 metrics.QueryAnswered(nameof(Watch), ServerMetrics.Since(time, started));
-                await responseStream.WriteAsync(reply, stop.Token).ConfigureAwait(false);
+                await SlowReaders.WriteOrCutOffAsync(responseStream, reply, settings.Value.WatchMaxLag, time, stop.Token).ConfigureAwait(false);
                 sent++;
             }
             while ((request.MaxUpdates == 0 || sent < request.MaxUpdates) && await timer.WaitForNextTickAsync(stop.Token).ConfigureAwait(false));

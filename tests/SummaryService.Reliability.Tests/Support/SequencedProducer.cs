@@ -26,6 +26,18 @@ internal sealed class SequencedProducer(string producer, string metric)
     /// <summary>Highest sequence sent so far.</summary>
     public ulong HighestSent => _nextSequence - 1;
 
+    /// <summary>Sequences sent and not yet answered.</summary>
+    public int Unanswered
+    {
+        get
+        {
+            lock (_gate)
+            {
+                return _unanswered.Count;
+            }
+        }
+    }
+
     /// <summary>Sequences answered as applied or as already applied.</summary>
     public SortedSet<ulong> Acknowledged { get; } = [];
 
@@ -42,6 +54,7 @@ internal sealed class SequencedProducer(string producer, string metric)
         using var call = new Ingest.IngestClient(channel).PushStream(cancellationToken: CancellationToken.None);
         using var window = new SemaphoreSlim(MaxUnanswered);
         Task reading = ReadRepliesAsync(call.ResponseStream, window);
+        bool broken = false;
         try
         {
             ulong[] resend;
@@ -68,12 +81,27 @@ internal sealed class SequencedProducer(string producer, string metric)
 
                 await call.RequestStream.WriteAsync(BatchOf(sequence)).ConfigureAwait(false);
             }
-
-            await call.RequestStream.CompleteAsync().ConfigureAwait(false);
         }
-        catch (Exception ex) when (ex is RpcException or OperationCanceledException or InvalidOperationException or IOException)
+        catch (OperationCanceledException)
         {
-            // The server went away (or the run ended); what was not answered stays unanswered.
+            // The run ended: the stream is completed below and its replies read to the end.
+        }
+        catch (Exception ex) when (ex is RpcException or InvalidOperationException or IOException)
+        {
+            // The server went away; what was not answered stays unanswered.
+            broken = true;
+        }
+
+        if (!broken)
+        {
+            try
+            {
+                await call.RequestStream.CompleteAsync().ConfigureAwait(false);
+            }
+            catch (Exception ex) when (ex is RpcException or InvalidOperationException or IOException)
+            {
+                // Gone while completing; the replies say how far it got.
+            }
         }
 
         await reading.ConfigureAwait(false);
