@@ -21,14 +21,17 @@ public sealed class PersistentSeriesStore : ISeriesStore, IAsyncDisposable
     private readonly WriteAheadLog? _log;
     private readonly SemaphoreSlim _snapshotGate = new(1, 1);
     private readonly object _snapshotRequests = new();
+    private readonly IDataFiles _files;
+    private volatile string? _snapshotTrouble;
     private TaskCompletionSource<SnapshotInfo>? _nextSnapshot;
     private readonly List<(ulong Generation, ulong LogStart)> _kept;
     private ulong _nextGeneration;
     private bool _disposed;
 
-    private PersistentSeriesStore(ShardedSeriesStore inner, PersistenceOptions persistence, TimeProvider time, ILogger logger, RecoveryReport recovery, List<(ulong, ulong)> kept, ulong nextGeneration, Action<TimeSpan>? logSyncObserved)
+    private PersistentSeriesStore(ShardedSeriesStore inner, PersistenceOptions persistence, TimeProvider time, ILogger logger, RecoveryReport recovery, List<(ulong, ulong)> kept, ulong nextGeneration, Action<TimeSpan>? logSyncObserved, IDataFiles files)
     {
         Inner = inner;
+        _files = files;
         _persistence = persistence;
         _time = time;
         _logger = logger;
@@ -37,10 +40,22 @@ public sealed class PersistentSeriesStore : ISeriesStore, IAsyncDisposable
         _nextGeneration = nextGeneration;
         if (persistence.Durability == DurabilityMode.Wal)
         {
-            _log = new WriteAheadLog(LogDirectory(persistence), inner.LastLsn + 1, persistence.LogSyncInterval, logger, logSyncObserved);
+            _log = new WriteAheadLog(LogDirectory(persistence), inner.LastLsn + 1, persistence.LogSyncInterval, logger, files, logSyncObserved);
             inner.Journal = _log.Append;
+            inner.DurableBarrier = _log.Barrier;
         }
+
+        inner.WriteRefusal = () => WriteTrouble;
     }
+
+    /// <summary>
+    /// Why writes are refused now, or null: with a log, the log cannot write; with snapshots only,
+    /// the last snapshot failed (an acknowledged batch could then be lost beyond the promised interval).
+    /// </summary>
+    public string? WriteTrouble => _log is not null ? _log.Trouble : _snapshotTrouble;
+
+    /// <summary>Why the last snapshot failed, or null; with a log nothing acknowledged is at risk, but the log grows until one works.</summary>
+    public string? SnapshotTrouble => _snapshotTrouble;
 
     /// <summary>The in-memory store underneath.</summary>
     public ShardedSeriesStore Inner { get; }
@@ -52,7 +67,7 @@ public sealed class PersistentSeriesStore : ISeriesStore, IAsyncDisposable
     public Action<TimeSpan>? SnapshotObserved { get; set; }
 
     /// <summary>Opens the store in <see cref="PersistenceOptions.DataDirectory"/>, recovering whatever is there.</summary>
-    public static PersistentSeriesStore Open(StoreOptions options, PersistenceOptions persistence, TimeProvider time, ILogger logger, Action<TimeSpan>? logSyncObserved = null)
+    public static PersistentSeriesStore Open(StoreOptions options, PersistenceOptions persistence, TimeProvider time, ILogger logger, Action<TimeSpan>? logSyncObserved = null, IDataFiles? files = null)
     {
         ArgumentNullException.ThrowIfNull(persistence);
         var report = new RecoveryReport();
@@ -105,7 +120,7 @@ public sealed class PersistentSeriesStore : ISeriesStore, IAsyncDisposable
         var kept = onDisk.Select(g => (g.Generation, LogStart: ReadLogStart(g.Path))).Where(g => g.LogStart.HasValue).Select(g => (g.Generation, g.LogStart!.Value)).ToList();
         ulong next = onDisk.Count == 0 ? 1 : onDisk[0].Generation + 1;
         logger.LogInformation("Recovered series store from {Directory}: {Report}.", persistence.DataDirectory, report);
-        return new PersistentSeriesStore(store, persistence, time, logger, report, kept, next, logSyncObserved);
+        return new PersistentSeriesStore(store, persistence, time, logger, report, kept, next, logSyncObserved, files ?? new LocalDataFiles());
     }
 
     /// <inheritdoc/>
@@ -174,6 +189,12 @@ public sealed class PersistentSeriesStore : ISeriesStore, IAsyncDisposable
             }
 
             next.TrySetResult(await WriteSnapshotAsync().ConfigureAwait(false));
+            _snapshotTrouble = null;
+        }
+        catch (Exception ex) when (ex is IOException or UnauthorizedAccessException)
+        {
+            _snapshotTrouble = $"the last snapshot could not be written: {ex.Message}";
+            next.TrySetException(new StorageUnavailableException(_snapshotTrouble, ex));
         }
         catch (Exception ex)
         {
@@ -214,7 +235,7 @@ public sealed class PersistentSeriesStore : ISeriesStore, IAsyncDisposable
 
         int series = 0;
         string directory;
-        using (var writer = SnapshotWriter.Begin(SnapshotDirectory(_persistence), generation))
+        using (var writer = SnapshotWriter.Begin(SnapshotDirectory(_persistence), generation, _files))
         {
             for (int i = 0; i < Inner.ShardCount; i++)
             {

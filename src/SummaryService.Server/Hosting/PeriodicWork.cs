@@ -1,3 +1,5 @@
+using SummaryService.Store;
+
 namespace SummaryService.Server.Hosting;
 
 /// <summary>
@@ -26,6 +28,11 @@ public abstract class PeriodicWork(TimeProvider time, ILogger logger) : Backgrou
                 try
                 {
                     await RunOnceAsync(stoppingToken).ConfigureAwait(false);
+                }
+                catch (StorageUnavailableException ex)
+                {
+                    // The disk's trouble, already logged when it began: no stack trace every interval.
+                    logger.LogWarning("{Work} failed: {Reason}; trying again in {Interval}.", WorkName, ex.Message, Interval);
                 }
                 catch (Exception ex) when (ex is not OperationCanceledException)
                 {

@@ -1,3 +1,4 @@
+using Microsoft.Extensions.DependencyInjection.Extensions;
 using Microsoft.Extensions.Options;
 using OpenTelemetry;
 using OpenTelemetry.Metrics;
@@ -9,6 +10,7 @@ using SummaryService.Server.Diagnostics;
 using SummaryService.Server.Services;
 using SummaryService.Server.Telemetry;
 using SummaryService.Server.Validation;
+using SummaryService.Store.Persistence;
 
 namespace SummaryService.Server.Hosting;
 
@@ -28,6 +30,7 @@ public static class ServiceRegistration
 
         services.AddSingleton(TimeProvider.System);
         services.AddSingleton<ServerMetrics>();
+        services.TryAddSingleton<IDataFiles, LocalDataFiles>();
         services.AddSingleton<StoreHost>();
         services.AddSingleton<ApiKeyRegistry>();
         services.AddSingleton<RefusalLog>();

@@ -16,7 +16,7 @@ public sealed class StoreHost : IAsyncDisposable
     private readonly PersistentSeriesStore? _persistent;
 
     /// <summary>Opens the configured store.</summary>
-    public StoreHost(IOptions<StoreSettings> store, IOptions<PersistenceSettings> persistence, IOptions<AuthSettings> auth, TimeProvider time, ServerMetrics metrics, ILogger<StoreHost> logger)
+    public StoreHost(IOptions<StoreSettings> store, IOptions<PersistenceSettings> persistence, IOptions<AuthSettings> auth, IDataFiles files, TimeProvider time, ServerMetrics metrics, ILogger<StoreHost> logger)
     {
         ArgumentNullException.ThrowIfNull(store);
         ArgumentNullException.ThrowIfNull(persistence);
@@ -36,7 +36,7 @@ public sealed class StoreHost : IAsyncDisposable
         }
         else
         {
-            _persistent = PersistentSeriesStore.Open(options, persistence.Value.ToPersistenceOptions(), time, logger, metrics.LogSynced);
+            _persistent = PersistentSeriesStore.Open(options, persistence.Value.ToPersistenceOptions(), time, logger, metrics.LogSynced, files);
             _persistent.SnapshotObserved = metrics.SnapshotTaken;
             Store = _persistent;
         }
@@ -50,6 +50,12 @@ public sealed class StoreHost : IAsyncDisposable
 
     /// <summary>The store every service uses.</summary>
     public ISeriesStore Store { get; }
+
+    /// <summary>Why writes are refused now (the data directory cannot be written), or null; while set, health reports not serving.</summary>
+    public string? WriteTrouble => _persistent?.WriteTrouble;
+
+    /// <summary>Why the last snapshot failed, or null; health then reports degraded.</summary>
+    public string? SnapshotTrouble => _persistent?.SnapshotTrouble;
 
     /// <summary>Durability mode in force.</summary>
     public DurabilityMode Durability { get; }

@@ -233,6 +233,11 @@ public sealed class IngestService(StoreHost host, ServerMetrics metrics, IHostAp
             metrics.BatchRejected(ex.Reason.ToString());
             throw;
         }
+        catch (StorageUnavailableException)
+        {
+            metrics.BatchRejected("StorageUnavailable");
+            throw;
+        }
     }
 
     private static PushReply ErrorReply(ulong sequence, StatusCode code, string message, string field) =>

@@ -88,6 +88,8 @@ public sealed class ErrorMappingInterceptor(RefusalLog refusals, ILogger<ErrorMa
                 return RpcErrors.From(rejection);
             case SketchFormatException malformed:
                 return RpcErrors.From(malformed);
+            case StorageUnavailableException unavailable:
+                return new RpcException(new Status(StatusCode.Unavailable, WireText.Message(unavailable.Message)));
             case OperationCanceledException when context.CancellationToken.IsCancellationRequested:
                 return null;
             default:
