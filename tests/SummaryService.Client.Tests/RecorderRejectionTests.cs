@@ -45,6 +45,6 @@ public sealed class RecorderRejectionTests
         Assert.Contains("7-tallowbrook.bad", rejection.Error, StringComparison.Ordinal);
         Assert.Equal(2, rejection.Values);
         Assert.Equal(10ul, (await server.Client.SummaryOfAsync("tallowbrook.parcel.weight")).Count);
-        Assert.DoesNotContain(await server.Client.ListSeriesAsync(), s => s.Metric == "7-tallowbrook.bad");
+        Assert.DoesNotContain(await server.Client.CatalogueAsync(), s => s.Metric == "7-tallowbrook.bad");
     }
 }
