@@ -66,11 +66,11 @@ public sealed class QueryHelperTests
         Assert.Equal(60ul, mode.Count);
 
         // Values keep their record time: north lands in the first 10-minute step, south in the third.
-        TimelineReply series = await client.TimelineAsync(Selection.Of(Latency), window, TimeSpan.FromMinutes(10), new TimelineOptions { Quantiles = [0.5], GroupBy = ["region"] });
-        Assert.Equal(3, series.Steps.Count);
-        Assert.Equal("north", Assert.Single(series.Steps[0].Groups).Labels["region"]);
-        Assert.Empty(series.Steps[1].Groups);
-        GroupSummary third = Assert.Single(series.Steps[2].Groups);
+        TimelineReply timeline = await client.TimelineAsync(Selection.Of(Latency), window, TimeSpan.FromMinutes(10), new TimelineOptions { Quantiles = [0.5], GroupBy = ["region"] });
+        Assert.Equal(3, timeline.Steps.Count);
+        Assert.Equal("north", Assert.Single(timeline.Steps[0].Groups).Labels["region"]);
+        Assert.Empty(timeline.Steps[1].Groups);
+        GroupSummary third = Assert.Single(timeline.Steps[2].Groups);
         Assert.Equal("south", third.Labels["region"]);
         Assert.Equal(south.Median(), third.Summary.Quantiles[0].Value, 1e-9); // MathNet.Numerics
 
