@@ -79,8 +79,8 @@ public static class ShiftCommand
     /// <summary>The side compared when --b is left out: the last hour.</summary>
     public const string DefaultB = "now-1h..now";
 
-    /// <summary>The wording of a shift whose two intervals overlap.</summary>
-    public const string Inconclusive = "inconclusive: intervals overlap";
+    /// <summary>The wording of a shift whose two intervals overlap, on two lines so a narrow terminal keeps it whole.</summary>
+    public const string Inconclusive = "inconclusive:\nintervals overlap";
 
     /// <summary>The server's fields as this command's options.</summary>
     public static FieldNames Fields { get; } = new(
@@ -110,8 +110,8 @@ public static class ShiftCommand
         table.AddColumn(new TableColumn(new Text("a")).RightAligned());
         table.AddColumn(new TableColumn(new Text("b")).RightAligned());
         table.AddColumn(new TableColumn(new Text("b − a [interval]")).RightAligned());
-        table.AddColumn(new TableColumn(new Text("b / a")).RightAligned());
-        table.AddColumn(new TableColumn(new Text("verdict")));
+        table.AddColumn(new TableColumn(new Text("b / a")).RightAligned().NoWrap());
+        table.AddColumn(new TableColumn(new Text("verdict")).NoWrap()); // two short lines, never cut mid-word on a narrow terminal
         Row(table, "count", reply.A.Count.ToString(System.Globalization.CultureInfo.InvariantCulture), reply.B.Count.ToString(System.Globalization.CultureInfo.InvariantCulture), "", "", "");
         Row(table, "mean", Figures.Of(Mean(reply.A)), Figures.Of(Mean(reply.B)), "", "", "");
         Row(table, "median", Figures.Of(reply.A.FiveNumber?.Median?.Value), Figures.Of(reply.B.FiveNumber?.Median?.Value), "", "", "");
@@ -136,8 +136,7 @@ public static class ShiftCommand
 
         console.Write(table);
         console.WriteLine($"Kolmogorov–Smirnov distance {Figures.Of(reply.KsDistance)} [{Figures.Of(reply.KsLow)}, {Figures.Of(reply.KsHigh)}] at {Figures.Percent(request.Confidence)} confidence");
-        console.WriteLine("\"moved\" means the quantile's two intervals (rank error plus sampling error) do not overlap. \"Inconclusive\" means they do:");
-        console.WriteLine("the move may be real or noise and the data cannot tell yet; b / a is the ratio of the two point estimates either way.");
+        console.WriteLine("\"moved\" means the quantile's two intervals (rank error plus sampling error) do not overlap; \"inconclusive\" means they do, so the move may be real or noise and the data cannot tell yet. b / a is the ratio of the two point estimates either way.");
     }
 
     private static double? Mean(Summary s) => s.HasMean ? s.Mean : null;
