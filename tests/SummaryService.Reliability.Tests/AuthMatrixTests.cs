@@ -177,7 +177,7 @@ public sealed class AuthMatrixTests(ITestOutputHelper output)
     // (listed with the admin of all, which also reads).
     private static async Task<string> FingerprintAsync(LoopbackServer server)
     {
-        var catalogue = await new Admin.AdminClient(server.Channel).ListSeriesAsync(new ListSeriesRequest(), Callers[^1].Headers());
+        var catalogue = await new Query.QueryClient(server.Channel).CatalogueAsync(new CatalogueRequest(), Callers[^1].Headers());
         int generations = Directory.EnumerateDirectories(Path.Combine(server.DataDirectory, "snapshots")).Count();
         return string.Join("; ", catalogue.Series.Select(s => $"{s.Metric}{s.Labels}={s.Count}")) + $" | {generations} generations";
     }

@@ -36,7 +36,7 @@ public sealed class DamagedDataTests(CrashedDataDirectory crashed) : IClassFixtu
         Assert.Equal(HealthCheckResponse.Types.ServingStatus.Serving, health.Status);
         Assert.Contains(reported, server.Log.Text, StringComparison.Ordinal);
 
-        var catalogue = await new Admin.AdminClient(server.Channel).ListSeriesAsync(new ListSeriesRequest { Metric = "damage.kept" });
+        var catalogue = await new Query.QueryClient(server.Channel).CatalogueAsync(new CatalogueRequest { Metric = "damage.kept" });
         long values = catalogue.Series.Sum(s => (long)s.Count);
         if (expectedValues is { } expected)
         {
@@ -131,7 +131,7 @@ public sealed class CrashedDataDirectory : IAsyncLifetime
 
             if (phase < 2)
             {
-                await new Admin.AdminClient(channel).TakeSnapshotAsync(new TakeSnapshotRequest());
+                await new Admin.AdminClient(channel).WriteSnapshotAsync(new WriteSnapshotRequest());
             }
         }
 

@@ -37,7 +37,7 @@ public sealed class DiskTroubleTests
         }
 
         await WaitForHealthAsync(server, HealthCheckResponse.Types.ServingStatus.NotServing);
-        var snapshot = await Assert.ThrowsAsync<RpcException>(() => new Admin.AdminClient(server.Channel).TakeSnapshotAsync(new TakeSnapshotRequest()).ResponseAsync);
+        var snapshot = await Assert.ThrowsAsync<RpcException>(() => new Admin.AdminClient(server.Channel).WriteSnapshotAsync(new WriteSnapshotRequest()).ResponseAsync);
         Assert.Equal(StatusCode.Unavailable, snapshot.StatusCode);
         using (var stream = ingest.PushStream())
         {
@@ -80,7 +80,7 @@ public sealed class DiskTroubleTests
         await ingest.PushAsync(Batch(1));
 
         disk.Fail(Full);
-        var failed = await Assert.ThrowsAsync<RpcException>(() => admin.TakeSnapshotAsync(new TakeSnapshotRequest()).ResponseAsync);
+        var failed = await Assert.ThrowsAsync<RpcException>(() => admin.WriteSnapshotAsync(new WriteSnapshotRequest()).ResponseAsync);
         Assert.Equal(StatusCode.Unavailable, failed.StatusCode);
         var refused = await Assert.ThrowsAsync<RpcException>(() => ingest.PushAsync(Batch(2)).ResponseAsync);
         Assert.Equal(StatusCode.Unavailable, refused.StatusCode);
@@ -89,7 +89,7 @@ public sealed class DiskTroubleTests
         Assert.Equal(Values(1), await CountAsync(server));
 
         disk.Heal();
-        await admin.TakeSnapshotAsync(new TakeSnapshotRequest());
+        await admin.WriteSnapshotAsync(new WriteSnapshotRequest());
         await WaitForHealthAsync(server, HealthCheckResponse.Types.ServingStatus.Serving);
         await ingest.PushAsync(Batch(2));
         Assert.Equal(Values(2), await CountAsync(server));

@@ -117,7 +117,7 @@ public sealed class RefusalTests
 
         Assert.Equal(2, lines.Count);
         Assert.Equal("1 call from 10.0.0.7 refused (InvalidArgument 1); latest: POST /summary.v1.Ingest/Push InvalidArgument: values[0] is NaN", lines[0]);
-        Assert.Equal("999 calls from 10.0.0.7 refused in the last 10 s (InvalidArgument 999); latest: POST /summary.v1.Ingest/Push InvalidArgument: values[999] is NaN", lines[1]);
+        Assert.Equal("999 calls from 10.0.0.7 refused in the last 10s (InvalidArgument 999); latest: POST /summary.v1.Ingest/Push InvalidArgument: values[999] is NaN", lines[1]);
     }
 
     [Fact]

@@ -53,7 +53,7 @@ public sealed class SlowConsumerTests(ITestOutputHelper output)
                 }
             });
             Assert.True(ended.StatusCode == StatusCode.ResourceExhausted, ended.Status.ToString());
-            Assert.Contains("took no update for 2 s", ended.Status.Detail, StringComparison.Ordinal);
+            Assert.Contains("took no update for 2s", ended.Status.Detail, StringComparison.Ordinal);
         }
 
         output.WriteLine($"updates delivered before the cut-off: {delivered.Min()} to {delivered.Max()} per watcher (the rest were never produced)");

@@ -1,6 +1,7 @@
 using System.Globalization;
 using System.Text;
 using Microsoft.Extensions.Options;
+using SummaryService.Contract.Readable;
 using SummaryService.Server.Configuration;
 using SummaryService.Server.Validation;
 
@@ -9,7 +10,7 @@ namespace SummaryService.Server.Diagnostics;
 /// <summary>
 /// Refused and failed calls, logged per client at most once per interval with counts: the first
 /// refusal from a client is logged at once, later ones are counted and summarized ("214 calls
-/// refused in the last 10 s: InvalidArgument 200, NotFound 14; latest: …"). A client sending
+/// refused in the last 10s: InvalidArgument 200, NotFound 14; latest: …"). A client sending
 /// garbage as fast as it can costs one line per interval, never a stack trace per message.
 /// </summary>
 /// <remarks>
@@ -132,7 +133,7 @@ public sealed class RefusalLog(TimeProvider time, IOptions<ServerSettings> setti
             line.Append(CultureInfo.InvariantCulture, $"{Pending} call{(Pending == 1 ? "" : "s")} from {client} refused");
             if (LastLogged is not null)
             {
-                line.Append(CultureInfo.InvariantCulture, $" in the last {time.GetElapsedTime(_since, now).TotalSeconds:F0} s");
+                line.Append(CultureInfo.InvariantCulture, $" in the last {DurationText.Format(TimeSpan.FromSeconds(Math.Round(time.GetElapsedTime(_since, now).TotalSeconds)))}");
             }
 
             line.Append(" (").AppendJoin(", ", _byCode.OrderByDescending(c => c.Value).Select(c => $"{c.Key} {c.Value}")).Append("); latest: ").Append(WireText.Message(_latest));

@@ -1,3 +1,4 @@
+using SummaryService.Contract.Readable;
 using SummaryService.Store;
 
 namespace SummaryService.Server.Hosting;
@@ -32,11 +33,11 @@ public abstract class PeriodicWork(TimeProvider time, ILogger logger) : Backgrou
                 catch (StorageUnavailableException ex)
                 {
                     // The disk's trouble, already logged when it began: no stack trace every interval.
-                    logger.LogWarning("{Work} failed: {Reason}; trying again in {Interval}.", WorkName, ex.Message, Interval);
+                    logger.LogWarning("{Work} failed: {Reason}; trying again in {Interval}.", WorkName, ex.Message, DurationText.Format(Interval));
                 }
                 catch (Exception ex) when (ex is not OperationCanceledException)
                 {
-                    logger.LogError(ex, "{Work} failed; trying again in {Interval}.", WorkName, Interval);
+                    logger.LogError(ex, "{Work} failed; trying again in {Interval}.", WorkName, DurationText.Format(Interval));
                 }
             }
         }

@@ -1,4 +1,5 @@
 using Grpc.Core;
+using SummaryService.Contract.Readable;
 
 namespace SummaryService.Server.Services;
 
@@ -26,7 +27,7 @@ public static class SlowReaders
         catch (TimeoutException)
         {
             _ = write.ContinueWith(static pending => pending.Exception, CancellationToken.None, TaskContinuationOptions.OnlyOnFaulted | TaskContinuationOptions.ExecuteSynchronously, TaskScheduler.Default);
-            throw new RpcException(new Status(StatusCode.ResourceExhausted, $"the reader of this stream took no update for {maxLag.TotalSeconds:0.#} s (Server:WatchMaxLag); updates are not held for a reader that does not read, so the stream ends here. Read as updates arrive, or ask for a longer interval."));
+            throw new RpcException(new Status(StatusCode.ResourceExhausted, $"the reader of this stream took no update for {DurationText.Format(maxLag)} (Server:WatchMaxLag); updates are not held for a reader that does not read, so the stream ends here. Read as updates arrive, or ask for a longer interval."));
         }
     }
 }

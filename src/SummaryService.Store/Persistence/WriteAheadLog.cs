@@ -1,4 +1,5 @@
 using Microsoft.Extensions.Logging;
+using SummaryService.Contract.Readable;
 using SummaryService.Store.Persistence.Formats;
 
 namespace SummaryService.Store.Persistence;
@@ -270,7 +271,7 @@ internal sealed class WriteAheadLog : IAsyncDisposable
 
         if (first)
         {
-            _logger.LogError("Write-ahead log write failed ({Reason}); batches are refused until it can write again, tried every {Retry} s.", ex.Message, RetryInterval.TotalSeconds);
+            _logger.LogError("Write-ahead log write failed ({Reason}); batches are refused until it can write again, tried every {Retry}.", ex.Message, DurationText.Format(RetryInterval));
         }
     }
 
