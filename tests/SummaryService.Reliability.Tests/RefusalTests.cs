@@ -77,6 +77,26 @@ public sealed class RefusalTests
         Assert.EndsWith("values are 1 to 200 printable characters.", refused.Status.Detail, StringComparison.Ordinal);
     }
 
+    [Fact]
+    public async Task A_timeline_over_most_of_64_bit_time_is_refused_for_its_step_count_not_failed()
+    {
+        // Found by the fuzzer: the window's length overflowed 64 bits and its text overflowed a duration.
+        await using var server = LoopbackServer.Start();
+        await new Ingest.IngestClient(server.Channel).PushAsync(new Batch { Metric = "shop.timeline", Values = { 1 } });
+        var request = new TimelineRequest
+        {
+            Selector = new Selector { Metric = "shop.timeline" },
+            Window = new Window { Range = new Contract.V1.TimeRange { FromUnixMs = long.MinValue + 1, ToUnixMs = DateTimeOffset.UtcNow.ToUnixTimeMilliseconds() } },
+            Step = Google.Protobuf.WellKnownTypes.Duration.FromTimeSpan(TimeSpan.FromMinutes(13)),
+        };
+
+        var refused = await Assert.ThrowsAsync<RpcException>(() => new Query.QueryClient(server.Channel).TimelineAsync(request).ResponseAsync);
+
+        Assert.Equal(StatusCode.InvalidArgument, refused.StatusCode);
+        Assert.Contains(" ms into ", refused.Status.Detail, StringComparison.Ordinal);
+        Assert.Equal("step", refused.Trailers.GetValue(RpcErrors.FieldTrailer));
+    }
+
     [Theory]
     [InlineData("""{"metric":"shop.json","values":[1,"x"]}""", """values[1]: "x" is not a number""")]
     [InlineData("""{"metric":"shop.json","values":[1],"timeUnixMs":1.5}""", "timeUnixMs: 1.5 is not a whole number")]

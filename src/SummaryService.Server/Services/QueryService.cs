@@ -59,10 +59,12 @@ public sealed partial class QueryService(StoreHost host, ServerMetrics metrics, 
             throw RpcErrors.Invalid("step", $"step is {DurationText.Format(request.Step.ToTimeSpan())}; it must be at least 1ms.");
         }
 
-        long steps = (window.Length + step - 1) / step;
+        // In 128 bits: a window from near the start of 64-bit time to now is longer than a long holds.
+        Int128 length = (Int128)window.ToUnixMs - window.FromUnixMs;
+        Int128 steps = (length + step - 1) / step;
         if (steps > settings.Value.MaxTimelineSteps)
         {
-            throw RpcErrors.Invalid("step", $"step {DurationText.Format(request.Step.ToTimeSpan())} cuts the window of {DurationText.Format(TimeSpan.FromMilliseconds(window.Length))} into {steps} steps; at most {settings.Value.MaxTimelineSteps} are allowed.");
+            throw RpcErrors.Invalid("step", $"step {DurationText.Format(request.Step.ToTimeSpan())} cuts the window of {QueryRequests.LengthText(length)} into {steps} steps; at most {settings.Value.MaxTimelineSteps} are allowed.");
         }
 
         var groupBy = GroupByOf(request.GroupBy);

@@ -49,6 +49,12 @@ public static class QueryRequests
         }
     }
 
+    /// <summary>A length in milliseconds in the shared duration syntax, or in plain milliseconds past what a duration holds.</summary>
+    public static string LengthText(Int128 milliseconds) =>
+        milliseconds >= 0 && milliseconds <= TimeSpan.MaxValue.Ticks / TimeSpan.TicksPerMillisecond
+            ? DurationText.Format(TimeSpan.FromMilliseconds((long)milliseconds))
+            : $"{milliseconds} ms";
+
     /// <summary>A duration that must be a valid protobuf duration.</summary>
     public static TimeSpan DurationOf(Google.Protobuf.WellKnownTypes.Duration duration, string field)
     {
