@@ -97,6 +97,24 @@ public sealed class RefusalTests
         Assert.Equal("step", refused.Trailers.GetValue(RpcErrors.FieldTrailer));
     }
 
+    [Fact]
+    public async Task A_duration_whose_seconds_and_nanos_differ_in_sign_is_invalid_argument_not_failed()
+    {
+        // Found by the fuzzer: such a duration passed the range check and then could not be converted.
+        await using var server = LoopbackServer.Start();
+        var request = new TimelineRequest
+        {
+            Selector = new Selector { Metric = "shop.timeline" },
+            Window = new Window { Last = Google.Protobuf.WellKnownTypes.Duration.FromTimeSpan(TimeSpan.FromHours(1)) },
+            Step = new Google.Protobuf.WellKnownTypes.Duration { Seconds = 846, Nanos = -5 },
+        };
+
+        var refused = await Assert.ThrowsAsync<RpcException>(() => new Query.QueryClient(server.Channel).TimelineAsync(request).ResponseAsync);
+
+        Assert.Equal(StatusCode.InvalidArgument, refused.StatusCode);
+        Assert.Equal("step (846 s, -5 ns) is not a valid duration: seconds and nanos must lie in range and share one sign.", refused.Status.Detail);
+    }
+
     [Theory]
     [InlineData("""{"metric":"shop.json","values":[1,"x"]}""", """values[1]: "x" is not a number""")]
     [InlineData("""{"metric":"shop.json","values":[1],"timeUnixMs":1.5}""", "timeUnixMs: 1.5 is not a whole number")]

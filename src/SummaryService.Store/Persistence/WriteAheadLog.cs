@@ -45,7 +45,8 @@ internal sealed class WriteAheadLog : IAsyncDisposable
     private string _segmentPath;
     private long _durableLength;
     private MemoryStream? _unwritten;
-    private string? _trouble;
+    // Read lock-free on every batch (the store asks before applying one); written under the gate.
+    private volatile string? _trouble;
     private bool _signaled;
     private bool _rotateRequested;
     private ulong _rotateAt;
@@ -66,16 +67,7 @@ internal sealed class WriteAheadLog : IAsyncDisposable
     }
 
     /// <summary>Why the log cannot write now, or null when it can.</summary>
-    public string? Trouble
-    {
-        get
-        {
-            lock (_gate)
-            {
-                return _trouble;
-            }
-        }
-    }
+    public string? Trouble => _trouble;
 
     /// <summary>Queues a record; the task completes once it is on disk, or fails if the write fails (the record is then written when the disk allows).</summary>
     public Task Append(LogRecord record)
