@@ -127,7 +127,7 @@ public class DamageTests
     }
 
     // Offsets just past each framed record: 8 header bytes, then the length the header states.
-    private static List<long> RecordEnds(byte[] bytes)
+    internal static List<long> RecordEnds(byte[] bytes)
     {
         var ends = new List<long>();
         long offset = 0;

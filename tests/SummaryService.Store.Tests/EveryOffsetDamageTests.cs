@@ -58,7 +58,7 @@ public sealed class EveryOffsetDamageTests(Xunit.Abstractions.ITestOutputHelper 
         foreach (var (file, perRecord) in shardValues)
         {
             byte[] bytes = File.ReadAllBytes(file);
-            var ends = RecordEnds(bytes);
+            var ends = DamageTests.RecordEnds(bytes);
             long others = shardValues.Where(s => s.Key != file).Sum(s => s.Value.Sum());
             for (int cut = 0; cut < bytes.Length; cut++)
             {
@@ -92,9 +92,9 @@ public sealed class EveryOffsetDamageTests(Xunit.Abstractions.ITestOutputHelper 
         var clock = new FakeTimeProvider(Start);
         long total = await WriteGenerationsAsync(original.Path, clock, kept: 2);
         long logValues = LogOnlyValues(original.Path);
-        string segment = Directory.EnumerateFiles(Path.Combine(original.Path, "wal"), "*.log").OrderBy(f => f, StringComparer.Ordinal).Last();
+        string segment = LastSegment(original.Path);
         byte[] bytes = File.ReadAllBytes(segment);
-        var ends = RecordEnds(bytes);
+        var ends = DamageTests.RecordEnds(bytes);
         var perRecord = RecordFraming.ReadAll(bytes, out _, out _).Select(r => (long)LogRecord.Parser.ParseFrom(r.Span).Values.Count).ToList();
 
         for (int cut = 0; cut < bytes.Length; cut++)
@@ -140,7 +140,7 @@ public sealed class EveryOffsetDamageTests(Xunit.Abstractions.ITestOutputHelper 
         using var scratch = new Scratch(original.Path);
         var clock = new FakeTimeProvider(Start);
         long total = await WriteGenerationsAsync(original.Path, clock, kept: 2);
-        string segment = Directory.EnumerateFiles(Path.Combine(original.Path, "wal"), "*.log").OrderBy(f => f, StringComparer.Ordinal).Last();
+        string segment = LastSegment(original.Path);
         var nonsense = new[]
         {
             new LogRecord { Lsn = 10_000, Metric = "svc.latency", Values = { 1, 2, 3 }, TimesUnixMs = { 1, 2 } }, // three values, two times
@@ -213,9 +213,11 @@ public sealed class EveryOffsetDamageTests(Xunit.Abstractions.ITestOutputHelper 
 
     private static long LogOnlyValues(string directory)
     {
-        string segment = Directory.EnumerateFiles(Path.Combine(directory, "wal"), "*.log").OrderBy(f => f, StringComparer.Ordinal).Last();
-        return RecordFraming.ReadAll(File.ReadAllBytes(segment), out _, out _).Sum(r => (long)LogRecord.Parser.ParseFrom(r.Span).Values.Count);
+        return RecordFraming.ReadAll(File.ReadAllBytes(LastSegment(directory)), out _, out _).Sum(r => (long)LogRecord.Parser.ParseFrom(r.Span).Values.Count);
     }
+
+    private static string LastSegment(string directory) =>
+        Directory.EnumerateFiles(Path.Combine(directory, "wal"), "*.log").OrderBy(f => f, StringComparer.Ordinal).Last();
 
     // The values each series record of a shard file holds, in file order.
     private static List<long> SeriesValues(string shardFile)
@@ -224,20 +226,6 @@ public sealed class EveryOffsetDamageTests(Xunit.Abstractions.ITestOutputHelper 
         return records.Skip(1).Take(records.Count - 2)
             .Select(r => SeriesRecord.Parser.ParseFrom(r.Span).Buckets.Sum(b => SketchCodec.FromState(b.Sketch).Count))
             .ToList();
-    }
-
-    // Offsets just past each framed record: 8 header bytes, then the length the header states.
-    private static List<long> RecordEnds(byte[] bytes)
-    {
-        var ends = new List<long>();
-        long offset = 0;
-        while (offset + 8 <= bytes.Length)
-        {
-            offset += 8 + BitConverter.ToUInt32(bytes, (int)offset);
-            ends.Add(offset);
-        }
-
-        return ends;
     }
 
     /// <summary>A copy of a data directory that can be put back to the original's files in place.</summary>
