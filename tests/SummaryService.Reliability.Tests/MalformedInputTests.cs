@@ -34,7 +34,7 @@ public sealed class MalformedInputTests(ITestOutputHelper output)
         var ledger = new AcceptedLedger();
         var watch = System.Diagnostics.Stopwatch.StartNew();
 
-        await new GrpcFuzzer(server.Channel, tally, ledger, now).RunAsync((int)(messages * (1 - JsonShare)), sendersPerRpc: 2, FuzzSettings.Seed, CancellationToken.None);
+        await new GrpcFuzzer(server.GrpcAddress, tally, ledger, now).RunAsync((int)(messages * (1 - JsonShare)), sendersPerRpc: 2, FuzzSettings.Seed, CancellationToken.None);
         using (HttpClient http = server.CreateHttpClient())
         {
             await new JsonFuzzer(http, tally, ledger, now).RunAsync(messages, sendersPerRoute: 2, FuzzSettings.Seed + 1000, CancellationToken.None);

@@ -11,7 +11,7 @@ namespace SummaryService.Reliability.Tests.Fuzzing;
 /// naming the message type for every message that does not decode, and a ledger of what the server
 /// acknowledged as accepted.
 /// </summary>
-internal sealed class GrpcFuzzer(GrpcChannel channel, FuzzTally tally, AcceptedLedger ledger, long nowMs)
+internal sealed class GrpcFuzzer(Uri server, FuzzTally tally, AcceptedLedger ledger, long nowMs)
 {
     /// <summary>What a malformed or refused call may end with; anything else (Unknown, Internal, Unavailable…) is a defect.</summary>
     private static readonly HashSet<StatusCode> Allowed =
@@ -31,35 +31,38 @@ internal sealed class GrpcFuzzer(GrpcChannel channel, FuzzTally tally, AcceptedL
         IReadOnlyList<ContractMethod> methods = ContractSurface.Methods;
         await Task.WhenAll(Enumerable.Range(0, methods.Count * sendersPerRpc).Select(sender => Task.Run(async () =>
         {
+            // Each sender is a client of its own, on its own connection: thousands of calls of one
+            // client's that end early are no reason for the server to slow another's.
+            using GrpcChannel channel = GrpcChannel.ForAddress(server, new GrpcChannelOptions { MaxReceiveMessageSize = 64 << 20 });
             ContractMethod method = methods[sender % methods.Count];
             var random = new Random(seed + sender);
             var forge = new MessageForge(random, nowMs, MessageForge.MetricsFor(method));
             var mutator = new ByteMutator(random);
             while (tally.Messages < messages && !cancellationToken.IsCancellationRequested)
             {
-                await SendAsync(method, random, forge, mutator).ConfigureAwait(false);
+                await SendAsync(channel, method, random, forge, mutator).ConfigureAwait(false);
             }
         }, cancellationToken))).ConfigureAwait(false);
     }
 
-    private async Task SendAsync(ContractMethod method, Random random, MessageForge forge, ByteMutator mutator)
+    private async Task SendAsync(GrpcChannel channel, ContractMethod method, Random random, MessageForge forge, ByteMutator mutator)
     {
         if (method.StreamsRequests)
         {
             int count = random.Next(1, 7);
             var payloads = Enumerable.Range(0, count).Select(_ => Payload(method, random, forge, mutator)).ToArray();
-            await StreamAsync(method, payloads).ConfigureAwait(false);
+            await StreamAsync(channel, method, payloads).ConfigureAwait(false);
             return;
         }
 
         byte[] payload = Payload(method, random, forge, mutator);
         if (method.StreamsReplies)
         {
-            await WatchAsync(method, payload).ConfigureAwait(false);
+            await WatchAsync(channel, method, payload).ConfigureAwait(false);
         }
         else
         {
-            await UnaryAsync(method, payload).ConfigureAwait(false);
+            await UnaryAsync(channel, method, payload).ConfigureAwait(false);
         }
     }
 
@@ -75,7 +78,7 @@ internal sealed class GrpcFuzzer(GrpcChannel channel, FuzzTally tally, AcceptedL
         };
     }
 
-    private async Task UnaryAsync(ContractMethod method, byte[] payload)
+    private async Task UnaryAsync(GrpcChannel channel, ContractMethod method, byte[] payload)
     {
         var rpc = new Method<byte[], byte[]>(MethodType.Unary, method.Descriptor.Service.FullName, method.Descriptor.Name, Raw, Raw);
         Status status;
@@ -104,7 +107,7 @@ internal sealed class GrpcFuzzer(GrpcChannel channel, FuzzTally tally, AcceptedL
     /// <c>max_updates</c> field gets "max_updates = 1" appended — in protobuf the last value of a field
     /// wins — and a decodable watch ends by itself after one update.
     /// </summary>
-    private async Task WatchAsync(ContractMethod method, byte[] payload)
+    private async Task WatchAsync(GrpcChannel channel, ContractMethod method, byte[] payload)
     {
         var rpc = new Method<byte[], byte[]>(MethodType.ServerStreaming, method.Descriptor.Service.FullName, method.Descriptor.Name, Raw, Raw);
         byte[] sent = method.Input.FindFieldByName("max_updates") is { } maxUpdates ? [.. payload, .. OneMoreField(maxUpdates.FieldNumber, 1)] : payload;
@@ -140,7 +143,7 @@ internal sealed class GrpcFuzzer(GrpcChannel channel, FuzzTally tally, AcceptedL
         return stream.ToArray();
     }
 
-    private async Task StreamAsync(ContractMethod method, byte[][] payloads)
+    private async Task StreamAsync(GrpcChannel channel, ContractMethod method, byte[][] payloads)
     {
         var rpc = new Method<byte[], byte[]>(MethodType.DuplexStreaming, method.Descriptor.Service.FullName, method.Descriptor.Name, Raw, Raw);
         var replies = new List<byte[]>();
