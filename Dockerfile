@@ -30,7 +30,7 @@ EXPOSE 5170 5171
 WORKDIR /var/lib/summaryservice
 USER 10001:10001
 # SIGTERM starts the graceful stop: open streams end, then the final snapshot. Give it time
-# (docker stop -t 40; Kubernetes terminationGracePeriodSeconds).
+# (docker stop -t 45; Kubernetes terminationGracePeriodSeconds; compose stop_grace_period).
 STOPSIGNAL SIGTERM
 # The server binary asks its own gRPC health service (see HealthProbe): no extra client in the image.
 HEALTHCHECK --interval=10s --timeout=5s --start-period=60s --retries=3 CMD ["/app/SummaryService.Server", "--probe"]

@@ -19,7 +19,7 @@ public sealed class ImageTests(ServerImage image)
 
         Assert.True(UserId(settings.User) > 0, $"user '{settings.User}' must be numeric and not root");
         Assert.Contains(settings.DataDirectory, settings.Volumes);
-        Assert.Equal(["5170/tcp", "5171/tcp"], settings.ExposedPorts.Order(StringComparer.Ordinal));
+        Assert.Equal([$"{ServerDefaults.GrpcPort}/tcp", $"{ServerDefaults.HttpPort}/tcp"], settings.ExposedPorts.Order(StringComparer.Ordinal));
         Assert.Equal(["CMD", "/app/SummaryService.Server", "--probe"], settings.HealthCheck);
     }
 
