@@ -1,5 +1,6 @@
 using System.Diagnostics;
 using Microsoft.Extensions.Logging;
+using SummaryService.Contract.Readable;
 using SummaryService.Sketches.Serialization;
 using SummaryService.Sketches.Summaries;
 using SummaryService.Store.Persistence;
@@ -168,7 +169,7 @@ public sealed class PersistentSeriesStore : ISeriesStore, IAsyncDisposable
             long bytes = Directory.EnumerateFiles(directory).Sum(f => new FileInfo(f).Length);
             watch.Stop();
             SnapshotObserved?.Invoke(watch.Elapsed);
-            _logger.LogInformation("Snapshot {Generation}: {Series} series, {Bytes} bytes in {Elapsed} ms.", generation, series, bytes, watch.ElapsedMilliseconds);
+            _logger.LogInformation("Snapshot {Generation}: {Series} series, {Bytes} bytes in {Elapsed}.", generation, series, bytes, DurationText.Format(TimeSpan.FromMilliseconds(watch.ElapsedMilliseconds)));
             return new SnapshotInfo(generation, series, bytes, watch.Elapsed);
         }
         finally

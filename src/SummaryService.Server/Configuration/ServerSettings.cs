@@ -9,6 +9,6 @@ public sealed class ServerSettings
     /// <summary>Largest request or reply message in bytes; larger ones fail with ResourceExhausted before any work is done.</summary>
     public int MaxMessageBytes { get; set; } = 16 << 20;
 
-    /// <summary>Most steps one Series call may ask for.</summary>
-    public int MaxSeriesSteps { get; set; } = 10_000;
+    /// <summary>Most steps one Timeline call may ask for.</summary>
+    public int MaxTimelineSteps { get; set; } = 10_000;
 }

@@ -1,3 +1,5 @@
+using SummaryService.Contract.Readable;
+
 namespace SummaryService.Server.Hosting;
 
 /// <summary>
@@ -29,7 +31,7 @@ public abstract class PeriodicWork(TimeProvider time, ILogger logger) : Backgrou
                 }
                 catch (Exception ex) when (ex is not OperationCanceledException)
                 {
-                    logger.LogError(ex, "{Work} failed; trying again in {Interval}.", WorkName, Interval);
+                    logger.LogError(ex, "{Work} failed; trying again in {Interval}.", WorkName, DurationText.Format(Interval));
                 }
             }
         }

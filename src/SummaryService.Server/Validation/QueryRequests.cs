@@ -1,3 +1,4 @@
+using SummaryService.Contract.Readable;
 using SummaryService.Contract.V1;
 using SummaryService.Sketches.Summaries;
 using StoreSelector = SummaryService.Store.Selector;
@@ -19,7 +20,7 @@ public static class QueryRequests
             throw RpcErrors.Invalid($"{field}.metric", $"{field}.metric is empty; name the metric to read.");
         }
 
-        return new StoreSelector(selector.Metric, new Dictionary<string, string>(selector.MatchLabels, StringComparer.Ordinal));
+        return new StoreSelector(selector.Metric, new Dictionary<string, string>(selector.LabelEquals, StringComparer.Ordinal));
     }
 
     /// <summary>The window as a half-open range, measuring <c>last</c> back from <paramref name="nowMs"/>.</summary>
@@ -31,7 +32,7 @@ public static class QueryRequests
                 var range = window.Range;
                 if (range.FromUnixMs >= range.ToUnixMs)
                 {
-                    throw RpcErrors.Invalid($"{field}.range", $"{field}.range from_unix_ms {range.FromUnixMs} is not before to_unix_ms {range.ToUnixMs}; windows are half-open [from, to).");
+                    throw RpcErrors.Invalid($"{field}.range", $"{field}.range from_unix_ms {TimeText.IsoAndUnixMs(range.FromUnixMs)} is not before to_unix_ms {TimeText.IsoAndUnixMs(range.ToUnixMs)}; windows are half-open [from, to).");
                 }
 
                 return new StoreTimeRange(range.FromUnixMs, range.ToUnixMs);
@@ -39,7 +40,7 @@ public static class QueryRequests
                 TimeSpan last = DurationOf(window.Last, $"{field}.last");
                 if (last <= TimeSpan.Zero)
                 {
-                    throw RpcErrors.Invalid($"{field}.last", $"{field}.last is {last}; it must be positive.");
+                    throw RpcErrors.Invalid($"{field}.last", $"{field}.last is {DurationText.Format(last)}; it must be positive.");
                 }
 
                 return new StoreTimeRange(nowMs - (long)last.TotalMilliseconds, nowMs);
