@@ -26,8 +26,15 @@ public sealed record StoreOptions
     /// <summary>Most series the store holds.</summary>
     public int MaxSeries { get; init; } = 100_000;
 
-    /// <summary>Most series one tenant holds; the tenant is the metric name up to its first '.'.</summary>
+    /// <summary>Most series one tenant holds; see <see cref="TenantPrefixes"/> for what a tenant is.</summary>
     public int MaxSeriesPerTenant { get; init; } = 20_000;
+
+    /// <summary>
+    /// Metric-name prefixes that each make a tenant (the server passes its API keys' prefixes): a
+    /// metric belongs to the longest one it starts with. A metric under none belongs to the tenant
+    /// named by its part before the first '.'.
+    /// </summary>
+    public IReadOnlyList<string> TenantPrefixes { get; init; } = [];
 
     /// <summary>Most labels on one series.</summary>
     public int MaxLabels { get; init; } = 16;

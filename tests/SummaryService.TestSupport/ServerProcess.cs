@@ -121,6 +121,13 @@ public sealed class ServerProcess : IAsyncDisposable
         }
     }
 
+    /// <summary>SIGKILL: no final snapshot, no flush; what the disk holds is what a crash leaves.</summary>
+    public void Kill()
+    {
+        _process.Kill(entireProcessTree: true);
+        _process.WaitForExit();
+    }
+
     /// <summary>SIGTERM, then waits for the graceful shutdown (final snapshot) to finish.</summary>
     public Task StopAsync() => ChildProcessControl.StopAsync(_process, TimeSpan.FromSeconds(20));
 

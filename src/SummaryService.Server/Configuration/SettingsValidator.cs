@@ -86,6 +86,21 @@ internal sealed class SettingsValidator :
             return Fail($"Server:MaxMessageBytes is {options.MaxMessageBytes}; it must be at least 1024.");
         }
 
+        if (options.MaxIngestBytesHeld < options.MaxMessageBytes)
+        {
+            return Fail($"Server:MaxIngestBytesHeld is {options.MaxIngestBytesHeld}; it must be at least Server:MaxMessageBytes ({options.MaxMessageBytes}).");
+        }
+
+        if (options.WatchMaxLag < TimeSpan.FromSeconds(1))
+        {
+            return Fail($"Server:WatchMaxLag is {options.WatchMaxLag}; it must be at least 1s.");
+        }
+
+        if (options.RefusalLogInterval < TimeSpan.FromSeconds(1))
+        {
+            return Fail($"Server:RefusalLogInterval is {options.RefusalLogInterval}; it must be at least 1s.");
+        }
+
         return options.MaxTimelineSteps < 1
             ? Fail($"Server:MaxTimelineSteps is {options.MaxTimelineSteps}; it must be at least 1.")
             : ValidateOptionsResult.Success;

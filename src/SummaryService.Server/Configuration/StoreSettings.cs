@@ -18,7 +18,7 @@ public sealed class StoreSettings
     /// <summary>Most series the store holds.</summary>
     public int MaxSeries { get; set; } = 100_000;
 
-    /// <summary>Most series one tenant (metric name up to its first '.') holds.</summary>
+    /// <summary>Most series one tenant holds: with API keys, each key's metric prefix is a tenant; otherwise (and for metrics under no prefix) the metric name up to its first '.'.</summary>
     public int MaxSeriesPerTenant { get; set; } = 20_000;
 
     /// <summary>Most labels on one series.</summary>

@@ -1,4 +1,5 @@
 using SummaryService.Contract.Readable;
+using SummaryService.Store;
 
 namespace SummaryService.Server.Hosting;
 
@@ -28,6 +29,11 @@ public abstract class PeriodicWork(TimeProvider time, ILogger logger) : Backgrou
                 try
                 {
                     await RunOnceAsync(stoppingToken).ConfigureAwait(false);
+                }
+                catch (StorageUnavailableException ex)
+                {
+                    // The disk's trouble, already logged when it began: no stack trace every interval.
+                    logger.LogWarning("{Work} failed: {Reason}; trying again in {Interval}.", WorkName, ex.Message, DurationText.Format(Interval));
                 }
                 catch (Exception ex) when (ex is not OperationCanceledException)
                 {

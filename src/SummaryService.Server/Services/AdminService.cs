@@ -12,6 +12,7 @@ namespace SummaryService.Server.Services;
 /// Admin RPCs: upkeep of the store, all needing the admin scope. A key limited to metric prefixes
 /// removes only its own series, and cannot run store-wide operations.
 /// </summary>
+[BindServiceMethod(typeof(DecodeCheckedBinding<Admin.AdminBase>), nameof(DecodeCheckedBinding<Admin.AdminBase>.BindService))]
 public sealed class AdminService(StoreHost host) : Admin.AdminBase
 {
     /// <inheritdoc/>

@@ -16,6 +16,7 @@ using StoreTimeRange = SummaryService.Store.TimeRange;
 namespace SummaryService.Server.Services;
 
 /// <summary>Query RPCs: every request is validated field by field before the store is read; reads never change stored data.</summary>
+[BindServiceMethod(typeof(DecodeCheckedBinding<Query.QueryBase>), nameof(DecodeCheckedBinding<Query.QueryBase>.BindService))]
 public sealed partial class QueryService(StoreHost host, ServerMetrics metrics, TimeProvider time, IOptions<ServerSettings> settings, IHostApplicationLifetime lifetime) : Query.QueryBase
 {
     private static readonly double[] DefaultCompareQuantiles = [0.5, 0.9, 0.99];
@@ -58,10 +59,12 @@ public sealed partial class QueryService(StoreHost host, ServerMetrics metrics, 
             throw RpcErrors.Invalid("step", $"step is {DurationText.Format(request.Step.ToTimeSpan())}; it must be at least 1ms.");
         }
 
-        long steps = (window.Length + step - 1) / step;
+        // In 128 bits: a window from near the start of 64-bit time to now is longer than a long holds.
+        Int128 length = (Int128)window.ToUnixMs - window.FromUnixMs;
+        Int128 steps = (length + step - 1) / step;
         if (steps > settings.Value.MaxTimelineSteps)
         {
-            throw RpcErrors.Invalid("step", $"step {DurationText.Format(request.Step.ToTimeSpan())} cuts the window of {DurationText.Format(TimeSpan.FromMilliseconds(window.Length))} into {steps} steps; at most {settings.Value.MaxTimelineSteps} are allowed.");
+            throw RpcErrors.Invalid("step", $"step {DurationText.Format(request.Step.ToTimeSpan())} cuts the window of {QueryRequests.LengthText(length)} into {steps} steps; at most {settings.Value.MaxTimelineSteps} are allowed.");
         }
 
         var groupBy = GroupByOf(request.GroupBy);
@@ -91,7 +94,8 @@ public sealed partial class QueryService(StoreHost host, ServerMetrics metrics, 
 
     /// <summary>
     /// Pushes the trailing-window summary at once and then every interval, until the caller cancels,
-    /// <c>max_updates</c> is reached, or the host stops (the stream then ends cleanly).
+    /// <c>max_updates</c> is reached, or the host stops (the stream then ends cleanly). A caller that
+    /// takes no update for <c>Server:WatchMaxLag</c> is cut off with ResourceExhausted.
     /// </summary>
     public override async Task Watch(WatchRequest request, IServerStreamWriter<SummarizeReply> responseStream, ServerCallContext context)
     {
@@ -128,7 +132,7 @@ public sealed partial class QueryService(StoreHost host, ServerMetrics metrics, 
                 StoreTimeRange window = QueryRequests.WindowOf(query.Window, "query.window", NowMs());
                 SummarizeReply reply = SummaryMapping.ToProto(host.Store.Summarize(selector, window, groupBy, options));
                 metrics.QueryAnswered(nameof(Watch), ServerMetrics.Since(time, started));
-                await responseStream.WriteAsync(reply, stop.Token).ConfigureAwait(false);
+                await SlowReaders.WriteOrCutOffAsync(responseStream, reply, settings.Value.WatchMaxLag, time, stop.Token).ConfigureAwait(false);
                 sent++;
             }
             while ((request.MaxUpdates == 0 || sent < request.MaxUpdates) && await timer.WaitForNextTickAsync(stop.Token).ConfigureAwait(false));

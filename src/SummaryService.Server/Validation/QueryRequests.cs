@@ -49,13 +49,20 @@ public static class QueryRequests
         }
     }
 
+    /// <summary>A length in milliseconds in the shared duration syntax, or in plain milliseconds past what a duration holds.</summary>
+    public static string LengthText(Int128 milliseconds) =>
+        milliseconds >= 0 && milliseconds <= TimeSpan.MaxValue.Ticks / TimeSpan.TicksPerMillisecond
+            ? DurationText.Format(TimeSpan.FromMilliseconds((long)milliseconds))
+            : $"{milliseconds} ms";
+
     /// <summary>A duration that must be a valid protobuf duration.</summary>
     public static TimeSpan DurationOf(Google.Protobuf.WellKnownTypes.Duration duration, string field)
     {
         ArgumentNullException.ThrowIfNull(duration);
-        if (duration.Seconds is < -315_576_000_000 or > 315_576_000_000 || duration.Nanos is <= -1_000_000_000 or >= 1_000_000_000)
+        // The protobuf rules: both parts in range and of one sign (ToTimeSpan throws otherwise).
+        if (duration.Seconds is < -315_576_000_000 or > 315_576_000_000 || duration.Nanos is <= -1_000_000_000 or >= 1_000_000_000 || Math.Sign(duration.Seconds) * Math.Sign(duration.Nanos) == -1)
         {
-            throw RpcErrors.Invalid(field, $"{field} ({duration.Seconds} s, {duration.Nanos} ns) is not a valid duration.");
+            throw RpcErrors.Invalid(field, $"{field} ({duration.Seconds} s, {duration.Nanos} ns) is not a valid duration: seconds and nanos must lie in range and share one sign.");
         }
 
         return duration.ToTimeSpan();
