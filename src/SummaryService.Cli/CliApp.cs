@@ -45,8 +45,8 @@ public static class CliApp
         root.Add(FollowCommand.Create(runner));
         root.Add(ShiftCommand.Create(runner));
         root.Add(SendCommand.Create(runner));
-        root.Add(CatalogCommand.Create(runner));
-        root.Add(StoreCommand.Create(runner));
+        root.Add(CatalogueCommand.Create(runner));
+        root.Add(HoldingsCommand.Create(runner));
         root.Add(SnapshotCommand.Create(runner));
         root.Add(DemoCommand.Create(runner, common));
         return root;

@@ -53,8 +53,8 @@ public sealed record SummarizeOptions
     }
 }
 
-/// <summary>What each step of a <see cref="SummaryClient.SeriesAsync"/> answer contains; null members take the server's defaults.</summary>
-public sealed record SeriesOptions
+/// <summary>What each step of a <see cref="SummaryClient.TimelineAsync"/> answer contains; null members take the server's defaults.</summary>
+public sealed record TimelineOptions
 {
     /// <summary>Probabilities in [0, 1]; null for the Summarize defaults.</summary>
     public IReadOnlyList<double>? Quantiles { get; init; }

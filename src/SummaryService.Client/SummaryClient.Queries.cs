@@ -17,10 +17,10 @@ public sealed partial class SummaryClient
         await Query.SummarizeAsync((options ?? new SummarizeOptions()).ToRequest(selector, window), cancellationToken: cancellationToken).ConfigureAwait(false);
 
     /// <summary>One summary per <paramref name="step"/> across <paramref name="window"/>, oldest first, for plots.</summary>
-    public async Task<SeriesReply> SeriesAsync(Selector selector, SummaryWindow window, TimeSpan step, SeriesOptions? options = null, CancellationToken cancellationToken = default)
+    public async Task<TimelineReply> TimelineAsync(Selector selector, SummaryWindow window, TimeSpan step, TimelineOptions? options = null, CancellationToken cancellationToken = default)
     {
         ArgumentNullException.ThrowIfNull(selector);
-        var request = new SeriesRequest { Selector = selector, Window = window.ToContract(), Step = Duration.FromTimeSpan(step), Confidence = options?.Confidence ?? 0 };
+        var request = new TimelineRequest { Selector = selector, Window = window.ToContract(), Step = Duration.FromTimeSpan(step), Confidence = options?.Confidence ?? 0 };
         if (options?.Quantiles is { } quantiles)
         {
             request.Quantiles.AddRange(quantiles);
@@ -31,7 +31,17 @@ public sealed partial class SummaryClient
             request.GroupBy.AddRange(groupBy);
         }
 
-        return await Query.SeriesAsync(request, cancellationToken: cancellationToken).ConfigureAwait(false);
+        return await Query.TimelineAsync(request, cancellationToken: cancellationToken).ConfigureAwait(false);
+    }
+
+    /// <summary>
+    /// The series of <paramref name="metric"/> (null: of every metric the key may read) with their counts,
+    /// buckets and the span they cover; needs only the read scope.
+    /// </summary>
+    public async Task<IReadOnlyList<CatalogueEntry>> CatalogueAsync(string? metric = null, CancellationToken cancellationToken = default)
+    {
+        CatalogueReply reply = await Query.CatalogueAsync(new CatalogueRequest { Metric = metric ?? "" }, cancellationToken: cancellationToken).ConfigureAwait(false);
+        return reply.Series;
     }
 
     /// <summary>

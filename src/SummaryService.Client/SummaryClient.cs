@@ -7,7 +7,7 @@ namespace SummaryService.Client;
 
 /// <summary>
 /// Typed access to a SummaryService server over one <see cref="GrpcChannel"/>: window summaries,
-/// per-step series, watches, comparisons and the admin calls, each a thin wrapper that builds the
+/// per-step timelines, watches, comparisons, the catalogue and the upkeep calls, each a thin wrapper that builds the
 /// contract request and returns the contract reply, so every figure and bound the server sends is
 /// available as documented in <c>protos/summary/v1</c>.
 /// </summary>

@@ -1,3 +1,4 @@
+using SummaryService.Contract.Readable;
 using SummaryService.Sketches;
 
 namespace SummaryService.Store;
@@ -60,13 +61,13 @@ internal sealed class BatchValidator(StoreOptions options)
         if (t < oldest)
         {
             string field = TimeField(perValueTimes, index);
-            throw new StoreRejectedException(RejectReason.TooOld, field, $"{field} is {t}, older than the retention limit {oldest} ({TimeSpan.FromMilliseconds(options.TotalRetentionMs)} before now).");
+            throw new StoreRejectedException(RejectReason.TooOld, field, $"{field} is {TimeText.IsoAndUnixMs(t)}, older than the retention limit {TimeText.IsoAndUnixMs(oldest)} ({DurationText.Format(TimeSpan.FromMilliseconds(options.TotalRetentionMs))} before now).");
         }
 
         if (t > newest)
         {
             string field = TimeField(perValueTimes, index);
-            throw new StoreRejectedException(RejectReason.TooFarInFuture, field, $"{field} is {t}, more than {options.MaxFuture} ahead of the store's clock ({nowMs}).");
+            throw new StoreRejectedException(RejectReason.TooFarInFuture, field, $"{field} is {TimeText.IsoAndUnixMs(t)}, more than {DurationText.Format(options.MaxFuture)} ahead of the store's clock ({TimeText.IsoAndUnixMs(nowMs)}).");
         }
 
         return t;

@@ -1,7 +1,9 @@
+using SummaryService.Contract.Readable;
+
 namespace SummaryService.Store;
 
 /// <summary>Which series a query reads: one metric, and labels every selected series must carry with these exact values.</summary>
-public sealed record Selector(string Metric, IReadOnlyDictionary<string, string> MatchLabels)
+public sealed record Selector(string Metric, IReadOnlyDictionary<string, string> LabelEquals)
 {
     /// <summary>Every series of a metric.</summary>
     public Selector(string metric)
@@ -10,5 +12,8 @@ public sealed record Selector(string Metric, IReadOnlyDictionary<string, string>
     }
 
     /// <summary>True when the series belongs to the selection.</summary>
-    public bool Selects(SeriesKey key) => string.Equals(key.Metric, Metric, StringComparison.Ordinal) && key.Matches(MatchLabels);
+    public bool Selects(SeriesKey key) => string.Equals(key.Metric, Metric, StringComparison.Ordinal) && key.Matches(LabelEquals);
+
+    /// <summary>The selection as people read it (<c>metric · region=north</c>), for messages.</summary>
+    public override string ToString() => SeriesName.Of(Metric, LabelEquals);
 }

@@ -1,11 +1,13 @@
 using System.IO.Hashing;
 using System.Text;
+using SummaryService.Contract.Readable;
 
 namespace SummaryService.Store;
 
 /// <summary>
 /// Identity of a series: metric name plus labels sorted by name (ordinal), so that the same labels
-/// in any order name the same series.
+/// in any order name the same series. <see cref="Canonical"/> is what is hashed and ordered by;
+/// <see cref="ToString"/> is the display form people read in messages and logs.
 /// </summary>
 public sealed class SeriesKey : IEquatable<SeriesKey>
 {
@@ -70,8 +72,8 @@ public sealed class SeriesKey : IEquatable<SeriesKey>
     /// <inheritdoc/>
     public override int GetHashCode() => (int)Hash;
 
-    /// <inheritdoc/>
-    public override string ToString() => Canonical;
+    /// <summary>The display form (<c>metric · name=value · …</c>, see <see cref="SeriesName"/>); never hashed or parsed.</summary>
+    public override string ToString() => SeriesName.Of(Metric, _labels);
 
     private static string BuildCanonical(string metric, KeyValuePair<string, string>[] labels)
     {

@@ -13,7 +13,34 @@ public sealed partial class ShardedSeriesStore
     /// <summary>Called under the shard lock for every applied batch; the returned task completes when the record is durable.</summary>
     internal Func<LogRecord, Task>? Journal { get; set; }
 
+    /// <summary>Why writes are refused now (the data directory cannot be written), or null; asked before a batch changes anything.</summary>
+    internal Func<string?>? WriteRefusal { get; set; }
+
+    /// <summary>Completes once everything logged so far is durable: a repeated batch is acknowledged only when its first copy is.</summary>
+    internal Func<Task>? DurableBarrier { get; set; }
+
     internal int ShardCount => _shards.Length;
+
+    private void RefuseWhileStorageFails()
+    {
+        if (WriteRefusal?.Invoke() is { } reason)
+        {
+            throw new StorageUnavailableException($"batches are refused while the data directory cannot be written ({reason}); send again later.");
+        }
+    }
+
+    // A failed log write leaves the batch applied in memory and queued for the log, but unacknowledged.
+    private static async ValueTask AwaitDurableAsync(Task durable, CancellationToken cancellationToken)
+    {
+        try
+        {
+            await durable.WaitAsync(cancellationToken).ConfigureAwait(false);
+        }
+        catch (IOException ex)
+        {
+            throw new StorageUnavailableException($"not acknowledged: the write-ahead log cannot write ({ex.InnerException?.Message ?? ex.Message}). The batch is written when the disk allows; send it again later with the same producer and sequence and it is counted once (without them it may be counted twice).", ex);
+        }
+    }
 
     internal ulong LastLsn => (ulong)Interlocked.Read(ref _lastLsn);
 

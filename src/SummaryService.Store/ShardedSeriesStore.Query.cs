@@ -1,3 +1,4 @@
+using SummaryService.Contract.Readable;
 using SummaryService.Sketches;
 using SummaryService.Sketches.Summaries;
 
@@ -28,13 +29,13 @@ public sealed partial class ShardedSeriesStore
         CheckQuery(window, options);
         if (stepMs < 1)
         {
-            throw new StoreRejectedException(RejectReason.InvalidQuery, "step", $"step is {stepMs} ms; it must be at least 1 ms.");
+            throw new StoreRejectedException(RejectReason.InvalidQuery, "step", $"step is {DurationText.Format(TimeSpan.FromMilliseconds(stepMs))}; it must be at least 1ms.");
         }
 
         long count = ((window.Length - 1) / stepMs) + 1;
         if (count > MaxSteps)
         {
-            throw new StoreRejectedException(RejectReason.InvalidQuery, "step", $"step {stepMs} ms cuts the window into {count} steps; at most {MaxSteps} are answered per call.");
+            throw new StoreRejectedException(RejectReason.InvalidQuery, "step", $"step {DurationText.Format(TimeSpan.FromMilliseconds(stepMs))} cuts the window into {count} steps; at most {MaxSteps} are answered per call.");
         }
 
         var steps = new TimeRange[count];
@@ -58,7 +59,7 @@ public sealed partial class ShardedSeriesStore
     {
         if (window.FromUnixMs >= window.ToUnixMs)
         {
-            throw new StoreRejectedException(RejectReason.InvalidWindow, "window", $"window from {window.FromUnixMs} is not before to {window.ToUnixMs}; windows are half-open [from, to).");
+            throw new StoreRejectedException(RejectReason.InvalidWindow, "window", $"window from {TimeText.IsoAndUnixMs(window.FromUnixMs)} is not before to {TimeText.IsoAndUnixMs(window.ToUnixMs)}; windows are half-open [from, to).");
         }
 
         try

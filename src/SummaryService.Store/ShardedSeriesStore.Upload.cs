@@ -21,38 +21,39 @@ public sealed partial class ShardedSeriesStore
 
         // The name, label and time rules are the batch rules: one stand-in value carries the timestamp.
         TimeRun[] times = _validator.Validate(new SeriesBatch { Metric = upload.Metric, Labels = upload.Labels, Values = new double[] { 0 }, TimeUnixMs = upload.TimeUnixMs }, now);
+        RefuseWhileStorageFails();
         var key = new SeriesKey(upload.Metric, upload.Labels);
         SeriesSketch sketch = upload.Sketch.Clone();
         SeriesShard shard = ShardOf(key);
-        Task? durable = null;
+        Task? durable;
+        bool duplicate;
         lock (shard.Gate)
         {
             var timeline = Admit(shard, key, t => t.NewBucketsFor(times, now) > 0 ? sketch.EstimatedBytes : 0, "sketch", upload.Producer, upload.Sequence);
-            if (timeline is null)
-            {
-                return new AppendResult(0, Duplicate: true);
-            }
-
-            ulong lsn = (ulong)Interlocked.Increment(ref _lastLsn);
-            if (Journal is { } journal)
-            {
-                durable = journal(UploadRecordOf(lsn, upload, times[0].TimeUnixMs, sketch));
-            }
-
-            lock (timeline)
-            {
-                shard.EstimatedBytes += timeline.Place(-1, times[0].TimeUnixMs, sketch, now);
-            }
-
-            shard.AppliedLsn = lsn;
+            duplicate = timeline is null;
+            durable = duplicate ? DurableBarrier?.Invoke() : ApplyUpload(shard, timeline!, upload, times[0].TimeUnixMs, sketch, now);
         }
 
         if (durable is not null)
         {
-            await durable.WaitAsync(cancellationToken).ConfigureAwait(false);
+            await AwaitDurableAsync(durable, cancellationToken).ConfigureAwait(false);
         }
 
-        return new AppendResult(upload.Sketch.Count, Duplicate: false);
+        return duplicate ? new AppendResult(0, Duplicate: true) : new AppendResult(upload.Sketch.Count, Duplicate: false);
+    }
+
+    // Under the shard lock, like a batch: the next LSN, the log record, the sketch into its bucket.
+    private Task? ApplyUpload(SeriesShard shard, SeriesTimeline timeline, SketchUpload upload, long timeUnixMs, SeriesSketch sketch, long now)
+    {
+        ulong lsn = (ulong)Interlocked.Increment(ref _lastLsn);
+        Task? durable = Journal?.Invoke(UploadRecordOf(lsn, upload, timeUnixMs, sketch));
+        lock (timeline)
+        {
+            shard.EstimatedBytes += timeline.Place(-1, timeUnixMs, sketch, now);
+        }
+
+        shard.AppliedLsn = lsn;
+        return durable;
     }
 
     /// <summary>Replays a logged upload; past retention it is dropped and its values counted as such.</summary>

@@ -55,38 +55,38 @@ public sealed partial class ShardedSeriesStore : ISeriesStore
         ArgumentNullException.ThrowIfNull(batch);
         long now = NowMs();
         TimeRun[] times = _validator.Validate(batch, now);
+        RefuseWhileStorageFails();
         var key = new SeriesKey(batch.Metric, batch.Labels);
         SeriesShard shard = ShardOf(key);
-        Task? durable = null;
+        Task? durable;
+        bool duplicate;
         lock (shard.Gate)
         {
             var timeline = Admit(shard, key, t => t.NewBucketsFor(times, now) * EmptyBucketBytes, "values", batch.Producer, batch.Sequence);
-            if (timeline is null)
-            {
-                return new AppendResult(0, Duplicate: true);
-            }
-
-            lock (timeline)
-            {
-                shard.EstimatedBytes += timeline.Add(batch.Values.Span, times, now);
-            }
-
-            ulong lsn = (ulong)Interlocked.Increment(ref _lastLsn);
-            shard.AppliedLsn = lsn;
-
-            // Written under the shard lock so that, within a shard, log order is apply order.
-            if (Journal is { } journal)
-            {
-                durable = journal(LogRecordOf(lsn, batch, times));
-            }
+            duplicate = timeline is null;
+            durable = duplicate ? DurableBarrier?.Invoke() : Apply(shard, timeline!, batch, times, now);
         }
 
         if (durable is not null)
         {
-            await durable.WaitAsync(cancellationToken).ConfigureAwait(false);
+            await AwaitDurableAsync(durable, cancellationToken).ConfigureAwait(false);
         }
 
-        return new AppendResult(batch.Values.Length, Duplicate: false);
+        return duplicate ? new AppendResult(0, Duplicate: true) : new AppendResult(batch.Values.Length, Duplicate: false);
+    }
+
+    // Under the shard lock: the values into their buckets, the next LSN, and the log record (so that,
+    // within a shard, log order is apply order). Returns the record's durability, if there is a log.
+    private Task? Apply(SeriesShard shard, SeriesTimeline timeline, SeriesBatch batch, TimeRun[] times, long now)
+    {
+        lock (timeline)
+        {
+            shard.EstimatedBytes += timeline.Add(batch.Values.Span, times, now);
+        }
+
+        ulong lsn = (ulong)Interlocked.Increment(ref _lastLsn);
+        shard.AppliedLsn = lsn;
+        return Journal?.Invoke(LogRecordOf(lsn, batch, times));
     }
 
     /// <summary>
@@ -266,8 +266,22 @@ public sealed partial class ShardedSeriesStore : ISeriesStore
         return total;
     }
 
-    private static string TenantOf(SeriesKey key)
+    private string TenantOf(SeriesKey key)
     {
+        string? prefix = null;
+        foreach (string candidate in _options.TenantPrefixes)
+        {
+            if (key.Metric.StartsWith(candidate, StringComparison.Ordinal) && candidate.Length > (prefix?.Length ?? -1))
+            {
+                prefix = candidate;
+            }
+        }
+
+        if (prefix is not null)
+        {
+            return prefix;
+        }
+
         int dot = key.Metric.IndexOf('.', StringComparison.Ordinal);
         return dot < 0 ? key.Metric : key.Metric[..dot];
     }

@@ -1,3 +1,4 @@
+using SummaryService.Contract.Readable;
 using SummaryService.Sketches;
 
 namespace SummaryService.Store;
@@ -31,8 +32,15 @@ public sealed record StoreOptions
     /// <summary>Most series the store holds.</summary>
     public int MaxSeries { get; init; } = 100_000;
 
-    /// <summary>Most series one tenant holds; the tenant is the metric name up to its first '.'.</summary>
+    /// <summary>Most series one tenant holds; see <see cref="TenantPrefixes"/> for what a tenant is.</summary>
     public int MaxSeriesPerTenant { get; init; } = 20_000;
+
+    /// <summary>
+    /// Metric-name prefixes that each make a tenant (the server passes its API keys' prefixes): a
+    /// metric belongs to the longest one it starts with. A metric under none belongs to the tenant
+    /// named by its part before the first '.'.
+    /// </summary>
+    public IReadOnlyList<string> TenantPrefixes { get; init; } = [];
 
     /// <summary>Most labels on one series.</summary>
     public int MaxLabels { get; init; } = 16;
@@ -80,23 +88,23 @@ public sealed record StoreOptions
             var tier = Tiers[i];
             if (tier.WidthMs < 1 || tier.RetentionMs < tier.WidthMs)
             {
-                throw new ArgumentOutOfRangeException(nameof(Tiers), tier, $"Tiers[{i}] needs a width of at least 1 ms and a retention of at least one bucket.");
+                throw new ArgumentOutOfRangeException(nameof(Tiers), $"Tiers[{i}] ({Describe(tier)}) needs a width of at least 1ms and a retention of at least one bucket.");
             }
 
             if (i > 0 && tier.RetentionMs <= Tiers[i - 1].RetentionMs)
             {
-                throw new ArgumentOutOfRangeException(nameof(Tiers), tier, $"Tiers[{i}].Retention must exceed Tiers[{i - 1}].Retention: each tier keeps buckets up to an older age.");
+                throw new ArgumentOutOfRangeException(nameof(Tiers), $"Tiers[{i}].Retention ({DurationText.Format(tier.Retention)}) must exceed Tiers[{i - 1}].Retention ({DurationText.Format(Tiers[i - 1].Retention)}): each tier keeps buckets up to an older age.");
             }
 
             if (i > 0 && tier.WidthMs % Tiers[i - 1].WidthMs != 0)
             {
-                throw new ArgumentOutOfRangeException(nameof(Tiers), tier, $"Tiers[{i}].BucketWidth must be a multiple of Tiers[{i - 1}].BucketWidth so that buckets roll up whole.");
+                throw new ArgumentOutOfRangeException(nameof(Tiers), $"Tiers[{i}].BucketWidth ({DurationText.Format(tier.BucketWidth)}) must be a multiple of Tiers[{i - 1}].BucketWidth ({DurationText.Format(Tiers[i - 1].BucketWidth)}) so that buckets roll up whole.");
             }
         }
 
         if (ProducerMarkRetention <= TimeSpan.Zero)
         {
-            throw new ArgumentOutOfRangeException(nameof(ProducerMarkRetention), ProducerMarkRetention, "ProducerMarkRetention must be positive.");
+            throw new ArgumentOutOfRangeException(nameof(ProducerMarkRetention), $"ProducerMarkRetention is {DurationText.Format(ProducerMarkRetention)}; it must be positive.");
         }
 
         foreach (var (name, value) in new[] { (nameof(MaxSeries), MaxSeries), (nameof(MaxSeriesPerTenant), MaxSeriesPerTenant), (nameof(MaxLabels), MaxLabels), (nameof(MaxMetricLength), MaxMetricLength), (nameof(MaxLabelLength), MaxLabelLength), (nameof(MaxValuesPerBatch), MaxValuesPerBatch) })
@@ -107,4 +115,6 @@ public sealed record StoreOptions
             }
         }
     }
+
+    private static string Describe(TierOptions tier) => $"buckets of {DurationText.Format(tier.BucketWidth)} kept for {DurationText.Format(tier.Retention)}";
 }

@@ -31,7 +31,7 @@ public sealed class ApiKeyTests
         using GrpcChannel channel = GrpcChannel.ForAddress(server.Address);
         using (var borrowing = new SummaryClient(channel, Key))
         {
-            Assert.Empty(await borrowing.ListSeriesAsync());
+            Assert.Empty(await borrowing.CatalogueAsync());
         }
 
         using var keyed = new SummaryClient(channel, Key);
@@ -43,7 +43,7 @@ public sealed class ApiKeyTests
         }
 
         Assert.Equal(2ul, (await keyed.SummaryOfAsync("tallowbrook.login.latency")).Count);
-        Assert.Single(await keyed.ListSeriesAsync());
+        Assert.Single(await keyed.CatalogueAsync());
 
         var noKey = await Assert.ThrowsAsync<RpcException>(() => server.Client.SummaryOfAsync("tallowbrook.login.latency"));
         Assert.Equal(StatusCode.Unauthenticated, noKey.StatusCode);

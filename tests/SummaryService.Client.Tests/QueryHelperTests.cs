@@ -66,11 +66,11 @@ public sealed class QueryHelperTests
         Assert.Equal(60ul, mode.Count);
 
         // Values keep their record time: north lands in the first 10-minute step, south in the third.
-        SeriesReply series = await client.SeriesAsync(Selection.Of(Latency), window, TimeSpan.FromMinutes(10), new SeriesOptions { Quantiles = [0.5], GroupBy = ["region"] });
-        Assert.Equal(3, series.Points.Count);
-        Assert.Equal("north", Assert.Single(series.Points[0].Groups).Labels["region"]);
-        Assert.Empty(series.Points[1].Groups);
-        GroupSummary third = Assert.Single(series.Points[2].Groups);
+        TimelineReply timeline = await client.TimelineAsync(Selection.Of(Latency), window, TimeSpan.FromMinutes(10), new TimelineOptions { Quantiles = [0.5], GroupBy = ["region"] });
+        Assert.Equal(3, timeline.Steps.Count);
+        Assert.Equal("north", Assert.Single(timeline.Steps[0].Groups).Labels["region"]);
+        Assert.Empty(timeline.Steps[1].Groups);
+        GroupSummary third = Assert.Single(timeline.Steps[2].Groups);
         Assert.Equal("south", third.Labels["region"]);
         Assert.Equal(south.Median(), third.Summary.Quantiles[0].Value, 1e-9); // MathNet.Numerics
 
@@ -93,18 +93,18 @@ public sealed class QueryHelperTests
         Assert.Equal(R7(south, 0.9) - R7(north, 0.9), compared.Shifts[1].Delta, 1e-9); // MathNet.Numerics, Hyndman & Fan definition 7
         Assert.Equal(KolmogorovSmirnov(north, south), compared.KsDistance, 1e-12);
 
-        IReadOnlyList<SeriesEntry> listed = await client.ListSeriesAsync(Latency);
+        IReadOnlyList<CatalogueEntry> listed = await client.CatalogueAsync(Latency);
         Assert.Equal([150ul, 150ul], listed.Select(s => s.Count));
-        Assert.Equal(2, (await client.ListSeriesAsync()).Count(s => s.Metric == Latency));
-        GetStatsReply stats = await client.GetStatsAsync();
+        Assert.Equal(2, (await client.CatalogueAsync()).Count(s => s.Metric == Latency));
+        HoldingsReply stats = await client.HoldingsAsync();
         Assert.Equal(3u, stats.Series);
         Assert.Equal("Wal", stats.Durability);
-        TakeSnapshotReply snapshot = await client.TakeSnapshotAsync();
+        WriteSnapshotReply snapshot = await client.WriteSnapshotAsync();
         Assert.True(snapshot.Generation >= 1);
         Assert.Equal(3u, snapshot.Series);
 
-        Assert.Equal(100ul, await client.DeleteSeriesAsync(Status));
-        var missing = await Assert.ThrowsAsync<RpcException>(() => client.DeleteSeriesAsync(Status));
+        Assert.Equal(100ul, await client.RemoveSeriesAsync(Status));
+        var missing = await Assert.ThrowsAsync<RpcException>(() => client.RemoveSeriesAsync(Status));
         Assert.Equal(StatusCode.NotFound, missing.StatusCode);
         Assert.Contains(Status, missing.Status.Detail, StringComparison.Ordinal);
     }

@@ -12,7 +12,8 @@ public sealed class RecorderRejectionTests
     {
         await using LiveServer server = await LiveServer.StartAsync();
         var rejections = new List<RejectedBatchEventArgs>();
-        await using (var recorder = new MeasurementRecorder(server.Client, Measurements.Quick))
+        var log = new ListLogger<MeasurementRecorder>();
+        await using (var recorder = new MeasurementRecorder(server.Client, Measurements.Quick, log))
         {
             recorder.BatchRejected += (_, e) =>
             {
@@ -23,8 +24,8 @@ public sealed class RecorderRejectionTests
             };
 
             // A metric name must start with a letter; the server refuses the batch naming the field.
-            recorder.Record("7-tallowbrook.bad", 1.5);
-            recorder.Record("7-tallowbrook.bad", 2.5);
+            recorder.Record("7-tallowbrook.bad", [("depot", "quay")], 1.5);
+            recorder.Record("7-tallowbrook.bad", [("depot", "quay")], 2.5);
             await recorder.FlushAsync().WaitAsync(TimeSpan.FromSeconds(20));
             for (int i = 0; i < 10; i++)
             {
@@ -44,7 +45,8 @@ public sealed class RecorderRejectionTests
         Assert.Equal("metric", rejection.ErrorField);
         Assert.Contains("7-tallowbrook.bad", rejection.Error, StringComparison.Ordinal);
         Assert.Equal(2, rejection.Values);
+        Assert.Contains(log.Messages, m => System.Text.RegularExpressions.Regex.IsMatch(m, @"^SummaryService refused batch \d+ of 7-tallowbrook\.bad · depot=quay \(2 values\): InvalidArgument "));
         Assert.Equal(10ul, (await server.Client.SummaryOfAsync("tallowbrook.parcel.weight")).Count);
-        Assert.DoesNotContain(await server.Client.ListSeriesAsync(), s => s.Metric == "7-tallowbrook.bad");
+        Assert.DoesNotContain(await server.Client.CatalogueAsync(), s => s.Metric == "7-tallowbrook.bad");
     }
 }

@@ -109,7 +109,7 @@ public sealed class TargetRun(LoadOptions options, LoadPlan plan, TimeProvider t
         await Task.WhenAll(reads).ConfigureAwait(false);
         var queries = new LiveQueries(
             LatencySamples.Combine(clients.Select(c => c.Summarize)).Summarize(),
-            LatencySamples.Combine(clients.Select(c => c.Series)).Summarize(),
+            LatencySamples.Combine(clients.Select(c => c.Timeline)).Summarize(),
             clients.Sum(c => c.Errors),
             clients.Select(c => c.FirstError).FirstOrDefault(e => e is not null));
         return (live, queries);
@@ -184,7 +184,7 @@ public sealed class TargetRun(LoadOptions options, LoadPlan plan, TimeProvider t
 
     private static async Task<StoreFigures> StoreFiguresAsync(GrpcChannel channel, int pid, long startRss, CancellationToken cancellationToken)
     {
-        var stats = await new Admin.AdminClient(channel).GetStatsAsync(new GetStatsRequest(), cancellationToken: cancellationToken).ConfigureAwait(false);
+        var stats = await new Admin.AdminClient(channel).HoldingsAsync(new HoldingsRequest(), cancellationToken: cancellationToken).ConfigureAwait(false);
         long rss = ProcFigures.StatusBytes(pid, "VmRSS");
         double perBucket = stats.Buckets == 0 ? 0 : (double)stats.EstimatedBytes / stats.Buckets;
         double rssPerBucket = stats.Buckets == 0 ? 0 : (double)(rss - startRss) / stats.Buckets;

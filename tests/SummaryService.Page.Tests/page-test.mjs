@@ -1,5 +1,7 @@
 // Opens the built-in page in headless Chromium against a server that already holds known data,
-// picks the metric, window and step, and checks what the page drew against the server's own JSON.
+// picks the metric, window and step, and checks what the page drew against the server's own JSON:
+// the bands and histogram, the confidence stated beside the bands, times in UTC (and local time
+// after the switch), and percentile names that stay right for p99.9 and p99.99.
 // Input (environment): PAGE_URL, METRIC, EXPECT_POINTS, EXPECT_BARS, SCREENSHOT; API_KEY when the
 // server has authentication on (the page must first refuse politely, then work once the key is typed).
 // Output: one JSON line of what was seen; exit code 0 only when every check held.
@@ -25,6 +27,7 @@ const apiKey = process.env.API_KEY || "";
 const watchdog = setTimeout(() => { console.error("page test took longer than 90 s"); process.exit(3); }, 90_000);
 
 const failures = [];
+const minutesOf = (hhmm) => Number(hhmm.slice(0, 2)) * 60 + Number(hhmm.slice(3, 5));
 const check = (ok, what) => { if (!ok) failures.push(what); };
 
 const profile = mkdtempSync(join(tmpdir(), "summary-page-profile-"));
@@ -35,6 +38,8 @@ try {
     headless: true,
     args: ["--headless", "--no-sandbox", "--disable-gpu", "--disable-background-networking", "--disable-component-update", "--disable-sync", "--no-first-run"],
     viewport: { width: 1100, height: 1000 },
+    // A zone 5 h 45 min from UTC all year: local times can never pass for UTC ones.
+    timezoneId: "Asia/Kathmandu",
     timeout: 30_000,
   });
   const page = context.pages()[0] ?? (await context.newPage());
@@ -81,8 +86,41 @@ try {
       countExact: row("count")?.querySelector(".exact") !== null,
       p99: Number(row("p99")?.dataset.value),
       p99Interval: row("p99")?.children[2].textContent,
+      legend: [...document.querySelectorAll("#legend span")].map((e) => e.textContent),
+      confidence: document.getElementById("confidence").textContent,
+      lastTimeTick: [...document.querySelectorAll("#bands text.time")].map((e) => e.textContent).pop(),
+      status: document.getElementById("status").textContent,
     };
   });
+
+  // The far end of the time axis is "now" in UTC, written HH:MM and marked UTC; the status gives the covered span in ISO 8601 UTC.
+  const utcNow = new Date().toISOString().slice(11, 16);
+  check(/^\d\d:\d\d UTC$/.test(seen.lastTimeTick ?? ""), `last time tick reads "${seen.lastTimeTick}"`);
+  check(Math.abs(minutesOf(seen.lastTimeTick) - minutesOf(utcNow)) <= 2 || Math.abs(minutesOf(seen.lastTimeTick) - minutesOf(utcNow)) >= 1438, `last time tick ${seen.lastTimeTick} is not UTC now ${utcNow}`);
+  check(/covering \d{4}-\d\d-\d\dT\d\d:\d\d:\d\d(\.\d{3})?Z → /.test(seen.status ?? ""), `status reads "${seen.status}"`);
+  check(seen.confidence === "Shaded bands: each estimate's value interval at 99% confidence.", `confidence note reads "${seen.confidence}"`);
+  check(JSON.stringify(seen.legend) === JSON.stringify(["p50", "p90", "p99"]), `legend reads ${JSON.stringify(seen.legend)}`);
+
+  // Local time on request: the browser runs in Asia/Kathmandu (see the launch options), so the tick must move.
+  await page.selectOption("#zone", "local");
+  await page.waitForFunction(() => document.body.dataset.state === "drawn" && [...document.querySelectorAll("#bands text.time")].pop()?.textContent.endsWith("local"));
+  const localTick = await page.evaluate(() => [...document.querySelectorAll("#bands text.time")].pop().textContent);
+  check(localTick !== seen.lastTimeTick.replace("UTC", "local"), `local tick ${localTick} equals the UTC one`);
+  await page.selectOption("#zone", "utc");
+
+  // Deep tails keep their names: p99.9 and p99.99, never a rounded "p100".
+  await page.selectOption("#percentiles", "0.9,0.999,0.9999");
+  await page.waitForFunction(() => document.body.dataset.state === "drawn" && document.querySelector('#figures tr[data-figure="p99.99"]') !== null);
+  const tails = await page.evaluate(() => ({
+    legend: [...document.querySelectorAll("#legend span")].map((e) => e.textContent),
+    rows: [...document.querySelectorAll("#figures tr")].map((r) => r.dataset.figure),
+    bands: document.querySelectorAll("polygon.band").length,
+  }));
+  check(JSON.stringify(tails.legend) === JSON.stringify(["p90", "p99.9", "p99.99"]), `deep-tail legend reads ${JSON.stringify(tails.legend)}`);
+  check(tails.rows.includes("p99.9") && tails.rows.includes("p99.99") && !tails.rows.includes("p100"), `deep-tail rows ${JSON.stringify(tails.rows)}`);
+  check(tails.bands === 3, `${tails.bands} shaded bands for the deep tails, expected 3`);
+  await page.selectOption("#percentiles", "0.5,0.9,0.99");
+  await page.waitForFunction(() => document.body.dataset.state === "drawn" && document.querySelector('#figures tr[data-figure="p99"]') !== null);
 
   // The server's own answer for the same window, asked directly over JSON.
   const response = await fetch(new URL("/v1/summarize", pageUrl), {

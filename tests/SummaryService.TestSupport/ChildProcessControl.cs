@@ -18,18 +18,36 @@ public static class ChildProcessControl
     /// <param name="output">What the child printed, for the error message.</param>
     /// <param name="attempts">Polls before giving up.</param>
     /// <param name="cancellationToken">Stops the wait.</param>
-    public static async Task WaitServingAsync(Process process, Func<GrpcChannel> channelFactory, Func<string> output, int attempts, CancellationToken cancellationToken = default)
+    public static Task WaitServingAsync(Process process, Func<GrpcChannel> channelFactory, Func<string> output, int attempts, CancellationToken cancellationToken = default)
     {
         ArgumentNullException.ThrowIfNull(process);
+        ArgumentNullException.ThrowIfNull(output);
+        return WaitServingAsync(
+            () => Task.FromResult(process.HasExited ? $"The server exited with {process.ExitCode}" : null),
+            channelFactory,
+            () => Task.FromResult(output()),
+            attempts,
+            cancellationToken);
+    }
+
+    /// <summary>Polls the health service every 100 ms, at most <paramref name="attempts"/> times, for a server in a process or a container.</summary>
+    /// <param name="ended">Says why the server can no longer answer (it exited), or null while it runs; ends the wait with an error.</param>
+    /// <param name="channelFactory">A channel to the server's gRPC endpoint.</param>
+    /// <param name="output">What the server printed, for the error message.</param>
+    /// <param name="attempts">Polls before giving up.</param>
+    /// <param name="cancellationToken">Stops the wait.</param>
+    public static async Task WaitServingAsync(Func<Task<string?>> ended, Func<GrpcChannel> channelFactory, Func<Task<string>> output, int attempts, CancellationToken cancellationToken = default)
+    {
+        ArgumentNullException.ThrowIfNull(ended);
         ArgumentNullException.ThrowIfNull(channelFactory);
         ArgumentNullException.ThrowIfNull(output);
         using GrpcChannel channel = channelFactory();
         var health = new Health.HealthClient(channel);
         for (int attempt = 0; attempt < attempts; attempt++)
         {
-            if (process.HasExited)
+            if (await ended().ConfigureAwait(false) is { } reason)
             {
-                throw new InvalidOperationException($"The server exited with {process.ExitCode}:\n{output()}");
+                throw new InvalidOperationException($"{reason}:\n{await output().ConfigureAwait(false)}");
             }
 
             try
@@ -48,7 +66,7 @@ public static class ChildProcessControl
             await Task.Delay(100, cancellationToken).ConfigureAwait(false);
         }
 
-        throw new TimeoutException($"The server did not become healthy within {attempts / 10} s:\n{output()}");
+        throw new TimeoutException($"The server did not become healthy within {attempts / 10} s:\n{await output().ConfigureAwait(false)}");
     }
 
     /// <summary>SIGTERM, then waits up to <paramref name="limit"/> for the graceful stop, then kills the process tree.</summary>

@@ -65,14 +65,17 @@ public sealed class ServerProcess : IAsyncDisposable
         return ((IPEndPoint)listener.LocalEndpoint).Port;
     }
 
-    /// <summary>Starts the server; with <paramref name="waitForHealth"/> returns once its health service answers.</summary>
-    public static async Task<ServerProcess> StartAsync(IReadOnlyDictionary<string, string> environment, string scheme = "http", bool waitForHealth = true, Func<GrpcChannel>? channel = null, int? port = null)
+    /// <summary>
+    /// Starts the server; with <paramref name="waitForHealth"/> returns once its health service
+    /// answers. The process starts in <paramref name="workingDirectory"/>, or else the server's own folder.
+    /// </summary>
+    public static async Task<ServerProcess> StartAsync(IReadOnlyDictionary<string, string> environment, string scheme = "http", bool waitForHealth = true, Func<GrpcChannel>? channel = null, int? port = null, string? workingDirectory = null)
     {
         int chosen = port ?? FreePort();
         var address = new Uri($"{scheme}://127.0.0.1:{chosen}");
         var info = new ProcessStartInfo("dotnet")
         {
-            WorkingDirectory = Path.GetDirectoryName(ServerDll)!,
+            WorkingDirectory = workingDirectory ?? Path.GetDirectoryName(ServerDll)!,
             RedirectStandardOutput = true,
             RedirectStandardError = true,
             UseShellExecute = false,
@@ -116,6 +119,13 @@ public sealed class ServerProcess : IAsyncDisposable
         {
             return false;
         }
+    }
+
+    /// <summary>SIGKILL: no final snapshot, no flush; what the disk holds is what a crash leaves.</summary>
+    public void Kill()
+    {
+        _process.Kill(entireProcessTree: true);
+        _process.WaitForExit();
     }
 
     /// <summary>SIGTERM, then waits for the graceful shutdown (final snapshot) to finish.</summary>

@@ -13,15 +13,18 @@ public sealed class CommandRunner(CliConsole console, CommonOptions common, Time
     /// <summary>The console commands write to.</summary>
     public CliConsole Console => console;
 
-    /// <summary>Makes <paramref name="body"/> the action of <paramref name="command"/>.</summary>
-    public void Bind(Command command, Func<Invocation, Task<int>> body)
+    /// <summary>
+    /// Makes <paramref name="body"/> the action of <paramref name="command"/>; a refusal from the server
+    /// is reported with its fields named as <paramref name="fields"/> says (the command's own options).
+    /// </summary>
+    public void Bind(Command command, Func<Invocation, Task<int>> body, FieldNames? fields = null)
     {
         ArgumentNullException.ThrowIfNull(command);
         ArgumentNullException.ThrowIfNull(body);
-        command.SetAction((parse, cancellationToken) => RunAsync(parse, body, cancellationToken));
+        command.SetAction((parse, cancellationToken) => RunAsync(parse, body, fields ?? FieldNames.None, cancellationToken));
     }
 
-    private async Task<int> RunAsync(ParseResult parse, Func<Invocation, Task<int>> body, CancellationToken cancellationToken)
+    private async Task<int> RunAsync(ParseResult parse, Func<Invocation, Task<int>> body, FieldNames fields, CancellationToken cancellationToken)
     {
         ServerConnection? server = null;
         try
@@ -43,7 +46,7 @@ public sealed class CommandRunner(CliConsole console, CommonOptions common, Time
         }
         catch (RpcException ex)
         {
-            var (code, line) = FailureReport.Of(ex, server!.Address);
+            var (code, line) = FailureReport.Of(ex, server!.Address, fields);
             return Fail(code, line);
         }
         catch (IOException ex)

@@ -1,4 +1,5 @@
 using System.CommandLine;
+using SummaryService.Cli.Connection;
 
 namespace SummaryService.Cli.Commands;
 
@@ -28,7 +29,8 @@ public sealed class CommonOptions
             Recursive = true,
             DefaultValueFactory = _ => NonEmpty(environment(ServerVariable)) ?? DefaultServer,
         };
-        ApiKey = new Option<string?>("--api-key", "-k")
+        // No short form: -k means something else in common tools (curl's "insecure" among them).
+        ApiKey = new Option<string?>("--api-key")
         {
             Description = $"API key sent as 'authorization: Bearer' (env {ApiKeyVariable}).",
             HelpName = "key",
@@ -64,8 +66,8 @@ public sealed class CommonOptions
         HelpName = "label",
     };
 
-    /// <summary>A fresh repeatable --quantile.</summary>
-    public static Option<double[]> Quantiles(string description) => new("--quantile", "-q")
+    /// <summary>A fresh repeatable --quantile (no short form: -q means "quiet" in common tools).</summary>
+    public static Option<double[]> Quantiles(string description) => new("--quantile")
     {
         Description = description,
         HelpName = "q",
@@ -81,8 +83,21 @@ public sealed class CommonOptions
     /// <summary>The metric argument.</summary>
     public static Argument<string> Metric() => new("metric")
     {
-        Description = "Metric name, e.g. otterbyte.checkout.latency.",
+        Description = "Metric name, e.g. otterbyte.checkout.latency_ms.",
     };
+
+    /// <summary>
+    /// How the server's field names read as this tool's options, for every query command: the
+    /// selection, the window and the figures asked for. Commands add their own (see <see cref="FieldNames"/>).
+    /// </summary>
+    public static FieldNames QueryFields { get; } = new(
+        ("selector.metric", "the metric"),
+        ("window.last", "--last"),
+        ("window.range", "--from/--to"),
+        ("window", "the window (--last, or --from and --to)"),
+        ("quantiles", "--quantile #{n}"),
+        ("confidence", "--confidence"),
+        ("group_by", "--group-by"));
 
     private static string? NonEmpty(string? value) => string.IsNullOrWhiteSpace(value) ? null : value;
 }

@@ -2,6 +2,7 @@ using System.CommandLine;
 using Spectre.Console;
 using SummaryService.Cli.Demo;
 using SummaryService.Cli.Parsing;
+using SummaryService.Contract.Readable;
 
 namespace SummaryService.Cli.Commands;
 
@@ -78,7 +79,7 @@ public static class DemoCommand
                 console.WriteLine($"  … up to {TimePoint.Format(to)} ({feed.Accepted} values acknowledged)");
             }
 
-            console.WriteLine($"back-filled {TimePoint.Format(startMs)} → {TimePoint.Format(now)} in {run.Time.GetElapsedTime(started).TotalSeconds:0.0} s.");
+            console.WriteLine($"back-filled {TimePoint.Format(startMs)} → {TimePoint.Format(now)} in {DurationText.Format(TimeSpan.FromSeconds(Math.Round(run.Time.GetElapsedTime(started).TotalSeconds)))}.");
             PrintTryThis(run.Console, common, run, startMs, deployMs);
 
             long until = live is null ? long.MaxValue : run.NowMs + (long)live.Value.TotalMilliseconds;
@@ -123,17 +124,17 @@ public static class DemoCommand
         console.Out.WriteLine("Try these in another terminal (from the repository, 'sumq' is 'dotnet run --project src/SummaryService.Cli --'):");
         (string Why, string Command)[] lines =
         [
-            ("checkout before and after the release: p90 moves beyond its error, the median stays; p99 grows too, but a ~1% rank error is too coarse to call it", $"shift {OtterbyteScenario.Checkout} --a {before} --b {after} --quantile 0.5 --quantile 0.9 --quantile 0.99"),
-            ("pricing did not change: every quantile stays within error", $"shift {OtterbyteScenario.Pricing} --a {before} --b {after} --quantile 0.5 --quantile 0.9 --quantile 0.99"),
+            ("checkout before and after the release: p90 moved up; p99 grows several-fold (see b / a) but is inconclusive, its intervals overlap", $"shift {OtterbyteScenario.Checkout} --a {before} --b {after} --quantile 0.5 --quantile 0.9 --quantile 0.99"),
+            ("pricing did not change: every quantile is inconclusive with a ratio near ×1", $"shift {OtterbyteScenario.Pricing} --a {before} --b {after} --quantile 0.5 --quantile 0.9 --quantile 0.99"),
             ("checkout before the release: skewness and the mean–median gap", $"window {OtterbyteScenario.Checkout} --from {TimePoint.Format(startMs)} --to {TimePoint.Format(deployMs)}"),
             ("… and after it", $"window {OtterbyteScenario.Checkout} --from {TimePoint.Format(deployMs)}"),
-            ("the catalog's two humps (cache hit or miss) in the histogram", $"window {OtterbyteScenario.Catalog} --last 1h --bins 24"),
+            ("the catalogue service's two humps (cache hit or miss) in the histogram", $"window {OtterbyteScenario.Catalogue} --last 1h --bins 24"),
             ("status codes: the modes say what happened", $"window {OtterbyteScenario.Status} --last 1h --bins 0 --modes 4"),
             ("queue depth per region", $"window {OtterbyteScenario.QueueDepth} --last 30m --group-by region --bins 0"),
             ("checkout's p99 per 10 minutes, as a sparkline", $"trend {OtterbyteScenario.Checkout} --last 3h --step 10m --plot 0.99"),
             ("two label sets: north against south", $"shift {OtterbyteScenario.Checkout} --a 30m --b 30m --a-label region=north --b-label region=south"),
             ("live view per region", $"follow {OtterbyteScenario.Checkout} --last 1m --group-by region"),
-            ("what the server holds", "catalog"),
+            ("the series the server holds", "catalogue"),
         ];
         foreach (var (why, command) in lines)
         {

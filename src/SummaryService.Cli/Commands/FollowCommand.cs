@@ -4,7 +4,9 @@ using Grpc.Core;
 using Spectre.Console;
 using Spectre.Console.Rendering;
 using SummaryService.Cli.Parsing;
+using SummaryService.Cli.Connection;
 using SummaryService.Cli.Rendering;
+using SummaryService.Contract.Readable;
 using SummaryService.Contract.V1;
 
 namespace SummaryService.Cli.Commands;
@@ -24,9 +26,10 @@ public static class FollowCommand
         var metric = CommonOptions.Metric();
         var labels = CommonOptions.Labels();
         var groupBy = CommonOptions.GroupBy();
-        var last = new Option<string>("--last") { Description = "Trailing window measured back from each update.", HelpName = "duration", DefaultValueFactory = _ => "5m" };
+        var last = new Option<string>("--last") { Description = "Length of the trailing window, measured back from each update.", HelpName = "duration", DefaultValueFactory = _ => "5m" };
         var every = new Option<string>("--every") { Description = "Time between updates (at least 100ms).", HelpName = "duration", DefaultValueFactory = _ => "2s" };
-        var count = new Option<uint>("--count", "-n") { Description = "Stop after this many updates; 0 runs until Ctrl+C.", DefaultValueFactory = _ => 0 };
+        // No short form: -n means "a number of lines" or "dry run" in common tools.
+        var count = new Option<uint>("--count") { Description = "Stop after this many updates; 0 runs until Ctrl+C.", DefaultValueFactory = _ => 0 };
         var quantiles = CommonOptions.Quantiles("Quantile shown, in [0, 1]; repeat (default .5, .9, .99).");
         var confidence = CommonOptions.Confidence();
         var json = CommonOptions.Json();
@@ -62,7 +65,7 @@ public static class FollowCommand
             var request = new WatchRequest { Query = query, Interval = Duration.FromTimeSpan(interval), MaxUpdates = p.GetValue(count) };
             using var call = run.Server.Query.Watch(request, cancellationToken: run.Cancellation);
             bool asJson = p.GetValue(json);
-            string title = $"{$"{query.Selector.Metric} {Figures.Labels(query.Selector.MatchLabels)}".Trim()}, last {DurationText.Format(window)}, every {DurationText.Format(interval)}";
+            string title = $"{Figures.Series(query.Selector.Metric, query.Selector.LabelEquals)}, last {DurationText.Format(window)}, every {DurationText.Format(interval)}";
             IAnsiConsole console = run.Console.Out;
             int updates = 0;
             if (!asJson && console.Profile.Capabilities.Interactive && console.Profile.Capabilities.Ansi)
@@ -93,9 +96,17 @@ public static class FollowCommand
             }
 
             return ExitCodes.Ok;
-        });
+        }, Fields);
         return command;
     }
+
+    /// <summary>The server's fields as this command's options (a watch repeats a query, whose fields carry "query.").</summary>
+    public static FieldNames Fields { get; } = CommonOptions.QueryFields.With(
+        ("query.selector.metric", "the metric"),
+        ("query.window.last", "--last"),
+        ("query.window", "--last"),
+        ("interval", "--every"),
+        ("max_updates", "--count"));
 
     private static IRenderable View(string title, int update, TimeProvider time, SummarizeReply reply)
     {

@@ -11,7 +11,7 @@ public static class Selection
     {
         if (string.IsNullOrWhiteSpace(metric))
         {
-            throw new UsageException("the metric name is empty; name the metric to read (see 'sumq catalog').");
+            throw new UsageException("the metric name is empty; name the metric to read (see 'sumq catalogue').");
         }
 
         if (metric.StartsWith('-'))
@@ -25,7 +25,7 @@ public static class Selection
         }
 
         var selector = new Selector { Metric = metric };
-        selector.MatchLabels.Add(labels);
+        selector.LabelEquals.Add(labels);
         return selector;
     }
 

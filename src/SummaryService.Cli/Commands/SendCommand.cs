@@ -1,6 +1,7 @@
 using System.CommandLine;
 using Spectre.Console;
 using Grpc.Core;
+using SummaryService.Cli.Connection;
 using SummaryService.Cli.Input;
 using SummaryService.Cli.Parsing;
 using SummaryService.Cli.Rendering;
@@ -25,7 +26,7 @@ public static class SendCommand
         var labels = CommonOptions.Labels("--label", "Label of the series (name=value); repeat.");
         var file = new Option<string?>("--file", "-f") { Description = "Read values from this file; '-' for standard input.", HelpName = "path" };
         var format = new Option<ValueFormat?>("--format") { Description = "Layout of the file or standard input: Plain, Csv or Ndjson (default from the file extension, else Plain)." };
-        var at = new Option<string?>("--at") { Description = "Timestamp of values without their own (ISO 8601 or a duration ago); default now.", HelpName = "time" };
+        var at = new Option<string?>("--at") { Description = "Timestamp of values without their own: now-5m (five minutes ago) or ISO 8601; default now.", HelpName = "time" };
         var batchSize = new Option<int>("--batch-size") { Description = "Values per batch.", DefaultValueFactory = _ => 1000 };
         var producer = new Option<string?>("--producer") { Description = "Producer name for idempotent retries; batches then carry sequence numbers.", HelpName = "name" };
         var sequence = new Option<ulong>("--sequence") { Description = "Sequence number of the first batch (with --producer).", DefaultValueFactory = _ => 1 };
@@ -64,10 +65,10 @@ public static class SendCommand
             ulong first = p.GetValue(sequence);
             var batches = Batches(target, read, size, batchTime, name, first);
             var (accepted, duplicates, failure) = await PushAsync(run, batches);
-            string series = $"{target.Metric} {Figures.Labels(target.MatchLabels)}".Trim();
+            string series = Figures.Series(target.Metric, target.LabelEquals);
             if (failure is not null)
             {
-                run.Console.Error.WriteLine($"error: batch {failure.Sequence} was refused ({failure.ErrorCode}): {failure.Error}");
+                run.Console.Error.WriteLine($"error: batch {failure.Sequence} was refused ({failure.ErrorCode}): {Fields.Translate(failure.Error, failure.ErrorField)}");
                 run.Console.Out.WriteLine($"{accepted} values accepted into {series} before the refusal.");
                 return failure.ErrorCode switch
                 {
@@ -80,9 +81,17 @@ public static class SendCommand
             string repeated = duplicates > 0 ? $", {duplicates} batch(es) already applied before and not counted again" : "";
             run.Console.Out.WriteLine($"sent {read.Count} values in {batches.Count} batch(es) to {series}: {accepted} accepted{repeated}.");
             return ExitCodes.Ok;
-        });
+        }, Fields);
         return command;
     }
+
+    /// <summary>The fields of a batch as this command's arguments and options.</summary>
+    public static FieldNames Fields { get; } = new(
+        ("metric", "the metric"),
+        ("labels", "--label {key}"),
+        ("values", "value #{n} of the batch"),
+        ("time_unix_ms", "the batch's time (--at)"),
+        ("value_times_unix_ms", "the time of value #{n} of the batch"));
 
     private static List<TimedValue> Gather(CliConsole console, string[] arguments, string? file, ValueFormat? format)
     {
@@ -118,7 +127,7 @@ public static class SendCommand
         for (int start = 0; start < values.Count; start += size)
         {
             var batch = new Batch { Metric = target.Metric, Producer = producer ?? "", TimeUnixMs = batchTime };
-            batch.Labels.Add(target.MatchLabels);
+            batch.Labels.Add(target.LabelEquals);
             int end = Math.Min(values.Count, start + size);
             for (int i = start; i < end; i++)
             {

@@ -2,6 +2,7 @@ using System.CommandLine;
 using Spectre.Console;
 using SummaryService.Cli.Connection;
 using SummaryService.Cli.Rendering;
+using SummaryService.Contract.Readable;
 using SummaryService.Contract.V1;
 
 namespace SummaryService.Cli.Commands;
@@ -18,14 +19,14 @@ public static class SnapshotCommand
         command.Add(json);
         runner.Bind(command, async run =>
         {
-            TakeSnapshotReply reply = await run.Server.Admin.TakeSnapshotAsync(new TakeSnapshotRequest(), ServerConnection.Unary(run.Cancellation));
+            WriteSnapshotReply reply = await run.Server.Admin.WriteSnapshotAsync(new WriteSnapshotRequest(), ServerConnection.Unary(run.Cancellation));
             if (run.Parse.GetValue(json))
             {
                 JsonOutput.Write(run.Console, reply);
             }
             else
             {
-                run.Console.Out.WriteLine($"snapshot generation {reply.Generation}: {reply.Series} series, {StoreCommand.Bytes(reply.Bytes)}, in {Figures.Of(reply.Elapsed.ToTimeSpan().TotalMilliseconds)} ms");
+                run.Console.Out.WriteLine($"snapshot generation {reply.Generation}: {reply.Series} series, {HoldingsCommand.Bytes(reply.Bytes)}, in {DurationText.Format(reply.Elapsed.ToTimeSpan())}");
             }
 
             return ExitCodes.Ok;

@@ -4,6 +4,7 @@ using Spectre.Console;
 using SummaryService.Cli.Connection;
 using SummaryService.Cli.Parsing;
 using SummaryService.Cli.Rendering;
+using SummaryService.Contract.Readable;
 using SummaryService.Contract.V1;
 
 namespace SummaryService.Cli.Commands;
@@ -19,7 +20,7 @@ public static class TrendCommand
         var metric = CommonOptions.Metric();
         var labels = CommonOptions.Labels();
         var groupBy = CommonOptions.GroupBy();
-        var step = new Option<string>("--step") { Description = "Width of each step (10s, 5m, 1h).", HelpName = "duration", DefaultValueFactory = _ => "5m" };
+        var step = new Option<string>("--step") { Description = "Length of each step (10s, 5m, 1h).", HelpName = "duration", DefaultValueFactory = _ => "5m" };
         var quantiles = CommonOptions.Quantiles("Quantile per step, in [0, 1]; repeat (default .5, .9, .99).");
         var plot = new Option<double?>("--plot") { Description = "Quantile the sparkline draws (default the last --quantile).", HelpName = "q" };
         var confidence = CommonOptions.Confidence();
@@ -45,7 +46,7 @@ public static class TrendCommand
                 throw new UsageException($"--plot {plotted} is not among the quantiles asked for ({string.Join(", ", qs)}); add it with --quantile.");
             }
 
-            var request = new SeriesRequest
+            var request = new TimelineRequest
             {
                 Selector = Selection.Of(p.GetValue(metric)!, p.GetValue(labels)),
                 Window = window.Read(p, run.NowMs),
@@ -54,33 +55,34 @@ public static class TrendCommand
             };
             request.Quantiles.Add(qs);
             request.GroupBy.Add(p.GetValue(groupBy) ?? []);
-            SeriesReply reply = await run.Server.Query.SeriesAsync(request, ServerConnection.Unary(run.Cancellation));
+            TimelineReply reply = await run.Server.Query.TimelineAsync(request, ServerConnection.Unary(run.Cancellation));
             if (p.GetValue(json))
             {
                 JsonOutput.Write(run.Console, reply);
             }
             else
             {
-                Render(run.Console.Out, request.Selector.Metric, qs, plotted, reply);
+                Render(run.Console.Out, request.Selector, qs, plotted, reply);
             }
 
-            if (reply.Points.All(point => point.Groups.Count == 0))
+            if (reply.Steps.All(entry => entry.Groups.Count == 0))
             {
                 run.Console.Error.WriteLine("no values in any step of the window; widen it with --last or --from.");
                 return ExitCodes.NotFound;
             }
 
             return ExitCodes.Ok;
-        });
+        }, CommonOptions.QueryFields.With(("step", "--step")));
         return command;
     }
 
-    private static void Render(IAnsiConsole console, string metric, double[] quantiles, double plotted, SeriesReply reply)
+    private static void Render(IAnsiConsole console, Selector selector, double[] quantiles, double plotted, TimelineReply reply)
     {
-        var groups = reply.Points.SelectMany(p => p.Groups).Select(g => Figures.Labels(g.Labels)).Distinct(StringComparer.Ordinal).Order(StringComparer.Ordinal).ToArray();
-        foreach (string group in groups)
+        var groups = reply.Steps.SelectMany(p => p.Groups).Select(g => g.Labels).DistinctBy(Figures.Labels, StringComparer.Ordinal).OrderBy(Figures.Labels, StringComparer.Ordinal).ToArray();
+        foreach (var groupLabels in groups)
         {
-            console.Write(new Rule(Markup.Escape($"{metric} {group}".Trim())).LeftJustified());
+            string group = Figures.Labels(groupLabels);
+            console.Write(new Rule(Markup.Escape(Figures.Series(selector.Metric, selector.LabelEquals, groupLabels))).LeftJustified());
             var table = new Table().Border(TableBorder.Rounded);
             table.AddColumn(new TableColumn(new Text("step start")));
             table.AddColumn(new TableColumn(new Text("count")).RightAligned());
@@ -91,7 +93,7 @@ public static class TrendCommand
             }
 
             var line = new List<double?>();
-            foreach (SeriesPoint point in reply.Points)
+            foreach (TimelineStep point in reply.Steps)
             {
                 GroupSummary? found = point.Groups.FirstOrDefault(g => Figures.Labels(g.Labels) == group);
                 var cells = new List<Text> { new(TimePoint.Format(point.Step.FromUnixMs).Replace("T", " ", StringComparison.Ordinal)) };

@@ -59,23 +59,30 @@ public static class WindowCommand
             }
             else
             {
-                Render(run.Console.Out, request.Selector.Metric, reply);
+                Render(run.Console.Out, request.Selector, reply);
             }
 
             return Empty(run.Console, reply);
-        });
+        }, Fields);
         return command;
     }
 
-    /// <summary>Writes each group's table and histogram under a heading with the covered span.</summary>
-    public static void Render(IAnsiConsole console, string metric, SummarizeReply reply)
+    /// <summary>The server's fields as this command's options.</summary>
+    public static FieldNames Fields { get; } = CommonOptions.QueryFields.With(
+        ("rank_of", "--share-below"),
+        ("histogram.bin_count", "--bins"),
+        ("histogram", "--bins"),
+        ("max_modes", "--modes"));
+
+    /// <summary>Writes each group's table and histogram under a heading naming its series and the covered span.</summary>
+    public static void Render(IAnsiConsole console, Selector selector, SummarizeReply reply)
     {
         ArgumentNullException.ThrowIfNull(console);
+        ArgumentNullException.ThrowIfNull(selector);
         ArgumentNullException.ThrowIfNull(reply);
         foreach (GroupSummary group in reply.Groups)
         {
-            string labels = Figures.Labels(group.Labels);
-            console.Write(new Rule(Markup.Escape($"{metric} {labels}".Trim())).LeftJustified());
+            console.Write(new Rule(Markup.Escape(Figures.Series(selector.Metric, selector.LabelEquals, group.Labels))).LeftJustified());
             console.WriteLine($"{group.SeriesMerged} series merged, covering {Span(reply.Covered)}");
             console.Write(SummaryTable.Of(group.Summary));
             if (SummaryTable.Histogram(group.Summary) is { } histogram)

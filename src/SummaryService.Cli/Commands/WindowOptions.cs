@@ -1,12 +1,14 @@
 using System.CommandLine;
 using SummaryService.Cli.Parsing;
+using SummaryService.Contract.Readable;
 using SummaryService.Contract.V1;
 
 namespace SummaryService.Cli.Commands;
 
 /// <summary>
 /// <c>--last</c>, or <c>--from</c>/<c>--to</c>, on a command: the trailing window by default, an explicit
-/// range when either end is given. Ends take ISO 8601 times or durations ago.
+/// range when either end is given. A duration is always a length (<c>--last 1h</c>); an end is an
+/// instant (<c>now</c>, <c>now-1h</c>, or ISO 8601), as everywhere else on the command line.
 /// </summary>
 public sealed class WindowOptions
 {
@@ -16,13 +18,13 @@ public sealed class WindowOptions
         ArgumentNullException.ThrowIfNull(command);
         Last = new Option<string>("--last")
         {
-            Description = "Trailing window ending now (90s, 15m, 6h, 7d).",
+            Description = "Length of the trailing window ending now (90s, 15m, 6h, 7d).",
             HelpName = "duration",
             DefaultValueFactory = _ => defaultLast,
         };
         From = new Option<string?>("--from")
         {
-            Description = "Start of an explicit range: ISO 8601 (2026-12-02T01:00:00Z, UTC without offset) or a duration ago (3h).",
+            Description = "Start of an explicit range: now-3h (three hours ago) or ISO 8601 (2026-12-02T01:00:00Z, UTC without offset).",
             HelpName = "time",
         };
         To = new Option<string?>("--to")

@@ -36,10 +36,10 @@ public sealed class ServerConnection : IDisposable
     /// <summary>Push batches.</summary>
     public Ingest.IngestClient Ingest { get; }
 
-    /// <summary>Summaries, series, watches, comparisons.</summary>
+    /// <summary>Summaries, timelines, watches, comparisons and the catalogue.</summary>
     public Query.QueryClient Query { get; }
 
-    /// <summary>Catalogue, snapshots, store figures.</summary>
+    /// <summary>Upkeep: removal, snapshots, holdings.</summary>
     public Admin.AdminClient Admin { get; }
 
     /// <summary>Opens a connection (lazily: nothing is sent until the first call), refusing an address that is not http(s).</summary>

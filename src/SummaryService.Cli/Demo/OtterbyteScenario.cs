@@ -17,7 +17,7 @@ public static class OtterbyteScenario
     public const string Pricing = "otterbyte.pricing.latency_ms";
 
     /// <summary>Metric of the bimodal route.</summary>
-    public const string Catalog = "otterbyte.catalog.latency_ms";
+    public const string Catalogue = "otterbyte.catalogue.latency_ms";
 
     /// <summary>Metric of the integer queue depths.</summary>
     public const string QueueDepth = "otterbyte.dispatch.queue_depth";
@@ -35,7 +35,7 @@ public static class OtterbyteScenario
     public static IReadOnlyList<DemoService> Services { get; } =
     [
         new(Checkout, "checkout", "/checkout", "right-skewed lognormal latency with rare slow outliers; the deploy widens its tail", CheckoutLatency),
-        new(Catalog, "catalog", "/items/{id}", "bimodal: cache hits near 6 ms, misses near 60 ms", CatalogLatency),
+        new(Catalogue, "catalogue", "/items/{id}", "bimodal: cache hits near 6 ms, misses near 60 ms", CatalogueLatency),
         new(Pricing, "pricing", "internal/quote", "near-normal internal call around 25 ms, unchanged by the deploy", (r, _) => Math.Max(1, r.Normal(25, 3))),
         new(QueueDepth, "dispatch", "queue/outbound", "integer queue depths (Poisson, mean 9)", (r, _) => r.Poisson(9)),
         new(Status, "edge", "/api", "HTTP-like response status codes: the modes matter, not the mean", (r, _) => StatusCodes[r.Pick(StatusWeights)]),
@@ -51,6 +51,6 @@ public static class OtterbyteScenario
         return random.Uniform() < outliers ? value * (5 + (10 * random.Uniform())) : value;
     }
 
-    private static double CatalogLatency(DemoRandom random, bool deployed) =>
+    private static double CatalogueLatency(DemoRandom random, bool deployed) =>
         random.Uniform() < 0.75 ? Math.Max(0.5, random.Normal(6, 1.2)) : random.LogNormal(60, 0.25);
 }

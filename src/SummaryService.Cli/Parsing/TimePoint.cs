@@ -1,17 +1,22 @@
 using System.Globalization;
+using SummaryService.Contract.Readable;
 
 namespace SummaryService.Cli.Parsing;
 
 /// <summary>
-/// An instant on the command line: <c>now</c>, an ISO 8601 time (<c>2026-12-02T01:30:00Z</c>; without an
-/// offset it is read as UTC, so a pasted time means the same on every machine), or a duration meaning
-/// that long ago (<c>2h</c>).
+/// An instant on the command line: <c>now</c>, <c>now-DURATION</c> (<c>now-2h</c>: two hours ago) or an
+/// ISO 8601 time (<c>2026-12-02T01:30:00Z</c>; without an offset it is read as UTC, so a pasted time
+/// means the same on every machine). A bare duration is never an instant: everywhere on the command
+/// line <c>2h</c> means a length of two hours, so it is refused here with the form that was meant.
 /// </summary>
 public static class TimePoint
 {
+    private const string Forms = "now, now-2h (two hours ago) or an ISO 8601 time such as 2026-12-02T01:30:00Z";
+
     /// <summary>Unix milliseconds of <paramref name="text"/>, relative forms measured back from <paramref name="nowMs"/>.</summary>
     public static bool TryParse(string text, long nowMs, out long unixMs, out string error)
     {
+        ArgumentNullException.ThrowIfNull(text);
         unixMs = 0;
         error = "";
         string s = text.Trim();
@@ -19,6 +24,18 @@ public static class TimePoint
         {
             unixMs = nowMs;
             return true;
+        }
+
+        if (s.StartsWith("now-", StringComparison.OrdinalIgnoreCase))
+        {
+            if (DurationText.TryParse(s[4..], out TimeSpan ago, out string durationError))
+            {
+                unixMs = nowMs - (long)ago.TotalMilliseconds;
+                return true;
+            }
+
+            error = $"'{text}': {durationError}";
+            return false;
         }
 
         if (s.Length > 0 && char.IsAsciiDigit(s[0]) && s.Contains('-', StringComparison.Ordinal))
@@ -33,17 +50,12 @@ public static class TimePoint
             return false;
         }
 
-        if (DurationText.TryParse(s, out TimeSpan ago, out _))
-        {
-            unixMs = nowMs - (long)ago.TotalMilliseconds;
-            return true;
-        }
-
-        error = $"'{text}' is neither 'now', an ISO 8601 time (2026-12-02T01:30:00Z) nor a duration ago (2h).";
+        error = DurationText.TryParse(s, out _, out _)
+            ? $"'{text}' is a length, not an instant; for that long ago write now-{s}."
+            : $"'{text}' is not an instant; write {Forms}.";
         return false;
     }
 
-    /// <summary>ISO 8601 in UTC to the second, the form the tool prints and accepts back.</summary>
-    public static string Format(long unixMs) =>
-        DateTimeOffset.FromUnixTimeMilliseconds(unixMs).UtcDateTime.ToString("yyyy-MM-dd'T'HH:mm:ss'Z'", CultureInfo.InvariantCulture);
+    /// <summary>ISO 8601 in UTC, the form the tool prints and accepts back.</summary>
+    public static string Format(long unixMs) => TimeText.Iso(unixMs);
 }

@@ -1,4 +1,5 @@
 using System.Globalization;
+using SummaryService.Contract.Readable;
 
 namespace SummaryService.Cli.Rendering;
 
@@ -14,18 +15,25 @@ public static class Figures
     /// <summary>A share as a percentage with two decimals.</summary>
     public static string Percent(double share) => (share * 100).ToString("0.##", CultureInfo.InvariantCulture) + "%";
 
-    /// <summary>A quantile's usual name: p50, p99, p99.9; min and max for 0 and 1.</summary>
+    /// <summary>
+    /// How many times <paramref name="a"/> the value <paramref name="b"/> is (<c>×4.2</c>), or "—" when a
+    /// ratio says nothing: a is zero, or the two lie on opposite sides of zero.
+    /// </summary>
+    public static string Ratio(double a, double b) =>
+        a == 0 || (a > 0 && b < 0) || (a < 0 && b > 0) ? "—" : "×" + (b / a).ToString("0.##", CultureInfo.InvariantCulture);
+
+    /// <summary>A quantile's usual name: min and max for 0 and 1, else p50, p99, p99.9, p99.99.</summary>
     public static string QuantileName(double q) => q switch
     {
-        0 => "min (q0)",
-        1 => "max (q1)",
-        _ => "p" + (q * 100).ToString("0.###", CultureInfo.InvariantCulture),
+        0 => "min",
+        1 => "max",
+        _ => "p" + Math.Round(q * 100, 6).ToString("0.######", CultureInfo.InvariantCulture),
     };
 
-    /// <summary>Labels as {a=1, b=2}, or empty.</summary>
-    public static string Labels(IEnumerable<KeyValuePair<string, string>> labels)
-    {
-        string joined = string.Join(", ", labels.OrderBy(l => l.Key, StringComparer.Ordinal).Select(l => $"{l.Key}={l.Value}"));
-        return joined.Length == 0 ? "" : "{" + joined + "}";
-    }
+    /// <summary>A series or selection as people read it: <c>metric · name=value · …</c>.</summary>
+    public static string Series(string metric, params IEnumerable<KeyValuePair<string, string>>[] labelSets) =>
+        SeriesName.Of(metric, labelSets.SelectMany(l => l).DistinctBy(l => l.Key, StringComparer.Ordinal));
+
+    /// <summary>Labels alone (<c>region=north · service=checkout</c>), or empty.</summary>
+    public static string Labels(IEnumerable<KeyValuePair<string, string>> labels) => SeriesName.Labels(labels);
 }

@@ -25,7 +25,7 @@ public static class SummaryTable
         QuantileEstimate? median = summary.FiveNumber?.Median;
         if (median is not null)
         {
-            Row(table, "median", Figures.Of(median.Value), Figures.Interval(median.Low, median.High), BoundText.Quantile(median, level));
+            Row(table, "median (p50)", Figures.Of(median.Value), Figures.Interval(median.Low, median.High), BoundText.Quantile(median, level));
             if (summary.HasMean)
             {
                 double gap = summary.Mean - median.Value;
@@ -45,7 +45,8 @@ public static class SummaryTable
         Row(table, "IQR", Figures.Of(summary.HasIqr ? summary.Iqr : null), Figures.Interval(summary.HasIqrLow ? summary.IqrLow : null, summary.HasIqrHigh ? summary.IqrHigh : null), "Q3 − Q1");
         Row(table, "MAD", Figures.Of(summary.HasMad ? summary.Mad : null), Figures.Interval(summary.HasMadLow ? summary.MadLow : null, summary.HasMadHigh ? summary.MadHigh : null), "median |x − median|, unscaled");
         Row(table, "quartile skewness", Figures.Of(summary.HasQuartileSkewness ? summary.QuartileSkewness : null), "", "Bowley");
-        foreach (QuantileEstimate q in summary.Quantiles)
+        // Min, median and max have rows of their own above; a quantile at 0, 0.5 or 1 would repeat them.
+        foreach (QuantileEstimate q in summary.Quantiles.Where(q => q.Q is not 0 and not 1 && !(q.Q == 0.5 && median is not null)))
         {
             Row(table, Figures.QuantileName(q.Q), Figures.Of(q.Value), Figures.Interval(q.Low, q.High), BoundText.Quantile(q, level));
         }

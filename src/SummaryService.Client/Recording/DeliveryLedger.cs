@@ -85,7 +85,7 @@ internal sealed class DeliveryLedger(ValueBudget budget, ILogger logger, ulong f
     {
         Interlocked.Increment(ref _batchesRejected);
         Interlocked.Add(ref _valuesRejected, upload.Values);
-        RecorderLog.BatchRejected(logger, upload.Sequence, upload.Series.Metric, upload.Values, errorCode, error);
+        RecorderLog.BatchRejected(logger, upload.Sequence, upload.Series.ToString(), upload.Values, errorCode, error);
         try
         {
             raiseRejected(new RejectedBatchEventArgs(upload.Series.Metric, upload.Series.Labels, upload.Sequence, upload.Values, errorCode, error, errorField));

@@ -1,3 +1,5 @@
+using SummaryService.Contract.Readable;
+
 namespace SummaryService.Client.Recording;
 
 /// <summary>
@@ -32,6 +34,9 @@ public sealed class RecordedSeries
 
     /// <summary>The full label set.</summary>
     public IReadOnlyDictionary<string, string> Labels { get; }
+
+    /// <summary>The series as people read it in logs and messages (<c>metric · name=value · …</c>).</summary>
+    public override string ToString() => SeriesName.Of(Metric, Labels);
 
     internal SeriesIdentity Identity { get; }
 

@@ -41,13 +41,11 @@ public sealed class ApiKeyInterceptor(ApiKeyRegistry registry) : Interceptor
     }
 
     /// <summary>
-    /// The scope a method of the contract needs, from its service name. Listing the catalogue is a
-    /// read: a dashboard or an on-call engineer holding a read key must be able to find the series
-    /// they may query, while removal and store-wide operations stay with admin keys.
+    /// The scope a method of the contract needs, from its service name alone: every Ingest call
+    /// writes, every Query call (the catalogue included) reads, every Admin call is upkeep.
     /// </summary>
     internal static Scope ScopeOf(string method) => method switch
     {
-        "/summary.v1.Admin/ListSeries" => Scope.Read,
         _ when method.StartsWith("/summary.v1.Ingest/", StringComparison.Ordinal) => Scope.Write,
         _ when method.StartsWith("/summary.v1.Query/", StringComparison.Ordinal) => Scope.Read,
         _ when method.StartsWith("/summary.v1.Admin/", StringComparison.Ordinal) => Scope.Admin,

@@ -33,6 +33,10 @@ public sealed class CallerAccess
     public static CallerAccess Of(ServerCallContext context) =>
         context.UserState.TryGetValue(UserStateKey, out object? value) && value is CallerAccess access ? access : Unrestricted;
 
+    /// <summary>The caller the interceptor recorded in a request's items (a call's user state), or null when none was.</summary>
+    public static CallerAccess? Attached(IDictionary<object, object?> items) =>
+        items is not null && items.TryGetValue(UserStateKey, out object? value) ? value as CallerAccess : null;
+
     /// <summary>Records the caller of this call.</summary>
     public void AttachTo(ServerCallContext context) => context.UserState[UserStateKey] = this;
 

@@ -10,10 +10,10 @@ public enum Scope
     /// <summary>Ingest: push batches and sketches.</summary>
     Write = 1,
 
-    /// <summary>Query: summaries, series, watches, comparisons.</summary>
+    /// <summary>Query: summaries, timelines, watches, comparisons and the catalogue.</summary>
     Read = 2,
 
-    /// <summary>Admin: catalogue, deletion, snapshots, figures.</summary>
+    /// <summary>Admin: removal of series, snapshots, the store's holdings.</summary>
     Admin = 4,
 }
 

@@ -15,16 +15,16 @@ public sealed class PersistenceSettings
     public DurabilityMode Durability { get; set; } = DurabilityMode.Wal;
 
     /// <summary>Time between periodic snapshots.</summary>
-    public TimeSpan SnapshotInterval { get; set; } = TimeSpan.FromSeconds(30);
+    public DurationSetting SnapshotInterval { get; set; } = TimeSpan.FromSeconds(30);
 
     /// <summary>Shortest time between two log fsyncs (group commit).</summary>
-    public TimeSpan LogSyncInterval { get; set; } = TimeSpan.FromMilliseconds(5);
+    public DurationSetting LogSyncInterval { get; set; } = TimeSpan.FromMilliseconds(5);
 
     /// <summary>Snapshot generations kept.</summary>
     public int SnapshotsKept { get; set; } = 2;
 
     /// <summary>Time between rollup passes that move aged buckets to coarser tiers and drop expired ones.</summary>
-    public TimeSpan RollupInterval { get; set; } = TimeSpan.FromSeconds(10);
+    public DurationSetting RollupInterval { get; set; } = TimeSpan.FromSeconds(10);
 
     /// <summary>The store's persistence options.</summary>
     public PersistenceOptions ToPersistenceOptions() => new()

@@ -9,6 +9,18 @@ public sealed class ServerSettings
     /// <summary>Largest request or reply message in bytes; larger ones fail with ResourceExhausted before any work is done.</summary>
     public int MaxMessageBytes { get; set; } = 16 << 20;
 
-    /// <summary>Most steps one Series call may ask for.</summary>
-    public int MaxSeriesSteps { get; set; } = 10_000;
+    /// <summary>Most steps one Timeline call may ask for.</summary>
+    public int MaxTimelineSteps { get; set; } = 10_000;
+
+    /// <summary>
+    /// How long a watch waits for its caller to take one update; past it the watch ends with
+    /// ResourceExhausted, so a reader that stopped reading holds no timer, query or buffer for long.
+    /// </summary>
+    public DurationSetting WatchMaxLag { get; set; } = TimeSpan.FromSeconds(30);
+
+    /// <summary>Bytes of batches held across all callers between reading and answering them; see <see cref="Services.IngestBudget"/>.</summary>
+    public long MaxIngestBytesHeld { get; set; } = 256L << 20;
+
+    /// <summary>Refused calls are logged per client at most once per this interval, with counts.</summary>
+    public DurationSetting RefusalLogInterval { get; set; } = TimeSpan.FromSeconds(10);
 }

@@ -67,12 +67,12 @@ internal sealed class SettingsValidator :
 
         if (options.SnapshotInterval < TimeSpan.FromSeconds(1))
         {
-            return Fail($"Persistence:SnapshotInterval is {options.SnapshotInterval}; it must be at least 1 second.");
+            return Fail($"Persistence:SnapshotInterval is {options.SnapshotInterval}; it must be at least 1s.");
         }
 
         if (options.LogSyncInterval < TimeSpan.Zero || options.LogSyncInterval > TimeSpan.FromSeconds(1))
         {
-            return Fail($"Persistence:LogSyncInterval is {options.LogSyncInterval}; it must lie between 0 and 1 second.");
+            return Fail($"Persistence:LogSyncInterval is {options.LogSyncInterval}; it must lie between 0s and 1s.");
         }
 
         if (options.SnapshotsKept < 1)
@@ -82,7 +82,7 @@ internal sealed class SettingsValidator :
 
         if (options.RollupInterval < TimeSpan.FromMilliseconds(100))
         {
-            return Fail($"Persistence:RollupInterval is {options.RollupInterval}; it must be at least 100 ms.");
+            return Fail($"Persistence:RollupInterval is {options.RollupInterval}; it must be at least 100ms.");
         }
 
         return ValidateOptionsResult.Success;
@@ -96,8 +96,23 @@ internal sealed class SettingsValidator :
             return Fail($"Server:MaxMessageBytes is {options.MaxMessageBytes}; it must be at least 1024.");
         }
 
-        return options.MaxSeriesSteps < 1
-            ? Fail($"Server:MaxSeriesSteps is {options.MaxSeriesSteps}; it must be at least 1.")
+        if (options.MaxIngestBytesHeld < options.MaxMessageBytes)
+        {
+            return Fail($"Server:MaxIngestBytesHeld is {options.MaxIngestBytesHeld}; it must be at least Server:MaxMessageBytes ({options.MaxMessageBytes}).");
+        }
+
+        if (options.WatchMaxLag < TimeSpan.FromSeconds(1))
+        {
+            return Fail($"Server:WatchMaxLag is {options.WatchMaxLag}; it must be at least 1s.");
+        }
+
+        if (options.RefusalLogInterval < TimeSpan.FromSeconds(1))
+        {
+            return Fail($"Server:RefusalLogInterval is {options.RefusalLogInterval}; it must be at least 1s.");
+        }
+
+        return options.MaxTimelineSteps < 1
+            ? Fail($"Server:MaxTimelineSteps is {options.MaxTimelineSteps}; it must be at least 1.")
             : ValidateOptionsResult.Success;
     }
 

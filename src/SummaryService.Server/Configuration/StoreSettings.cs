@@ -18,7 +18,7 @@ public sealed class StoreSettings
     /// <summary>Most series the store holds.</summary>
     public int MaxSeries { get; set; } = 100_000;
 
-    /// <summary>Most series one tenant (metric name up to its first '.') holds.</summary>
+    /// <summary>Most series one tenant holds: with API keys, each key's metric prefix is a tenant; otherwise (and for metrics under no prefix) the metric name up to its first '.'.</summary>
     public int MaxSeriesPerTenant { get; set; } = 20_000;
 
     /// <summary>Most labels on one series.</summary>
@@ -34,13 +34,13 @@ public sealed class StoreSettings
     public int MaxValuesPerBatch { get; set; } = 1_000_000;
 
     /// <summary>How far ahead of the server's clock a timestamp may lie.</summary>
-    public TimeSpan MaxFuture { get; set; } = TimeSpan.FromMinutes(5);
+    public DurationSetting MaxFuture { get; set; } = TimeSpan.FromMinutes(5);
 
     /// <summary>Approximate bytes all sketches may occupy.</summary>
     public long MemoryBudgetBytes { get; set; } = 2L << 30;
 
     /// <summary>How long a producer's highest applied sequence is remembered after its last batch.</summary>
-    public TimeSpan ProducerMarkRetention { get; set; } = TimeSpan.FromDays(7);
+    public DurationSetting ProducerMarkRetention { get; set; } = TimeSpan.FromDays(7);
 
     /// <summary>KLL top-level capacity of every bucket's sketch.</summary>
     public int SketchK { get; set; } = 200;
@@ -79,8 +79,8 @@ public sealed class StoreSettings
 public sealed class TierSettings
 {
     /// <summary>Width of each bucket.</summary>
-    public TimeSpan BucketWidth { get; set; }
+    public DurationSetting BucketWidth { get; set; }
 
     /// <summary>Age up to which buckets stay in this tier.</summary>
-    public TimeSpan Retention { get; set; }
+    public DurationSetting Retention { get; set; }
 }

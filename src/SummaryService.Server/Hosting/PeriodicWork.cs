@@ -1,3 +1,6 @@
+using SummaryService.Contract.Readable;
+using SummaryService.Store;
+
 namespace SummaryService.Server.Hosting;
 
 /// <summary>
@@ -27,9 +30,14 @@ public abstract class PeriodicWork(TimeProvider time, ILogger logger) : Backgrou
                 {
                     await RunOnceAsync(stoppingToken).ConfigureAwait(false);
                 }
+                catch (StorageUnavailableException ex)
+                {
+                    // The disk's trouble, already logged when it began: no stack trace every interval.
+                    logger.LogWarning("{Work} failed: {Reason}; trying again in {Interval}.", WorkName, ex.Message, DurationText.Format(Interval));
+                }
                 catch (Exception ex) when (ex is not OperationCanceledException)
                 {
-                    logger.LogError(ex, "{Work} failed; trying again in {Interval}.", WorkName, Interval);
+                    logger.LogError(ex, "{Work} failed; trying again in {Interval}.", WorkName, DurationText.Format(Interval));
                 }
             }
         }

@@ -1,3 +1,4 @@
+using Microsoft.Extensions.DependencyInjection.Extensions;
 using Microsoft.Extensions.Options;
 using OpenTelemetry;
 using OpenTelemetry.Metrics;
@@ -5,9 +6,11 @@ using OpenTelemetry.Resources;
 using OpenTelemetry.Trace;
 using SummaryService.Server.Auth;
 using SummaryService.Server.Configuration;
+using SummaryService.Server.Diagnostics;
 using SummaryService.Server.Services;
 using SummaryService.Server.Telemetry;
 using SummaryService.Server.Validation;
+using SummaryService.Store.Persistence;
 
 namespace SummaryService.Server.Hosting;
 
@@ -27,8 +30,12 @@ public static class ServiceRegistration
 
         services.AddSingleton(TimeProvider.System);
         services.AddSingleton<ServerMetrics>();
+        services.TryAddSingleton<IDataFiles, LocalDataFiles>();
         services.AddSingleton<StoreHost>();
         services.AddSingleton<ApiKeyRegistry>();
+        services.AddSingleton<RefusalLog>();
+        services.AddSingleton<IngestBudget>();
+        services.AddHostedService<RefusalLogFlush>();
         services.AddHostedService<StartupNotices>();
         services.AddHostedService<SnapshotService>();
         services.AddHostedService<RollupService>();
@@ -38,8 +45,9 @@ public static class ServiceRegistration
         {
             options.MaxReceiveMessageSize = maxMessage;
             options.MaxSendMessageSize = maxMessage;
-            options.Interceptors.Add<ApiKeyInterceptor>();
+            // Outermost first: every status, the key check's included, leaves through the error mapping.
             options.Interceptors.Add<ErrorMappingInterceptor>();
+            options.Interceptors.Add<ApiKeyInterceptor>();
         }).AddJsonTranscoding(); // the google.api.http routes of the contract: JSON over HTTP/1.1 through the same interceptors
         services.AddGrpcReflection();
         services.AddGrpcHealthChecks().AddCheck<StoreHealthCheck>("store");
@@ -60,6 +68,8 @@ public static class ServiceRegistration
     public static WebApplication MapSummaryService(this WebApplication app)
     {
         ArgumentNullException.ThrowIfNull(app);
+        app.UseMiddleware<CallOutcomeLogging>();
+        app.UseMiddleware<JsonRequestChecking>();
         app.MapGrpcService<IngestService>();
         app.MapGrpcService<QueryService>();
         app.MapGrpcService<AdminService>();

@@ -16,12 +16,18 @@ public sealed class StoreHost : IAsyncDisposable
     private readonly PersistentSeriesStore? _persistent;
 
     /// <summary>Opens the configured store.</summary>
-    public StoreHost(IOptions<StoreSettings> store, IOptions<PersistenceSettings> persistence, TimeProvider time, ServerMetrics metrics, ILogger<StoreHost> logger)
+    public StoreHost(IOptions<StoreSettings> store, IOptions<PersistenceSettings> persistence, IOptions<AuthSettings> auth, IDataFiles files, TimeProvider time, ServerMetrics metrics, ILogger<StoreHost> logger)
     {
         ArgumentNullException.ThrowIfNull(store);
         ArgumentNullException.ThrowIfNull(persistence);
+        ArgumentNullException.ThrowIfNull(auth);
         ArgumentNullException.ThrowIfNull(metrics);
-        StoreOptions options = store.Value.ToStoreOptions();
+
+        // With keys configured, a key's metric prefixes are the tenants whose series are counted together.
+        StoreOptions options = store.Value.ToStoreOptions() with
+        {
+            TenantPrefixes = auth.Value.Enabled ? auth.Value.Keys.SelectMany(k => k.Prefixes).Where(p => p.Length > 0).Distinct(StringComparer.Ordinal).ToArray() : [],
+        };
         Durability = persistence.Value.Durability;
         if (Durability == DurabilityMode.None)
         {
@@ -30,7 +36,7 @@ public sealed class StoreHost : IAsyncDisposable
         }
         else
         {
-            _persistent = PersistentSeriesStore.Open(options, persistence.Value.ToPersistenceOptions(), time, logger, metrics.LogSynced);
+            _persistent = PersistentSeriesStore.Open(options, persistence.Value.ToPersistenceOptions(), time, logger, metrics.LogSynced, files);
             _persistent.SnapshotObserved = metrics.SnapshotTaken;
             Store = _persistent;
         }
@@ -44,6 +50,12 @@ public sealed class StoreHost : IAsyncDisposable
 
     /// <summary>The store every service uses.</summary>
     public ISeriesStore Store { get; }
+
+    /// <summary>Why writes are refused now (the data directory cannot be written), or null; while set, health reports not serving.</summary>
+    public string? WriteTrouble => _persistent?.WriteTrouble;
+
+    /// <summary>Why the last snapshot failed, or null; health then reports degraded.</summary>
+    public string? SnapshotTrouble => _persistent?.SnapshotTrouble;
 
     /// <summary>Durability mode in force.</summary>
     public DurabilityMode Durability { get; }

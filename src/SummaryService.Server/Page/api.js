@@ -17,9 +17,9 @@ const Api = {
     }
     return json;
   },
-  listSeries() { return Api.call("GET", "/v1/admin/series"); },
-  series(metric, windowSeconds, stepSeconds, quantiles) {
-    return Api.call("POST", "/v1/series", { selector: { metric }, window: { last: windowSeconds + "s" }, step: stepSeconds + "s", quantiles });
+  catalogue() { return Api.call("GET", "/v1/catalogue"); },
+  timeline(metric, windowSeconds, stepSeconds, quantiles) {
+    return Api.call("POST", "/v1/timeline", { selector: { metric }, window: { last: windowSeconds + "s" }, step: stepSeconds + "s", quantiles });
   },
   summarize(metric, windowSeconds, quantiles, bins) {
     return Api.call("POST", "/v1/summarize", { selector: { metric }, window: { last: windowSeconds + "s" }, quantiles, histogram: { binCount: bins } });

@@ -26,7 +26,7 @@ function fillFigures(tbody, summary) {
   // Mean, min and max come from exact moments; only the mean has a sampling interval.
   row("mean", summary.mean, summary.meanLow, summary.meanHigh, false);
   for (const q of summary.quantiles || []) {
-    row("p" + Math.round(q.q * 100), q.value, q.low, q.high, exact, boundName(q.lowSource, q.highSource));
+    row(percentileName(q.q), q.value, q.low, q.high, exact, boundName(q.lowSource, q.highSource));
   }
   row("min", summary.min, undefined, undefined, true);
   row("max", summary.max, undefined, undefined, true);

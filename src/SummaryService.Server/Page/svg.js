@@ -29,6 +29,13 @@ function formatNumber(v) {
   return Number(v.toPrecision(4)).toString();
 }
 
+// A percentile's name from its probability: p50, p99, p99.9, p99.99 (never rounded up to p100).
+function percentileName(q) {
+  if (q === 0) return "min";
+  if (q === 1) return "max";
+  return "p" + Number((q * 100).toFixed(6)).toString();
+}
+
 // Axis labels at the two ends align inwards so they stay inside the drawing.
 function edgeAnchor(i, last) {
   return i === 0 ? "start" : i === last ? "end" : "middle";

@@ -15,7 +15,8 @@ namespace SummaryService.Server.Services;
 /// Ingest RPCs. Each batch is checked for access, then handed to the store, which validates it
 /// whole; so a refused batch, for whatever reason, changes nothing.
 /// </summary>
-public sealed class IngestService(StoreHost host, ServerMetrics metrics, IHostApplicationLifetime lifetime) : Ingest.IngestBase
+[BindServiceMethod(typeof(DecodeCheckedBinding<Ingest.IngestBase>), nameof(DecodeCheckedBinding<Ingest.IngestBase>.BindService))]
+public sealed class IngestService(StoreHost host, ServerMetrics metrics, IHostApplicationLifetime lifetime, IngestBudget budget) : Ingest.IngestBase
 {
     /// <summary>Applied batches a stream may hold unanswered while their log group commits.</summary>
     internal const int MaxUnansweredBatches = 32;
@@ -29,7 +30,7 @@ public sealed class IngestService(StoreHost host, ServerMetrics metrics, IHostAp
         ArgumentNullException.ThrowIfNull(request);
         ArgumentNullException.ThrowIfNull(context);
         CallerAccess.Of(context).Require(Scope.Write, request.Metric, "metric");
-        return ApplyAsync(request, context.CancellationToken);
+        return WithinBudgetAsync(request.CalculateSize(), () => ApplyAsync(request, context.CancellationToken));
     }
 
     /// <summary>
@@ -65,7 +66,9 @@ public sealed class IngestService(StoreHost host, ServerMetrics metrics, IHostAp
             {
                 await foreach (Batch batch in requestStream.ReadAllAsync(reading.Token).ConfigureAwait(false))
                 {
-                    await unanswered.Writer.WriteAsync(StartBatch(batch, access, context.CancellationToken), context.CancellationToken).ConfigureAwait(false);
+                    int bytes = batch.CalculateSize();
+                    await budget.TakeAsync(bytes, reading.Token).ConfigureAwait(false);
+                    await unanswered.Writer.WriteAsync(HeldUntilAnsweredAsync(StartBatch(batch, access, context.CancellationToken), bytes), context.CancellationToken).ConfigureAwait(false);
                 }
             }
             catch (OperationCanceledException) when (lifetime.ApplicationStopping.IsCancellationRequested && !context.CancellationToken.IsCancellationRequested)
@@ -119,6 +122,37 @@ public sealed class IngestService(StoreHost host, ServerMetrics metrics, IHostAp
         return ReplyOrErrorAsync(batch, cancellationToken);
     }
 
+    private async Task<PushReply> HeldUntilAnsweredAsync(Task<PushReply> reply, long bytes)
+    {
+        try
+        {
+            return await reply.ConfigureAwait(false);
+        }
+        finally
+        {
+            budget.Give(bytes);
+        }
+    }
+
+    // A unary push is refused at once when the server already holds its budget of unanswered batches.
+    private async Task<PushReply> WithinBudgetAsync(long bytes, Func<Task<PushReply>> apply)
+    {
+        if (!budget.TryTake(bytes))
+        {
+            metrics.BatchRejected("Overload");
+            throw new RpcException(new Status(StatusCode.ResourceExhausted, $"the server holds {budget.Held} bytes of batches not yet answered, its limit (Server:MaxIngestBytesHeld); send this one again after a short wait."));
+        }
+
+        try
+        {
+            return await apply().ConfigureAwait(false);
+        }
+        finally
+        {
+            budget.Give(bytes);
+        }
+    }
+
     private async Task<PushReply> ReplyOrErrorAsync(Batch batch, CancellationToken cancellationToken)
     {
         try
@@ -151,11 +185,16 @@ public sealed class IngestService(StoreHost host, ServerMetrics metrics, IHostAp
     }
 
     /// <inheritdoc/>
-    public override async Task<PushReply> PushSketch(Contract.V1.SketchUpload request, ServerCallContext context)
+    public override Task<PushReply> PushSketch(Contract.V1.SketchUpload request, ServerCallContext context)
     {
         ArgumentNullException.ThrowIfNull(request);
         ArgumentNullException.ThrowIfNull(context);
         CallerAccess.Of(context).Require(Scope.Write, request.Metric, "metric");
+        return WithinBudgetAsync(request.CalculateSize(), () => MergeAsync(request, context.CancellationToken));
+    }
+
+    private async Task<PushReply> MergeAsync(Contract.V1.SketchUpload request, CancellationToken cancellationToken)
+    {
         Store.SketchUpload upload;
         try
         {
@@ -169,7 +208,7 @@ public sealed class IngestService(StoreHost host, ServerMetrics metrics, IHostAp
 
         try
         {
-            AppendResult result = await host.Store.MergeSketchAsync(upload, context.CancellationToken).ConfigureAwait(false);
+            AppendResult result = await host.Store.MergeSketchAsync(upload, cancellationToken).ConfigureAwait(false);
             metrics.ValuesIngested(result.Accepted);
             return new PushReply { Sequence = request.Sequence, Accepted = (ulong)result.Accepted, Duplicate = result.Duplicate };
         }
@@ -192,6 +231,11 @@ public sealed class IngestService(StoreHost host, ServerMetrics metrics, IHostAp
         catch (StoreRejectedException ex)
         {
             metrics.BatchRejected(ex.Reason.ToString());
+            throw;
+        }
+        catch (StorageUnavailableException)
+        {
+            metrics.BatchRejected("StorageUnavailable");
             throw;
         }
     }

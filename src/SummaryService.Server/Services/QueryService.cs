@@ -1,5 +1,6 @@
 using Grpc.Core;
 using Microsoft.Extensions.Options;
+using SummaryService.Contract.Readable;
 using SummaryService.Contract.V1;
 using SummaryService.Server.Auth;
 using SummaryService.Server.Configuration;
@@ -14,7 +15,8 @@ using StoreTimeRange = SummaryService.Store.TimeRange;
 namespace SummaryService.Server.Services;
 
 /// <summary>Query RPCs: every request is validated field by field before the store is read; reads never change stored data.</summary>
-public sealed class QueryService(StoreHost host, ServerMetrics metrics, TimeProvider time, IOptions<ServerSettings> settings, IHostApplicationLifetime lifetime) : Query.QueryBase
+[BindServiceMethod(typeof(DecodeCheckedBinding<Query.QueryBase>), nameof(DecodeCheckedBinding<Query.QueryBase>.BindService))]
+public sealed partial class QueryService(StoreHost host, ServerMetrics metrics, TimeProvider time, IOptions<ServerSettings> settings, IHostApplicationLifetime lifetime) : Query.QueryBase
 {
     private static readonly double[] DefaultCompareQuantiles = [0.5, 0.9, 0.99];
 
@@ -37,7 +39,7 @@ public sealed class QueryService(StoreHost host, ServerMetrics metrics, TimeProv
     /// One summary per step, oldest first. Each step is widened to whole buckets like any window, so
     /// steps narrower than the bucket width report a covered span wider than the step.
     /// </summary>
-    public override Task<SeriesReply> Series(SeriesRequest request, ServerCallContext context)
+    public override Task<TimelineReply> Timeline(TimelineRequest request, ServerCallContext context)
     {
         ArgumentNullException.ThrowIfNull(request);
         ArgumentNullException.ThrowIfNull(context);
@@ -47,49 +49,52 @@ public sealed class QueryService(StoreHost host, ServerMetrics metrics, TimeProv
         StoreTimeRange window = QueryRequests.WindowOf(request.Window, "window", NowMs());
         if (request.Step is null)
         {
-            throw RpcErrors.Invalid("step", "step is missing; give the width of each point.");
+            throw RpcErrors.Invalid("step", "step is missing; give the width of each step.");
         }
 
         long step = (long)QueryRequests.DurationOf(request.Step, "step").TotalMilliseconds;
         if (step < 1)
         {
-            throw RpcErrors.Invalid("step", $"step is {request.Step.ToTimeSpan()}; it must be at least 1 ms.");
+            throw RpcErrors.Invalid("step", $"step is {DurationText.Format(request.Step.ToTimeSpan())}; it must be at least 1ms.");
         }
 
-        long steps = (window.Length + step - 1) / step;
-        if (steps > settings.Value.MaxSeriesSteps)
+        // In 128 bits: a window from near the start of 64-bit time to now is longer than a long holds.
+        Int128 length = (Int128)window.ToUnixMs - window.FromUnixMs;
+        Int128 steps = (length + step - 1) / step;
+        if (steps > settings.Value.MaxTimelineSteps)
         {
-            throw RpcErrors.Invalid("step", $"step {request.Step.ToTimeSpan()} cuts the window into {steps} points; at most {settings.Value.MaxSeriesSteps} are allowed.");
+            throw RpcErrors.Invalid("step", $"step {DurationText.Format(request.Step.ToTimeSpan())} cuts the window of {QueryRequests.LengthText(length)} into {steps} steps; at most {settings.Value.MaxTimelineSteps} are allowed.");
         }
 
         var groupBy = GroupByOf(request.GroupBy);
         SummaryOptions options = QueryRequests.OptionsOf(request.Quantiles, request.Confidence, [], 0, null);
         var answers = host.Store.SummarizeSteps(selector, window, step, groupBy, options);
         SelectionCheck.Require(answers[0], selector, groupBy, "selector");
-        var reply = new SeriesReply();
+        var reply = new TimelineReply();
         for (int i = 0; i < answers.Count; i++)
         {
             long from = window.FromUnixMs + (i * step);
             var range = new StoreTimeRange(from, Math.Min(from + step, window.ToUnixMs));
-            var point = new SeriesPoint { Step = SummaryMapping.ToProto(range), Covered = SummaryMapping.ToProto(answers[i].Covered) };
+            var entry = new TimelineStep { Step = SummaryMapping.ToProto(range), Covered = SummaryMapping.ToProto(answers[i].Covered) };
             foreach (Store.GroupSummary group in answers[i].Groups)
             {
                 if (group.Summary.Count > 0)
                 {
-                    point.Groups.Add(SummaryMapping.ToProto(group));
+                    entry.Groups.Add(SummaryMapping.ToProto(group));
                 }
             }
 
-            reply.Points.Add(point);
+            reply.Steps.Add(entry);
         }
 
-        metrics.QueryAnswered(nameof(Series), ServerMetrics.Since(time, started));
+        metrics.QueryAnswered(nameof(Timeline), ServerMetrics.Since(time, started));
         return Task.FromResult(reply);
     }
 
     /// <summary>
     /// Pushes the trailing-window summary at once and then every interval, until the caller cancels,
-    /// <c>max_updates</c> is reached, or the host stops (the stream then ends cleanly).
+    /// <c>max_updates</c> is reached, or the host stops (the stream then ends cleanly). A caller that
+    /// takes no update for <c>Server:WatchMaxLag</c> is cut off with ResourceExhausted.
     /// </summary>
     public override async Task Watch(WatchRequest request, IServerStreamWriter<SummarizeReply> responseStream, ServerCallContext context)
     {
@@ -112,7 +117,7 @@ public sealed class QueryService(StoreHost host, ServerMetrics metrics, TimeProv
 
         if (interval < TimeSpan.FromMilliseconds(100))
         {
-            throw RpcErrors.Invalid("interval", $"interval is {interval}; it must be at least 100 ms.");
+            throw RpcErrors.Invalid("interval", $"interval is {DurationText.Format(interval)}; it must be at least 100ms.");
         }
 
         using var stop = CancellationTokenSource.CreateLinkedTokenSource(context.CancellationToken, lifetime.ApplicationStopping);
@@ -126,7 +131,7 @@ public sealed class QueryService(StoreHost host, ServerMetrics metrics, TimeProv
                 StoreTimeRange window = QueryRequests.WindowOf(query.Window, "query.window", NowMs());
                 SummarizeReply reply = SummaryMapping.ToProto(host.Store.Summarize(selector, window, groupBy, options));
                 metrics.QueryAnswered(nameof(Watch), ServerMetrics.Since(time, started));
-                await responseStream.WriteAsync(reply, stop.Token).ConfigureAwait(false);
+                await SlowReaders.WriteOrCutOffAsync(responseStream, reply, settings.Value.WatchMaxLag, time, stop.Token).ConfigureAwait(false);
                 sent++;
             }
             while ((request.MaxUpdates == 0 || sent < request.MaxUpdates) && await timer.WaitForNextTickAsync(stop.Token).ConfigureAwait(false));

@@ -49,8 +49,11 @@ public sealed class ServerMetrics
     /// <summary>Records a log fsync's duration.</summary>
     public void LogSynced(TimeSpan elapsed) => _logSyncSeconds.Record(elapsed.TotalSeconds);
 
-    /// <summary>Records a query's duration.</summary>
-    public void QueryAnswered(string rpc, TimeSpan elapsed) => _querySeconds.Record(elapsed.TotalSeconds, new KeyValuePair<string, object?>("rpc", rpc));
+    /// <summary>Attribute naming the RPC, the OpenTelemetry semantic-convention key (<c>rpc.method</c>).</summary>
+    public const string RpcMethodAttribute = "rpc.method";
+
+    /// <summary>Records a query's duration under the RPC's method name.</summary>
+    public void QueryAnswered(string method, TimeSpan elapsed) => _querySeconds.Record(elapsed.TotalSeconds, new KeyValuePair<string, object?>(RpcMethodAttribute, method));
 
     /// <summary>Registers the series and bucket gauges, read from the store's figures when collected.</summary>
     public void ObserveStore(Func<(long Series, long Buckets)> figures)

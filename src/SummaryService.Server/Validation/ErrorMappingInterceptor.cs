@@ -1,15 +1,18 @@
 using Grpc.Core;
 using Grpc.Core.Interceptors;
+using SummaryService.Server.Diagnostics;
 using SummaryService.Sketches.Serialization;
 using SummaryService.Store;
 
 namespace SummaryService.Server.Validation;
 
 /// <summary>
-/// Turns store refusals and malformed sketches thrown anywhere in a handler into the gRPC status
-/// of <see cref="RpcErrors"/>, so services only throw and never build statuses for store errors.
+/// The one place where anything a handler throws becomes a status: store refusals and malformed
+/// sketches become the statuses of <see cref="RpcErrors"/>, every status leaves with text made safe
+/// by <see cref="WireText"/>, and anything else — a server defect — becomes Internal, its stack
+/// trace logged the first time that kind of failure happens rather than once per call.
 /// </summary>
-public sealed class ErrorMappingInterceptor : Interceptor
+public sealed class ErrorMappingInterceptor(RefusalLog refusals, ILogger<ErrorMappingInterceptor> logger) : Interceptor
 {
     /// <inheritdoc/>
     public override async Task<TResponse> UnaryServerHandler<TRequest, TResponse>(TRequest request, ServerCallContext context, UnaryServerMethod<TRequest, TResponse> continuation)
@@ -18,13 +21,22 @@ public sealed class ErrorMappingInterceptor : Interceptor
         {
             return await continuation(request, context).ConfigureAwait(false);
         }
-        catch (StoreRejectedException ex)
+        catch (Exception ex) when (Mapped(ex, context) is { } status)
         {
-            throw RpcErrors.From(ex);
+            throw status;
         }
-        catch (SketchFormatException ex)
+    }
+
+    /// <inheritdoc/>
+    public override async Task<TResponse> ClientStreamingServerHandler<TRequest, TResponse>(IAsyncStreamReader<TRequest> requestStream, ServerCallContext context, ClientStreamingServerMethod<TRequest, TResponse> continuation)
+    {
+        try
         {
-            throw RpcErrors.From(ex);
+            return await continuation(requestStream, context).ConfigureAwait(false);
+        }
+        catch (Exception ex) when (Mapped(ex, context) is { } status)
+        {
+            throw status;
         }
     }
 
@@ -35,9 +47,9 @@ public sealed class ErrorMappingInterceptor : Interceptor
         {
             await continuation(request, responseStream, context).ConfigureAwait(false);
         }
-        catch (StoreRejectedException ex)
+        catch (Exception ex) when (Mapped(ex, context) is { } status)
         {
-            throw RpcErrors.From(ex);
+            throw status;
         }
     }
 
@@ -48,9 +60,45 @@ public sealed class ErrorMappingInterceptor : Interceptor
         {
             await continuation(requestStream, responseStream, context).ConfigureAwait(false);
         }
-        catch (StoreRejectedException ex)
+        catch (Exception ex) when (Mapped(ex, context) is { } status)
         {
-            throw RpcErrors.From(ex);
+            throw status;
+        }
+    }
+
+    // Null leaves the exception as it is: a cancelled call ends as the framework reports it.
+    private RpcException? Mapped(Exception exception, ServerCallContext context)
+    {
+        RpcException? status = StatusOf(exception, context);
+        if (status is not null)
+        {
+            context.UserState[RefusalLog.DetailItem] = status.Status.Detail;
+        }
+
+        return status;
+    }
+
+    private RpcException? StatusOf(Exception exception, ServerCallContext context)
+    {
+        switch (exception)
+        {
+            case RpcException status:
+                return WireText.Safe(status);
+            case StoreRejectedException rejection:
+                return RpcErrors.From(rejection);
+            case SketchFormatException malformed:
+                return RpcErrors.From(malformed);
+            case StorageUnavailableException unavailable:
+                return new RpcException(new Status(StatusCode.Unavailable, WireText.Message(unavailable.Message)));
+            case OperationCanceledException when context.CancellationToken.IsCancellationRequested:
+                return null;
+            default:
+                if (refusals.FirstFailure(context.Method, exception))
+                {
+                    logger.LogError(exception, "{Method} failed; later failures of this kind are counted in the refusal summaries, not logged one by one.", context.Method);
+                }
+
+                return new RpcException(new Status(StatusCode.Internal, WireText.Message($"{context.Method} failed inside the server ({exception.GetType().Name}); the server log has the details.")));
         }
     }
 }

@@ -1,3 +1,4 @@
+using SummaryService.Contract.Readable;
 using SummaryService.Contract.V1;
 using SummaryService.Sketches.Summaries;
 using StoreSelector = SummaryService.Store.Selector;
@@ -19,7 +20,7 @@ public static class QueryRequests
             throw RpcErrors.Invalid($"{field}.metric", $"{field}.metric is empty; name the metric to read.");
         }
 
-        return new StoreSelector(selector.Metric, new Dictionary<string, string>(selector.MatchLabels, StringComparer.Ordinal));
+        return new StoreSelector(selector.Metric, new Dictionary<string, string>(selector.LabelEquals, StringComparer.Ordinal));
     }
 
     /// <summary>The window as a half-open range, measuring <c>last</c> back from <paramref name="nowMs"/>.</summary>
@@ -31,7 +32,7 @@ public static class QueryRequests
                 var range = window.Range;
                 if (range.FromUnixMs >= range.ToUnixMs)
                 {
-                    throw RpcErrors.Invalid($"{field}.range", $"{field}.range from_unix_ms {range.FromUnixMs} is not before to_unix_ms {range.ToUnixMs}; windows are half-open [from, to).");
+                    throw RpcErrors.Invalid($"{field}.range", $"{field}.range from_unix_ms {TimeText.IsoAndUnixMs(range.FromUnixMs)} is not before to_unix_ms {TimeText.IsoAndUnixMs(range.ToUnixMs)}; windows are half-open [from, to).");
                 }
 
                 return new StoreTimeRange(range.FromUnixMs, range.ToUnixMs);
@@ -39,7 +40,7 @@ public static class QueryRequests
                 TimeSpan last = DurationOf(window.Last, $"{field}.last");
                 if (last <= TimeSpan.Zero)
                 {
-                    throw RpcErrors.Invalid($"{field}.last", $"{field}.last is {last}; it must be positive.");
+                    throw RpcErrors.Invalid($"{field}.last", $"{field}.last is {DurationText.Format(last)}; it must be positive.");
                 }
 
                 return new StoreTimeRange(nowMs - (long)last.TotalMilliseconds, nowMs);
@@ -48,13 +49,20 @@ public static class QueryRequests
         }
     }
 
+    /// <summary>A length in milliseconds in the shared duration syntax, or in plain milliseconds past what a duration holds.</summary>
+    public static string LengthText(Int128 milliseconds) =>
+        milliseconds >= 0 && milliseconds <= TimeSpan.MaxValue.Ticks / TimeSpan.TicksPerMillisecond
+            ? DurationText.Format(TimeSpan.FromMilliseconds((long)milliseconds))
+            : $"{milliseconds} ms";
+
     /// <summary>A duration that must be a valid protobuf duration.</summary>
     public static TimeSpan DurationOf(Google.Protobuf.WellKnownTypes.Duration duration, string field)
     {
         ArgumentNullException.ThrowIfNull(duration);
-        if (duration.Seconds is < -315_576_000_000 or > 315_576_000_000 || duration.Nanos is <= -1_000_000_000 or >= 1_000_000_000)
+        // The protobuf rules: both parts in range and of one sign (ToTimeSpan throws otherwise).
+        if (duration.Seconds is < -315_576_000_000 or > 315_576_000_000 || duration.Nanos is <= -1_000_000_000 or >= 1_000_000_000 || Math.Sign(duration.Seconds) * Math.Sign(duration.Nanos) == -1)
         {
-            throw RpcErrors.Invalid(field, $"{field} ({duration.Seconds} s, {duration.Nanos} ns) is not a valid duration.");
+            throw RpcErrors.Invalid(field, $"{field} ({duration.Seconds} s, {duration.Nanos} ns) is not a valid duration: seconds and nanos must lie in range and share one sign.");
         }
 
         return duration.ToTimeSpan();

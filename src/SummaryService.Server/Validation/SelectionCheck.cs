@@ -23,8 +23,7 @@ public static class SelectionCheck
         ArgumentNullException.ThrowIfNull(groupBy);
         if (answer.Groups.Count == 0)
         {
-            string labels = string.Join(", ", selector.MatchLabels.Select(l => $"{l.Key}={l.Value}"));
-            throw RpcErrors.NotFound(field, $"no series of metric '{selector.Metric}' matches {(labels.Length == 0 ? "the selector" : $"labels {labels}")}.");
+            throw RpcErrors.NotFound(field, $"no series matches {selector}.");
         }
 
         for (int i = 0; i < groupBy.Count; i++)
@@ -40,7 +39,7 @@ public static class SelectionCheck
 
             if (!carried)
             {
-                throw RpcErrors.Invalid($"group_by[{i}]", $"group_by[{i}] is '{name}', a label none of the {matched} matched series of '{selector.Metric}' carries.");
+                throw RpcErrors.Invalid($"group_by[{i}]", $"group_by[{i}] is '{name}', a label none of the {matched} series matching {selector} carries.");
             }
         }
     }

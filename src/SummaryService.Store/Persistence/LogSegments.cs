@@ -35,7 +35,18 @@ internal static class LogSegments
         var records = new List<LogRecord>();
         foreach (var (_, path) in List(directory))
         {
-            byte[] bytes = File.ReadAllBytes(path);
+            byte[] bytes;
+            try
+            {
+                bytes = File.ReadAllBytes(path);
+            }
+            catch (Exception ex) when (ex is IOException or UnauthorizedAccessException)
+            {
+                report.Warnings.Add($"{Path.GetFileName(path)}: unreadable ({ex.Message}); its records are lost");
+                logger.LogWarning("Write-ahead log segment {Segment} is unreadable and skipped: {Reason}", path, ex.Message);
+                continue;
+            }
+
             var payloads = RecordFraming.ReadAll(bytes, out long good, out string? stop);
             int parsed = 0;
             foreach (var payload in payloads)

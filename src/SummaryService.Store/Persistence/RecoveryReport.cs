@@ -6,6 +6,9 @@ public sealed class RecoveryReport
     /// <summary>Generation of the snapshot loaded, or null when none was usable.</summary>
     public ulong? SnapshotGeneration { get; set; }
 
+    /// <summary>True when no generation was whole and the loaded one is the valid part of a damaged one (the warnings say what was lost).</summary>
+    public bool SnapshotSalvaged { get; set; }
+
     /// <summary>Series and buckets read from the snapshot.</summary>
     public int SnapshotSeries { get; set; }
 
@@ -24,6 +27,9 @@ public sealed class RecoveryReport
     /// <inheritdoc cref="LogRecordsRead"/>
     public int LogRecordsAlreadyInSnapshot { get; set; }
 
+    /// <summary>Log records whose frame checked out but whose content could not be applied; skipped.</summary>
+    public int LogRecordsUnusable { get; set; }
+
     /// <summary>Values in replayed records that had aged past retention and were dropped.</summary>
     public long ValuesPastRetention { get; set; }
 
@@ -35,6 +41,6 @@ public sealed class RecoveryReport
 
     /// <inheritdoc/>
     public override string ToString() =>
-        $"snapshot {(SnapshotGeneration?.ToString() ?? "none")} ({SnapshotSeries} series, {SnapshotBuckets} buckets; {SnapshotsRejected.Count} rejected), " +
-        $"log {LogRecordsRead} records read, {LogRecordsReplayed} replayed, {LogRecordsAlreadyInSnapshot} already in snapshot, {LogBytesCut} bytes cut, {ValuesPastRetention} values past retention";
+        $"snapshot {(SnapshotGeneration?.ToString() ?? "none")}{(SnapshotSalvaged ? " (salvaged in part)" : "")} ({SnapshotSeries} series, {SnapshotBuckets} buckets; {SnapshotsRejected.Count} rejected), " +
+        $"log {LogRecordsRead} records read, {LogRecordsReplayed} replayed, {LogRecordsAlreadyInSnapshot} already in snapshot, {LogRecordsUnusable} unusable, {LogBytesCut} bytes cut, {ValuesPastRetention} values past retention";
 }

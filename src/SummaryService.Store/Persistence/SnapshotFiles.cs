@@ -74,9 +74,9 @@ internal static class SnapshotFiles
                     return false;
                 }
 
+                // A file cut just after a series record must not pass for whole: its last record is then no footer.
                 var header = ShardHeader.Parser.ParseFrom(records[0].Span);
-                var footer = ShardFooter.Parser.ParseFrom(records[^1].Span);
-                if (header.FormatVersion != manifest.FormatVersion || header.Shard != shard || header.Generation != manifest.Generation || footer.Series != (ulong)(records.Count - 2))
+                if (header.FormatVersion != manifest.FormatVersion || header.Shard != shard || header.Generation != manifest.Generation || !TryFooter(records[^1], out ulong footerSeries) || footerSeries != (ulong)(records.Count - 2))
                 {
                     problem = $"{Path.GetFileName(file)}: header or footer does not match the manifest";
                     return false;
@@ -93,9 +93,125 @@ internal static class SnapshotFiles
             problem = $"unparseable record: {ex.Message}";
             return false;
         }
-        catch (IOException ex)
+        catch (Exception ex) when (ex is IOException or UnauthorizedAccessException)
         {
             problem = ex.Message;
+            return false;
+        }
+    }
+
+    /// <summary>
+    /// What can still be read from a damaged generation, the last resort when no generation is
+    /// whole: the manifest must be intact; of each shard file, the records before the first damaged
+    /// one (a file with a damaged header yields nothing). Every loss goes into <paramref name="dropped"/>.
+    /// </summary>
+    public static bool TrySalvage(string directory, out SnapshotManifest? manifest, out List<(ShardHeader Header, List<SeriesRecord> Series)> shards, List<string> dropped)
+    {
+        shards = [];
+        manifest = null;
+        try
+        {
+            var manifestRecords = ReadRecords(Path.Combine(directory, ManifestName), out string? problem);
+            if (problem is not null || manifestRecords.Count != 1)
+            {
+                dropped.Add($"manifest unusable ({problem ?? $"{manifestRecords.Count} records"}): nothing can be salvaged");
+                return false;
+            }
+
+            manifest = SnapshotManifest.Parser.ParseFrom(manifestRecords[0].Span);
+            if (!CanRead(manifest.FormatVersion) || manifest.ShardCount == 0 || manifest.ShardLsns.Count != manifest.ShardCount)
+            {
+                dropped.Add($"manifest has format version {manifest.FormatVersion} and {manifest.ShardLsns.Count} shard marks for {manifest.ShardCount} shards: nothing can be salvaged");
+                return false;
+            }
+        }
+        catch (Exception ex) when (ex is InvalidProtocolBufferException or IOException or UnauthorizedAccessException)
+        {
+            dropped.Add($"manifest unreadable ({ex.Message}): nothing can be salvaged");
+            return false;
+        }
+
+        for (int shard = 0; shard < manifest.ShardCount; shard++)
+        {
+            if (SalvageShard(Path.Combine(directory, ShardFileName(shard)), shard, manifest.Generation, manifest.FormatVersion, dropped) is { } salvaged)
+            {
+                shards.Add(salvaged);
+            }
+        }
+
+        return true;
+    }
+
+    private static (ShardHeader Header, List<SeriesRecord> Series)? SalvageShard(string file, int shard, ulong generation, uint manifestVersion, List<string> dropped)
+    {
+        string name = Path.GetFileName(file);
+        try
+        {
+            if (!File.Exists(file))
+            {
+                dropped.Add($"{name}: missing, its series are lost");
+                return null;
+            }
+
+            byte[] bytes = File.ReadAllBytes(file);
+            var records = RecordFraming.ReadAll(bytes, out long good, out string? stop);
+            if (records.Count == 0 || ShardHeader.Parser.ParseFrom(records[0].Span) is not { } header || header.FormatVersion != manifestVersion || header.Shard != shard || header.Generation != generation)
+            {
+                dropped.Add($"{name}: header unusable ({stop ?? "it does not match the manifest"}), all {bytes.Length} bytes dropped");
+                return null;
+            }
+
+            var series = new List<SeriesRecord>();
+            bool complete = false;
+            for (int i = 1; i < records.Count; i++)
+            {
+                if (i == records.Count - 1 && stop is null && TryFooter(records[i], out ulong count) && count == (ulong)series.Count)
+                {
+                    complete = true;
+                    break;
+                }
+
+                try
+                {
+                    series.Add(SeriesRecord.Parser.ParseFrom(records[i].Span));
+                }
+                catch (InvalidProtocolBufferException ex)
+                {
+                    stop = $"unparseable series record {i}: {ex.Message}";
+                    break;
+                }
+            }
+
+            if (!complete)
+            {
+                dropped.Add($"{name}: kept {series.Count} series; the rest is lost ({stop ?? "no footer"}; {bytes.Length - good} bytes after byte {good} unreadable)");
+            }
+
+            return (header, series);
+        }
+        catch (Exception ex) when (ex is InvalidProtocolBufferException or IOException or UnauthorizedAccessException)
+        {
+            dropped.Add($"{name}: unreadable ({ex.Message}), its series are lost");
+            return null;
+        }
+    }
+
+    // A footer is empty (no series) or starts with its count's tag; a series record starts with its metric's.
+    private static bool TryFooter(ReadOnlyMemory<byte> record, out ulong count)
+    {
+        count = 0;
+        if (!record.IsEmpty && record.Span[0] != 0x08)
+        {
+            return false;
+        }
+
+        try
+        {
+            count = ShardFooter.Parser.ParseFrom(record.Span).Series;
+            return true;
+        }
+        catch (InvalidProtocolBufferException)
+        {
             return false;
         }
     }

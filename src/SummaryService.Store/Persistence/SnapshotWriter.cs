@@ -13,10 +13,12 @@ internal sealed class SnapshotWriter : IDisposable
 {
     private readonly string _final;
     private readonly string _temp;
+    private readonly IDataFiles _files;
     private bool _completed;
 
-    private SnapshotWriter(string root, ulong generation)
+    private SnapshotWriter(string root, ulong generation, IDataFiles files)
     {
+        _files = files;
         _final = Path.Combine(root, $"{generation:D20}");
         _temp = _final + ".tmp";
         if (Directory.Exists(_temp))
@@ -28,7 +30,7 @@ internal sealed class SnapshotWriter : IDisposable
     }
 
     /// <summary>Starts generation <paramref name="generation"/> under <paramref name="root"/>.</summary>
-    public static SnapshotWriter Begin(string root, ulong generation) => new(root, generation);
+    public static SnapshotWriter Begin(string root, ulong generation, IDataFiles files) => new(root, generation, files);
 
     /// <summary>Writes one shard's file: header, one framed record per series (serialized <c>SeriesRecord</c>s), footer with the count.</summary>
     public void WriteShard(ShardHeader header, IReadOnlyList<byte[]> series)
@@ -49,7 +51,7 @@ internal sealed class SnapshotWriter : IDisposable
     public string Complete(SnapshotManifest manifest)
     {
         WriteFile(Path.Combine(_temp, SnapshotFiles.ManifestName), stream => RecordFraming.Write(stream, manifest.ToByteArray()));
-        Directory.Move(_temp, _final);
+        _files.MoveDirectory(_temp, _final);
         _completed = true;
         return _final;
     }
@@ -63,17 +65,17 @@ internal sealed class SnapshotWriter : IDisposable
             {
                 Directory.Delete(_temp, recursive: true);
             }
-            catch (IOException)
+            catch (Exception ex) when (ex is IOException or UnauthorizedAccessException)
             {
                 // Left for the next prune, which removes leftover temporary directories.
             }
         }
     }
 
-    private static void WriteFile(string path, Action<Stream> write)
+    private void WriteFile(string path, Action<Stream> write)
     {
-        using var stream = new FileStream(path, FileMode.CreateNew, FileAccess.Write, FileShare.None, bufferSize: 1 << 16);
+        using Stream stream = _files.CreateNew(path);
         write(stream);
-        stream.Flush(flushToDisk: true);
+        _files.Flush(stream);
     }
 }

@@ -75,8 +75,8 @@ public static class StoreBench
         var (weekCold, weekMedian, weekP99) = QueryLatency(TimeSpan.FromDays(7), quick);
         output.WriteLine($"| Summarize 7 d window (2160 × 10 s + 9720 × 1 min buckets) | first {weekCold:F0} ms, then median {weekMedian:F2} ms, p99 {weekP99:F2} ms |");
         var (perStep, oneCall) = StepsLatency(quick);
-        output.WriteLine($"| Series 6 h at 1 min steps (2160 full 10 s buckets), one Summarize per step | first {perStep.FirstMs:F0} ms, then median {perStep.MedianMs:F2} ms, p99 {perStep.P99Ms:F2} ms |");
-        output.WriteLine($"| Series 6 h at 1 min steps, one SummarizeSteps call | first {oneCall.FirstMs:F0} ms, then median {oneCall.MedianMs:F2} ms, p99 {oneCall.P99Ms:F2} ms |");
+        output.WriteLine($"| Timeline 6h at 1m steps (2160 full 10s buckets), one Summarize per step | first {perStep.FirstMs:F0} ms, then median {perStep.MedianMs:F2} ms, p99 {perStep.P99Ms:F2} ms |");
+        output.WriteLine($"| Timeline 6h at 1m steps, one SummarizeSteps call | first {oneCall.FirstMs:F0} ms, then median {oneCall.MedianMs:F2} ms, p99 {oneCall.P99Ms:F2} ms |");
     }
 
     private static void Snapshots(TextWriter output, bool quick)

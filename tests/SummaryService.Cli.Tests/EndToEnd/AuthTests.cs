@@ -37,10 +37,10 @@ public sealed class AuthTests
         Assert.Contains("refused the API key", line, StringComparison.Ordinal);
 
         Assert.Equal(ExitCodes.AuthRefused, (await CliRun.RunAsync(["window", "otterbyte.test.auth", "--server", address])).ExitCode);
-        Assert.Equal(ExitCodes.AuthRefused, (await CliRun.RunAsync(["send", "otterbyte.test.auth", "3", "--server", address, "-k", "not-the-key"])).ExitCode);
+        Assert.Equal(ExitCodes.AuthRefused, (await CliRun.RunAsync(["send", "otterbyte.test.auth", "3", "--server", address, "--api-key", "not-the-key"])).ExitCode);
 
-        // The key holds no admin scope: the store figures are refused as a permission, also exit code 3.
-        var admin = await CliRun.RunAsync(["store", "--server", address, "--api-key", Key]);
+        // The key holds no admin scope: the holdings are refused as a permission, also exit code 3.
+        var admin = await CliRun.RunAsync(["holdings", "--server", address, "--api-key", Key]);
         Assert.Equal(ExitCodes.AuthRefused, admin.ExitCode);
         Assert.Contains("lacks the admin scope", admin.Error, StringComparison.Ordinal);
     }

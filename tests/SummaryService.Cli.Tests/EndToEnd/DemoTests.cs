@@ -43,8 +43,8 @@ public sealed class DemoTests(ServerFixture server)
         Assert.True(a.Stddev > b.Stddev);
 
         // Every service of the scenario is there, in three regions.
-        var catalog = (await CliRun.AgainstAsync(server.Address, "catalog", "--json")).Json<ListSeriesReply>();
-        Assert.Equal(15, catalog.Series.Count(s => s.Metric.StartsWith("otterbyte.", StringComparison.Ordinal) && s.Labels.ContainsKey("service")));
+        var catalogue = (await CliRun.AgainstAsync(server.Address, "catalogue", "--json")).Json<CatalogueReply>();
+        Assert.Equal(15, catalogue.Series.Count(s => s.Metric.StartsWith("otterbyte.", StringComparison.Ordinal) && s.Labels.ContainsKey("service")));
         var status = (await CliRun.AgainstAsync(server.Address, "window", "otterbyte.edge.status", "--last", "1h", "--json")).Json<SummarizeReply>();
         Assert.Equal(200, Assert.Single(status.Groups).Summary.Modes[0].Value); // the scenario's most common code
     }

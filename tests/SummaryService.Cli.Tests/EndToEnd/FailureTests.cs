@@ -12,7 +12,8 @@ public sealed class FailureTests(ServerFixture server)
         { ["window"] },
         { ["window", "otterbyte.any", "--last", "5x"] },
         { ["window", "otterbyte.any", "--last", "15"] },
-        { ["window", "otterbyte.any", "--from", "1h", "--to", "2h"] },
+        { ["window", "otterbyte.any", "--from", "now-1h", "--to", "now-2h"] },
+        { ["window", "otterbyte.any", "--from", "1h"] },
         { ["window", "otterbyte.any", "--to", "1h"] },
         { ["window", "otterbyte.any", "--from", "2026-13-45T00:00:00Z"] },
         { ["window", "otterbyte.any", "--quantile", "1.5"] },
@@ -24,7 +25,10 @@ public sealed class FailureTests(ServerFixture server)
         { ["trend", "otterbyte.any", "--plot", "0.75"] },
         { ["follow", "otterbyte.any", "--every", "10ms"] },
         { ["shift", "otterbyte.any", "--a", "yesterday"] },
-        { ["shift", "otterbyte.any", "--b", "1h..2h"] },
+        { ["shift", "otterbyte.any", "--b", "now-1h..now-2h"] },
+        { ["shift", "otterbyte.any", "--a", "2h..1h"] },
+        { ["send", "otterbyte.any", "1", "--at", "5m"] },
+        { ["window", "otterbyte.any", "-k", "some-key"] },
         { ["send", "otterbyte.any"] },
         { ["send", "otterbyte.any", "twelve"] },
         { ["send", "otterbyte.any", "--file", "/nonexistent/values.csv"] },
@@ -51,7 +55,8 @@ public sealed class FailureTests(ServerFixture server)
         var run = await CliRun.AgainstAsync(server.Address, "send", "otterbyte.test.refused", "1", "NaN");
         Assert.Equal(ExitCodes.Usage, run.ExitCode);
         string line = Assert.Single(run.Error.Split('\n', StringSplitOptions.RemoveEmptyEntries));
-        Assert.Contains("values[1]", line, StringComparison.Ordinal);
+        Assert.Contains("value #2 of the batch is NaN", line, StringComparison.Ordinal);
+        Assert.DoesNotContain("values[", line, StringComparison.Ordinal);
     }
 
     [Fact]
@@ -60,15 +65,17 @@ public sealed class FailureTests(ServerFixture server)
         var run = await CliRun.AgainstAsync(server.Address, "window", "otterbyte.test.nothing_here");
         Assert.Equal(ExitCodes.NotFound, run.ExitCode);
         string line = Assert.Single(run.Error.Split('\n', StringSplitOptions.RemoveEmptyEntries));
-        Assert.Contains("no series of metric 'otterbyte.test.nothing_here'", line, StringComparison.Ordinal);
+        Assert.Equal("error: no series matches otterbyte.test.nothing_here. List what exists with 'sumq catalogue'.", line);
+        var labelled = await CliRun.AgainstAsync(server.Address, "window", "otterbyte.test.nothing_here", "--label", "region=north", "--label", "host=a");
+        Assert.Contains("no series matches otterbyte.test.nothing_here · host=a · region=north.", labelled.Error, StringComparison.Ordinal);
         Assert.Equal(ExitCodes.NotFound, (await CliRun.AgainstAsync(server.Address, "shift", "otterbyte.test.nothing_here")).ExitCode);
-        Assert.Equal(ExitCodes.NotFound, (await CliRun.AgainstAsync(server.Address, "catalog", "otterbyte.test.nothing_here")).ExitCode);
+        Assert.Equal(ExitCodes.NotFound, (await CliRun.AgainstAsync(server.Address, "catalogue", "otterbyte.test.nothing_here")).ExitCode);
     }
 
     [Fact]
     public async Task An_empty_window_is_exit_code_4()
     {
-        await CliRun.AgainstAsync(server.Address, "send", "otterbyte.test.old", "1", "--at", "2h");
+        await CliRun.AgainstAsync(server.Address, "send", "otterbyte.test.old", "1", "--at", "now-2h");
         var run = await CliRun.AgainstAsync(server.Address, "window", "otterbyte.test.old", "--last", "5m");
         Assert.Equal(ExitCodes.NotFound, run.ExitCode);
         Assert.Contains("no values in the window", run.Error, StringComparison.Ordinal);
@@ -78,12 +85,17 @@ public sealed class FailureTests(ServerFixture server)
     public async Task An_unreachable_server_is_one_line_and_exit_code_2()
     {
         int port = ServerProcess.FreePort(); // a free loopback port: nothing listens there
-        foreach (string[] args in new[] { ["window", "otterbyte.any"], ["send", "otterbyte.any", "1"], new[] { "catalog" }, ["follow", "otterbyte.any", "--count", "1"], ["demo", "--backfill", "1m", "--duration", "1s"] })
+        foreach (string[] args in new[] { ["window", "otterbyte.any"], ["send", "otterbyte.any", "1"], new[] { "catalogue" }, ["follow", "otterbyte.any", "--count", "1"], ["demo", "--backfill", "1m", "--duration", "1s"] })
         {
             var run = await CliRun.RunAsync([.. args, "--server", $"http://127.0.0.1:{port}"]);
             Assert.Equal(ExitCodes.Unreachable, run.ExitCode);
             string line = Assert.Single(run.Error.Split('\n', StringSplitOptions.RemoveEmptyEntries));
             Assert.Contains($"cannot reach the server at http://127.0.0.1:{port}/", line, StringComparison.Ordinal);
+
+            // What to check, not a command that only works from a source checkout.
+            Assert.Contains("--server, else SUMMARY_SERVER, else http://127.0.0.1:5170", line, StringComparison.Ordinal);
+            Assert.Contains("grpc.health.v1.Health/Check", line, StringComparison.Ordinal);
+            Assert.DoesNotContain("dotnet run", line, StringComparison.Ordinal);
         }
     }
 

@@ -10,7 +10,7 @@ public sealed class HelpTests
     {
         var run = await CliRun.RunAsync(["--help"]);
         Assert.Equal(ExitCodes.Ok, run.ExitCode);
-        foreach (string command in new[] { "window", "trend", "follow", "shift", "send", "catalog", "store", "snapshot", "demo" })
+        foreach (string command in new[] { "window", "trend", "follow", "shift", "send", "catalogue", "holdings", "snapshot", "demo" })
         {
             Assert.Contains($"  {command}", run.Out, StringComparison.Ordinal);
         }
@@ -24,13 +24,25 @@ public sealed class HelpTests
     [InlineData("trend")]
     [InlineData("follow")]
     [InlineData("shift")]
-    [InlineData("catalog")]
-    [InlineData("store")]
+    [InlineData("catalogue")]
+    [InlineData("holdings")]
     [InlineData("snapshot")]
     public async Task Every_query_command_offers_json(string command)
     {
         var run = await CliRun.RunAsync([command, "--help"]);
         Assert.Equal(ExitCodes.Ok, run.ExitCode);
         Assert.Contains("--json", run.Out, StringComparison.Ordinal);
+    }
+
+    [Theory]
+    [InlineData("window", "-q")]
+    [InlineData("follow", "-n")]
+    [InlineData("follow", "-q")]
+    [InlineData("window", "-k")]
+    public async Task Short_flags_that_mean_something_else_elsewhere_are_not_offered(string command, string flag)
+    {
+        // Common practice in command-line tools: -k "insecure", -n "count or dry run", -q "quiet".
+        var run = await CliRun.RunAsync([command, "--help"]);
+        Assert.DoesNotMatch($@"(^|[\s,]){flag}[\s,]", run.Out);
     }
 }

@@ -4,7 +4,7 @@ using SummaryService.TestSupport;
 
 namespace SummaryService.Cli.Tests.EndToEnd;
 
-/// <summary>send from every source, idempotent producers, catalog, store and snapshot against the real server.</summary>
+/// <summary>send from every source, idempotent producers, catalogue, holdings and snapshot against the real server.</summary>
 [Collection(nameof(ServerCollection))]
 public sealed class IngestAndAdminTests(ServerFixture server)
 {
@@ -24,7 +24,7 @@ public sealed class IngestAndAdminTests(ServerFixture server)
         Assert.Contains("3 values in 2 batch(es)", piped.Out, StringComparison.Ordinal);
 
         // The CSV's values carry a time 50 minutes back: only a window over that time holds them.
-        var old = (await CliRun.AgainstAsync(server.Address, "window", "otterbyte.test.sources", "--from", "55m", "--to", "45m", "--json")).Json<SummarizeReply>();
+        var old = (await CliRun.AgainstAsync(server.Address, "window", "otterbyte.test.sources", "--from", "now-55m", "--to", "now-45m", "--json")).Json<SummarizeReply>();
         Assert.Equal(11, Assert.Single(old.Groups).Summary.Mean, 12); // (10 + 11 + 12) / 3
         var all = (await CliRun.AgainstAsync(server.Address, "window", "otterbyte.test.sources", "--last", "1h", "--json")).Json<SummarizeReply>();
         Assert.Equal(8ul, Assert.Single(all.Groups).Summary.Count);
@@ -45,26 +45,27 @@ public sealed class IngestAndAdminTests(ServerFixture server)
     }
 
     [Fact]
-    public async Task Catalog_store_and_snapshot_report_what_the_server_holds()
+    public async Task Catalogue_holdings_and_snapshot_report_what_the_server_holds()
     {
-        await CliRun.AgainstAsync(server.Address, ["send", "otterbyte.test.catalog", "1", "2", "-l", "region=west", "-l", "route=/a"]);
-        var catalog = (await CliRun.AgainstAsync(server.Address, "catalog", "otterbyte.test.catalog", "--json")).Json<ListSeriesReply>();
-        SeriesEntry entry = Assert.Single(catalog.Series);
+        await CliRun.AgainstAsync(server.Address, ["send", "otterbyte.test.catalogue", "1", "2", "-l", "region=west", "-l", "route=/a"]);
+        var catalogue = (await CliRun.AgainstAsync(server.Address, "catalogue", "otterbyte.test.catalogue", "--json")).Json<CatalogueReply>();
+        CatalogueEntry entry = Assert.Single(catalogue.Series);
         Assert.Equal("west", entry.Labels["region"]);
         Assert.Equal(2ul, entry.Count);
-        var table = await CliRun.AgainstAsync(server.Address, "catalog");
-        Assert.Contains("{region=west, route=/a}", table.Out, StringComparison.Ordinal);
+        var table = await CliRun.AgainstAsync(server.Address, "catalogue");
+        Assert.Contains("otterbyte.test.catalogue · region=west · route=/a", table.Out, StringComparison.Ordinal);
 
-        var stats = (await CliRun.AgainstAsync(server.Address, "store", "--json")).Json<GetStatsReply>();
-        Assert.True(stats.Series >= 1);
-        Assert.Equal("Wal", stats.Durability);
-        Assert.Equal(4, stats.Tiers.Count);
-        var storeTable = await CliRun.AgainstAsync(server.Address, "store", "--shards");
-        Assert.Contains("durability Wal", storeTable.Out, StringComparison.Ordinal);
-        Assert.Contains($"{stats.ProducerMarks} producer marks", storeTable.Out, StringComparison.Ordinal);
-        Assert.Contains("10s", storeTable.Out, StringComparison.Ordinal);
+        var holdings = (await CliRun.AgainstAsync(server.Address, "holdings", "--json")).Json<HoldingsReply>();
+        Assert.True(holdings.Series >= 1);
+        Assert.Equal("Wal", holdings.Durability);
+        Assert.Equal(4, holdings.Tiers.Count);
+        var holdingsTable = await CliRun.AgainstAsync(server.Address, "holdings", "--shards");
+        Assert.Contains("durability Wal", holdingsTable.Out, StringComparison.Ordinal);
+        Assert.Contains($"{holdings.ProducerMarks} producer marks", holdingsTable.Out, StringComparison.Ordinal);
+        Assert.Matches(@"│ \d+(ms|s|m|h|d)+ +│", holdingsTable.Out); // bucket widths in the duration syntax (10s, 1m), not 00:00:10
+        Assert.DoesNotContain("00:0", holdingsTable.Out, StringComparison.Ordinal);
 
-        var snapshot = (await CliRun.AgainstAsync(server.Address, "snapshot", "--json")).Json<TakeSnapshotReply>();
+        var snapshot = (await CliRun.AgainstAsync(server.Address, "snapshot", "--json")).Json<WriteSnapshotReply>();
         Assert.True(snapshot.Generation >= 1);
         Assert.True(snapshot.Series >= 1);
         var again = await CliRun.AgainstAsync(server.Address, "snapshot");

@@ -39,7 +39,7 @@ public sealed class QueryCommandTests(ServerFixture server)
 
         var table = await CliRun.AgainstAsync(server.Address, "window", "otterbyte.test.window", "--last", "15m", "--bins", "8");
         Assert.Equal(0, table.ExitCode);
-        foreach (string statistic in new[] { "mean", "median", "mean − median", "skewness", "excess kurtosis", "IQR", "MAD", "quartile skewness", "p99", "exact: nothing was approximated", "histogram" })
+        foreach (string statistic in new[] { "mean", "median (p50)", "mean − median", "skewness", "excess kurtosis", "IQR", "MAD", "quartile skewness", "p99", "exact: nothing was approximated", "histogram" })
         {
             Assert.Contains(statistic, table.Out, StringComparison.Ordinal);
         }
@@ -81,11 +81,11 @@ public sealed class QueryCommandTests(ServerFixture server)
         Assert.Equal(0, (await CliRun.AgainstAsync(server.Address, "send", "otterbyte.test.trend", "--file", file)).ExitCode);
 
         string from = Samples.Iso(now - (30 * 60_000L));
-        var reply = (await CliRun.AgainstAsync(server.Address, "trend", "otterbyte.test.trend", "--from", from, "--to", Samples.Iso(now), "--step", "10m", "--quantile", "0.5", "--json")).Json<SeriesReply>();
-        Assert.Equal(3, reply.Points.Count);
+        var reply = (await CliRun.AgainstAsync(server.Address, "trend", "otterbyte.test.trend", "--from", from, "--to", Samples.Iso(now), "--step", "10m", "--quantile", "0.5", "--json")).Json<TimelineReply>();
+        Assert.Equal(3, reply.Steps.Count);
         for (int i = 0; i < steps.Length; i++)
         {
-            Summary s = Assert.Single(reply.Points[i].Groups).Summary;
+            Summary s = Assert.Single(reply.Steps[i].Groups).Summary;
             Assert.Equal((ulong)steps[i].Length, s.Count);
             Assert.Equal(steps[i].Median(), s.Quantiles[0].Value, 1e-9); // MathNet.Numerics median (R7 at 0.5 agrees with every definition's midpoint rule)
         }
@@ -108,7 +108,7 @@ public sealed class QueryCommandTests(ServerFixture server)
         Assert.Equal(2, json.Lines.Length);
         Assert.All(json.Lines, l => Assert.Equal(5.5, Assert.Single(Google.Protobuf.JsonParser.Default.Parse<SummarizeReply>(l).Groups).Summary.Mean, 12));
 
-        var text = await CliRun.AgainstAsync(server.Address, "follow", "otterbyte.test.follow", "-n", "3", "--every", "100ms");
+        var text = await CliRun.AgainstAsync(server.Address, "follow", "otterbyte.test.follow", "--count", "3", "--every", "100ms");
         Assert.Equal(0, text.ExitCode);
         Assert.Contains("update 3 at", text.Out, StringComparison.Ordinal);
         Assert.DoesNotContain("update 4", text.Out, StringComparison.Ordinal);
@@ -145,5 +145,42 @@ public sealed class QueryCommandTests(ServerFixture server)
         var table = await CliRun.AgainstAsync(server.Address, args);
         Assert.Contains("moved up", table.Out, StringComparison.Ordinal);
         Assert.Contains("Kolmogorov–Smirnov distance", table.Out, StringComparison.Ordinal);
+    }
+
+    [Fact]
+    public async Task Shift_that_its_intervals_cannot_settle_says_inconclusive_with_the_ratio_and_is_never_grey()
+    {
+        // The same 150 values on both sides: every quantile's two intervals overlap.
+        double[] values = Samples.Latencies(150, 711);
+        await CliRun.AgainstAsync(server.Address, ["send", "otterbyte.test.same", .. values.Select(Samples.Text), "-l", "region=north"]);
+        await CliRun.AgainstAsync(server.Address, ["send", "otterbyte.test.same", .. values.Select(Samples.Text), "-l", "region=south"]);
+        string[] args = ["shift", "otterbyte.test.same", "--a", "15m", "--b", "15m", "--a-label", "region=north", "--b-label", "region=south", "--quantile", "0.5", "--quantile", "0.99"];
+        var reply = (await CliRun.AgainstAsync(server.Address, [.. args, "--json"])).Json<CompareReply>();
+        Assert.All(reply.Shifts, s => Assert.False(s.Significant));
+
+        var table = await CliRun.RunAsync([.. args, "--server", server.Address.ToString()], colours: true);
+        Assert.Equal(0, table.ExitCode);
+        string[] rows = [.. table.Lines.Where(l => l.Contains("inconclusive:", StringComparison.Ordinal))];
+        Assert.Equal(2, rows.Length);
+        Assert.Equal(2, table.Lines.Count(l => l.Contains("intervals overlap", StringComparison.Ordinal)));
+        Assert.All(rows, r => Assert.Contains("×1 ", r, StringComparison.Ordinal)); // b / a of equal point estimates
+        Assert.Contains("b / a", table.Out, StringComparison.Ordinal);
+        Assert.DoesNotContain("within error", table.Out, StringComparison.Ordinal);
+        Assert.DoesNotContain("\u001b[90m", table.Out, StringComparison.Ordinal); // ANSI bright black, the grey of a dimmed cell (ECMA-48 SGR 90)
+    }
+
+    [Fact]
+    public async Task Window_shows_min_median_and_max_once_each()
+    {
+        await CliRun.AgainstAsync(server.Address, ["send", "otterbyte.test.rows", .. Samples.Latencies(60, 721).Select(Samples.Text)]);
+        var table = await CliRun.AgainstAsync(server.Address, "window", "otterbyte.test.rows", "--quantile", "0", "--quantile", "0.5", "--quantile", "0.999", "--quantile", "1");
+        Assert.Equal(0, table.ExitCode);
+        int Rows(string name) => table.Lines.Count(l => l.StartsWith($"│ {name} ", StringComparison.Ordinal));
+        Assert.Equal(1, Rows("min"));
+        Assert.Equal(1, Rows("median (p50)"));
+        Assert.Equal(1, Rows("max"));
+        Assert.Equal(0, Rows("p50"));
+        Assert.Equal(1, Rows("p99.9"));
+        Assert.DoesNotContain("(q0)", table.Out, StringComparison.Ordinal);
     }
 }

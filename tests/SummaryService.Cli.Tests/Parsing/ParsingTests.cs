@@ -1,9 +1,10 @@
 using SummaryService.Cli.Parsing;
+using SummaryService.Contract.Readable;
 using SummaryService.Contract.V1;
 
 namespace SummaryService.Cli.Tests.Parsing;
 
-/// <summary>Durations, instants and windows as typed on the command line.</summary>
+/// <summary>Durations, instants, windows and series as typed on the command line and printed everywhere.</summary>
 public sealed class ParsingTests
 {
     [Theory]
@@ -28,8 +29,25 @@ public sealed class ParsingTests
     [InlineData("0s")]
     public void Bad_durations_are_refused(string text) => Assert.False(DurationText.TryParse(text, out _, out _));
 
+    [Theory]
+    [InlineData(5_400_000, "1h30m")]
+    [InlineData(604_800_000, "7d")]
+    [InlineData(90_000, "1m30s")]
+    [InlineData(250, "250ms")]
+    [InlineData(0, "0s")]
+    [InlineData(1_500, "1s500ms")]
+    public void Durations_print_back_in_the_same_form(long ms, string text)
+    {
+        Assert.Equal(text, DurationText.Format(TimeSpan.FromMilliseconds(ms)));
+        if (ms > 0)
+        {
+            Assert.True(DurationText.TryParse(text, out TimeSpan back, out _));
+            Assert.Equal(ms, (long)back.TotalMilliseconds);
+        }
+    }
+
     [Fact]
-    public void Durations_print_back_in_the_same_form() => Assert.Equal("1h30m", DurationText.Format(TimeSpan.FromMinutes(90)));
+    public void A_fraction_of_a_millisecond_prints_as_one() => Assert.Equal("0.5ms", DurationText.Format(TimeSpan.FromMicroseconds(500)));
 
     [Fact]
     public void Iso_times_without_an_offset_are_utc_and_durations_are_ago()
@@ -41,11 +59,23 @@ public sealed class ParsingTests
         Assert.Equal(utc, plain);
         Assert.True(TimePoint.TryParse("2026-12-02T02:30:00+01:00", now, out long offset, out _));
         Assert.Equal(utc, offset);
-        Assert.True(TimePoint.TryParse("2h", now, out long ago, out _));
+        Assert.True(TimePoint.TryParse("now-2h", now, out long ago, out _));
         Assert.Equal(now - 7_200_000, ago);
+        Assert.True(TimePoint.TryParse("now-1h30m", now, out long longer, out _));
+        Assert.Equal(now - 5_400_000, longer);
         Assert.True(TimePoint.TryParse("now", now, out long current, out _));
         Assert.Equal(now, current);
         Assert.Equal("2026-12-02T01:30:00Z", TimePoint.Format(utc));
+    }
+
+    [Theory]
+    [InlineData("2h", "'2h' is a length, not an instant; for that long ago write now-2h.")]
+    [InlineData("now-", "'now-': a duration is empty;")]
+    [InlineData("yesterday", "'yesterday' is not an instant;")]
+    public void A_bare_duration_is_never_an_instant(string text, string message)
+    {
+        Assert.False(TimePoint.TryParse(text, 1_800_000_000_000, out _, out string error));
+        Assert.StartsWith(message, error, StringComparison.Ordinal);
     }
 
     [Fact]
@@ -54,13 +84,15 @@ public sealed class ParsingTests
         const long now = 1_800_000_000_000; // 2027-01-15, after every absolute time below
         Assert.True(WindowText.TryParse("1h", now, out Window last, out _));
         Assert.Equal(3600, last.Last.Seconds);
-        Assert.True(WindowText.TryParse("3h..1h", now, out Window range, out _));
+        Assert.True(WindowText.TryParse("now-3h..now-1h", now, out Window range, out _));
         Assert.Equal(now - 10_800_000, range.Range.FromUnixMs);
         Assert.Equal(now - 3_600_000, range.Range.ToUnixMs);
         Assert.True(WindowText.TryParse("2026-12-02T01:00:00Z..now", now, out Window open, out _));
         Assert.Equal(now, open.Range.ToUnixMs);
-        Assert.False(WindowText.TryParse("1h..3h", now, out _, out string error));
+        Assert.False(WindowText.TryParse("now-1h..now-3h", now, out _, out string error));
         Assert.Contains("not before its end", error, StringComparison.Ordinal);
+        Assert.False(WindowText.TryParse("3h..1h", now, out _, out string bare));
+        Assert.Contains("is a length, not an instant", bare, StringComparison.Ordinal);
     }
 
     [Fact]
@@ -71,5 +103,22 @@ public sealed class ParsingTests
         Assert.False(LabelText.TryParse(["region"], out _, out _));
         Assert.False(LabelText.TryParse(["=x"], out _, out _));
         Assert.False(LabelText.TryParse(["a=1", "a=2"], out _, out _));
+    }
+
+    [Fact]
+    public void Times_print_as_iso_8601_utc_and_beside_unix_ms_in_messages()
+    {
+        // 1,796,175,000 s after 1970-01-01T00:00:00Z is 2026-12-02T01:30:00Z (checked with Python's datetime).
+        Assert.Equal("2026-12-02T01:30:00Z", TimeText.Iso(1_796_175_000_000));
+        Assert.Equal("2026-12-02T01:30:00.250Z", TimeText.Iso(1_796_175_000_250));
+        Assert.Equal("2026-12-02T01:30:00Z (Unix ms 1796175000000)", TimeText.IsoAndUnixMs(1_796_175_000_000));
+    }
+
+    [Fact]
+    public void A_series_reads_as_its_metric_then_its_labels_in_name_order()
+    {
+        var labels = new Dictionary<string, string> { ["service"] = "checkout", ["region"] = "north" };
+        Assert.Equal("otterbyte.checkout.latency_ms · region=north · service=checkout", SeriesName.Of("otterbyte.checkout.latency_ms", labels));
+        Assert.Equal("otterbyte.checkout.latency_ms", SeriesName.Of("otterbyte.checkout.latency_ms", []));
     }
 }

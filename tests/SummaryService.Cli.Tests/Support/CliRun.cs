@@ -1,4 +1,5 @@
 using Google.Protobuf;
+using Spectre.Console;
 using Spectre.Console.Testing;
 using SummaryService.Cli;
 
@@ -22,11 +23,19 @@ public sealed record CliResult(int ExitCode, string Out, string Error)
 /// <summary>Runs the tool in process through <see cref="CliApp.RunAsync(string[], CliConsole, CancellationToken)"/>, with a recording console.</summary>
 public static class CliRun
 {
-    /// <summary>Runs <paramref name="args"/>; <paramref name="stdin"/> stands for piped standard input, <paramref name="environment"/> for the process environment.</summary>
-    public static async Task<CliResult> RunAsync(IEnumerable<string> args, string? stdin = null, IReadOnlyDictionary<string, string>? environment = null, CancellationToken cancellationToken = default)
+    /// <summary>
+    /// Runs <paramref name="args"/>; <paramref name="stdin"/> stands for piped standard input, <paramref name="environment"/>
+    /// for the process environment; with <paramref name="colours"/> the output keeps its ANSI colour codes.
+    /// </summary>
+    public static async Task<CliResult> RunAsync(IEnumerable<string> args, string? stdin = null, IReadOnlyDictionary<string, string>? environment = null, CancellationToken cancellationToken = default, bool colours = false)
     {
         using var console = new TestConsole();
         console.Width(220);
+        if (colours)
+        {
+            console.Colors(ColorSystem.Standard).SupportsAnsi(true).EmitAnsiSequences();
+        }
+
         using var error = new StringWriter();
         var cli = new CliConsole(console, error, stdin is null ? null : new StringReader(stdin), name => environment is not null && environment.TryGetValue(name, out string? v) ? v : null);
         using var limit = CancellationTokenSource.CreateLinkedTokenSource(cancellationToken);

@@ -1,9 +1,10 @@
 using Grpc.Core;
+using SummaryService.Contract.Readable;
 using SummaryService.Contract.V1;
 
 namespace SummaryService.LoadTest.Baseline;
 
-/// <summary>The baseline's <c>Query.Summarize</c> and <c>Query.Series</c>: exact answers by sorting at query time.</summary>
+/// <summary>The baseline's <c>Query.Summarize</c> and <c>Query.Timeline</c>: exact answers by sorting at query time.</summary>
 public sealed class RawQueryService(RawValueStore store) : Query.QueryBase
 {
     /// <inheritdoc/>
@@ -22,30 +23,30 @@ public sealed class RawQueryService(RawValueStore store) : Query.QueryBase
     }
 
     /// <inheritdoc/>
-    public override Task<SeriesReply> Series(SeriesRequest request, ServerCallContext context)
+    public override Task<TimelineReply> Timeline(TimelineRequest request, ServerCallContext context)
     {
         ArgumentNullException.ThrowIfNull(request);
         var (from, to) = RangeOf(request.Window);
         long step = (long)(request.Step ?? throw Invalid("step is missing.")).ToTimeSpan().TotalMilliseconds;
         if (step < 1 || (to - from) / step > 10_000)
         {
-            throw Invalid($"step {step} ms is out of range.");
+            throw Invalid($"step {DurationText.Format(TimeSpan.FromMilliseconds(step))} is out of range.");
         }
 
         List<RawSeries> selected = Select(request.Selector);
-        var reply = new SeriesReply();
+        var reply = new TimelineReply();
         for (long start = from; start < to; start += step)
         {
             long end = Math.Min(start + step, to);
             var range = new TimeRange { FromUnixMs = start, ToUnixMs = end };
-            var point = new SeriesPoint { Step = range, Covered = range };
+            var entry = new TimelineStep { Step = range, Covered = range };
             Summary summary = ExactSummary.Of(selected, start, end, request.Quantiles);
             if (summary.Count > 0)
             {
-                point.Groups.Add(new GroupSummary { Summary = summary, SeriesMerged = (uint)selected.Count });
+                entry.Groups.Add(new GroupSummary { Summary = summary, SeriesMerged = (uint)selected.Count });
             }
 
-            reply.Points.Add(point);
+            reply.Steps.Add(entry);
         }
 
         return Task.FromResult(reply);
@@ -58,7 +59,7 @@ public sealed class RawQueryService(RawValueStore store) : Query.QueryBase
             throw Invalid("selector.metric is missing.");
         }
 
-        return store.Select(selector.Metric, selector.MatchLabels);
+        return store.Select(selector.Metric, selector.LabelEquals);
     }
 
     private static (long From, long To) RangeOf(Window? window)

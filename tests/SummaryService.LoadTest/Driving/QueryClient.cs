@@ -8,7 +8,7 @@ using SummaryService.LoadTest.Workload;
 namespace SummaryService.LoadTest.Driving;
 
 /// <summary>
-/// One dashboard-like reader: alternately a <c>Summarize</c> of the trailing hour and a <c>Series</c>
+/// One dashboard-like reader: alternately a <c>Summarize</c> of the trailing hour and a <c>Timeline</c>
 /// of the trailing 6 hours at 1-minute steps, each for one series picked at random (seeded), with a
 /// pause between queries.
 /// </summary>
@@ -17,8 +17,8 @@ public sealed class QueryClient(GrpcChannel channel, int seriesCount, ulong seed
     /// <summary>Latencies of the Summarize calls.</summary>
     public LatencySamples Summarize { get; } = new();
 
-    /// <summary>Latencies of the Series calls.</summary>
-    public LatencySamples Series { get; } = new();
+    /// <summary>Latencies of the Timeline calls.</summary>
+    public LatencySamples Timeline { get; } = new();
 
     /// <summary>Failed calls.</summary>
     public long Errors { get; private set; }
@@ -45,8 +45,8 @@ public sealed class QueryClient(GrpcChannel channel, int seriesCount, ulong seed
                 }
                 else
                 {
-                    await client.SeriesAsync(Requests.Series(series, now - 21_600_000, now, TimeSpan.FromMinutes(1)), cancellationToken: cancellationToken).ConfigureAwait(false);
-                    Series.Add(Stopwatch.GetElapsedTime(started).TotalMilliseconds);
+                    await client.TimelineAsync(Requests.Timeline(series, now - 21_600_000, now, TimeSpan.FromMinutes(1)), cancellationToken: cancellationToken).ConfigureAwait(false);
+                    Timeline.Add(Stopwatch.GetElapsedTime(started).TotalMilliseconds);
                 }
 
                 await Task.Delay(pause, time, cancellationToken).ConfigureAwait(false);
@@ -83,8 +83,8 @@ public static class Requests
         return request;
     }
 
-    /// <summary>One point per step for one series over [from, to).</summary>
-    public static SeriesRequest Series(string series, long from, long to, TimeSpan step) =>
+    /// <summary>One summary per step for one series over [from, to).</summary>
+    public static TimelineRequest Timeline(string series, long from, long to, TimeSpan step) =>
         new() { Selector = Selector(series), Window = Window(from, to), Step = Duration.FromTimeSpan(step) };
 
     private static Selector Selector(string? series)
@@ -92,7 +92,7 @@ public static class Requests
         var selector = new Selector { Metric = LoadPlan.Metric };
         if (series is not null)
         {
-            selector.MatchLabels.Add(LoadPlan.SeriesLabel, series);
+            selector.LabelEquals.Add(LoadPlan.SeriesLabel, series);
         }
 
         return selector;

@@ -23,7 +23,7 @@ public sealed record IngestPhase(long Values, double Seconds, LatencySummary? Ac
 public sealed record CpuShare(double ServerCores, double GeneratorCores, double OtherCores, double ServerCpuSeconds);
 
 /// <summary>Latencies of the queries that ran during the live phase.</summary>
-public sealed record LiveQueries(LatencySummary? Summarize, LatencySummary? Series, long Errors, string? FirstError);
+public sealed record LiveQueries(LatencySummary? Summarize, LatencySummary? Timeline, long Errors, string? FirstError);
 
 /// <summary>The all-series query over the last back-filled hour, repeated.</summary>
 /// <param name="Values">Values in the window (what the answer counted).</param>
@@ -34,7 +34,7 @@ public sealed record WindowQuery(long Values, double FirstMs, LatencySummary? Re
 /// <summary>A rank check with what it looked at.</summary>
 public sealed record NamedCheck(string Window, RankCheckResult Result);
 
-/// <summary>Store figures from Admin.GetStats and the process.</summary>
+/// <summary>Store figures from Admin.Holdings and the process.</summary>
 public sealed record StoreFigures(long Series, long Buckets, long EstimatedBytes, double EstimatedBytesPerSeries, double EstimatedBytesPerBucket, double RssBytesPerBucket);
 
 /// <summary>Everything measured on one target.</summary>

@@ -26,8 +26,8 @@ public static class ReportWriter
         ratios["data_rss_baseline_over_sketch"] = Divide(baseline.EndRssBytes - baseline.StartRssBytes, sketch.EndRssBytes - sketch.StartRssBytes);
         ratios["summarize_p50_baseline_over_sketch"] = Divide(baseline.Queries.Summarize?.P50Ms, sketch.Queries.Summarize?.P50Ms);
         ratios["summarize_p99_baseline_over_sketch"] = Divide(baseline.Queries.Summarize?.P99Ms, sketch.Queries.Summarize?.P99Ms);
-        ratios["series_p50_baseline_over_sketch"] = Divide(baseline.Queries.Series?.P50Ms, sketch.Queries.Series?.P50Ms);
-        ratios["series_p99_baseline_over_sketch"] = Divide(baseline.Queries.Series?.P99Ms, sketch.Queries.Series?.P99Ms);
+        ratios["timeline_p50_baseline_over_sketch"] = Divide(baseline.Queries.Timeline?.P50Ms, sketch.Queries.Timeline?.P50Ms);
+        ratios["timeline_p99_baseline_over_sketch"] = Divide(baseline.Queries.Timeline?.P99Ms, sketch.Queries.Timeline?.P99Ms);
         ratios["all_series_window_p50_baseline_over_sketch"] = Divide(baseline.Window.Repeats?.P50Ms, sketch.Window.Repeats?.P50Ms);
         ratios["all_series_window_first_baseline_over_sketch"] = Divide(baseline.Window.FirstMs, sketch.Window.FirstMs);
         return ratios;
@@ -52,8 +52,8 @@ public static class ReportWriter
         Row(output, "live cores: server / generator / others", Cores(s.Live.Cpu), b is null ? "" : Cores(b.Live.Cpu), "");
         Row(output, "live server CPU ns per value (with queries)", Ns(s.Live), b is null ? "" : Ns(b.Live), "");
         Row(output, "Summarize 1 h, one series: p50 / p99 ms", Latency(s.Queries.Summarize), b is null ? "" : Latency(b.Queries.Summarize), Ratio(run, "summarize_p99_baseline_over_sketch"));
-        Row(output, "Series 6 h at 1 min, one series: p50 / p99 ms", Latency(s.Queries.Series), b is null ? "" : Latency(b.Queries.Series), Ratio(run, "series_p99_baseline_over_sketch"));
-        Row(output, "queries answered (Summarize + Series)", Count(s.Queries), b is null ? "" : Count(b.Queries), "");
+        Row(output, "Timeline 6h at 1m, one series: p50 / p99 ms", Latency(s.Queries.Timeline), b is null ? "" : Latency(b.Queries.Timeline), Ratio(run, "timeline_p99_baseline_over_sketch"));
+        Row(output, "queries answered (Summarize + Timeline)", Count(s.Queries), b is null ? "" : Count(b.Queries), "");
         Row(output, $"all series, 1 h ({s.Window.Values:N0} values): first / p50 ms", Window(s.Window), b is null ? "" : Window(b.Window), Ratio(run, "all_series_window_p50_baseline_over_sketch"));
         Row(output, "server CPU seconds (whole run)", F(s.ServerCpuSeconds, "0.0"), b is null ? "" : F(b.ServerCpuSeconds, "0.0"), "");
         Row(output, "RSS after back-fill (same values held)", Mb(s.FillRssBytes), b is null ? "" : Mb(b.FillRssBytes), Ratio(run, "rss_after_fill_baseline_over_sketch"));
@@ -107,7 +107,7 @@ public static class ReportWriter
 
     private static string Latency(LatencySummary? latency) => latency is null ? "–" : $"{latency.P50Ms:0.00} / {latency.P99Ms:0.00}";
 
-    private static string Count(LiveQueries queries) => $"{queries.Summarize?.Count ?? 0} + {queries.Series?.Count ?? 0}";
+    private static string Count(LiveQueries queries) => $"{queries.Summarize?.Count ?? 0} + {queries.Timeline?.Count ?? 0}";
 
     private static string Window(WindowQuery window) => $"{window.FirstMs:0.0} / {window.Repeats?.P50Ms ?? 0:0.0}";
 

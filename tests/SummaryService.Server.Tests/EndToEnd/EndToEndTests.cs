@@ -56,9 +56,9 @@ public sealed class EndToEndTests
             Assert.Equal(south.Variance(), reply.Groups[1].Summary.Variance, 1e-9); // MathNet.Numerics
             Assert.Equal(south.Skewness(), reply.Groups[1].Summary.Skewness, 1e-9); // MathNet.Numerics
 
-            var series = await query.SeriesAsync(new SeriesRequest { Selector = Requests.Selector("shop.e2e.latency"), Window = Requests.Range(now - 120_000, now + 120_000), Step = Duration.FromTimeSpan(TimeSpan.FromMinutes(1)) });
-            Assert.Equal(4, series.Points.Count);
-            Assert.Equal(270ul, series.Points.SelectMany(p => p.Groups).Aggregate(0ul, (sum, g) => sum + g.Summary.Count));
+            var series = await query.TimelineAsync(new TimelineRequest { Selector = Requests.Selector("shop.e2e.latency"), Window = Requests.Range(now - 120_000, now + 120_000), Step = Duration.FromTimeSpan(TimeSpan.FromMinutes(1)) });
+            Assert.Equal(4, series.Steps.Count);
+            Assert.Equal(270ul, series.Steps.SelectMany(p => p.Groups).Aggregate(0ul, (sum, g) => sum + g.Summary.Count));
 
             using (var watch = query.Watch(new WatchRequest { Query = Requests.Summarize("shop.e2e.latency"), Interval = Duration.FromTimeSpan(TimeSpan.FromMilliseconds(100)), MaxUpdates = 2 }))
             {
@@ -76,10 +76,10 @@ public sealed class EndToEndTests
             Assert.Equal(northAll.Median(), compare.Shifts[0].A, 1e-12); // MathNet.Numerics
             Assert.Equal(south.Median(), compare.Shifts[0].B, 1e-12); // MathNet.Numerics
 
-            Assert.Equal(2, (await admin.ListSeriesAsync(new ListSeriesRequest())).Series.Count);
-            Assert.Equal(2u, (await admin.GetStatsAsync(new GetStatsRequest())).Series);
-            await admin.PushScratchAndDeleteAsync(ingest);
-            Assert.True((await admin.TakeSnapshotAsync(new TakeSnapshotRequest())).Generation >= 1);
+            Assert.Equal(2, (await query.CatalogueAsync(new CatalogueRequest())).Series.Count);
+            Assert.Equal(2u, (await admin.HoldingsAsync(new HoldingsRequest())).Series);
+            await admin.PushScratchAndRemoveAsync(ingest);
+            Assert.True((await admin.WriteSnapshotAsync(new WriteSnapshotRequest())).Generation >= 1);
 
             var reflection = new ServerReflection.ServerReflectionClient(channel);
             using var listing = reflection.ServerReflectionInfo();
@@ -130,12 +130,12 @@ internal static class EndToEndSteps
         return list;
     }
 
-    /// <summary>DeleteSeries over the wire: a scratch series goes, then deleting it again is NotFound.</summary>
-    public static async Task PushScratchAndDeleteAsync(this Admin.AdminClient admin, Ingest.IngestClient ingest)
+    /// <summary>RemoveSeries over the wire: a scratch series goes, then removing it again is NotFound.</summary>
+    public static async Task PushScratchAndRemoveAsync(this Admin.AdminClient admin, Ingest.IngestClient ingest)
     {
         await ingest.PushAsync(Requests.Batch("shop.e2e.scratch", [1]));
-        Assert.Equal(1ul, (await admin.DeleteSeriesAsync(new DeleteSeriesRequest { Metric = "shop.e2e.scratch" })).Count);
-        var ex = await Assert.ThrowsAsync<RpcException>(async () => await admin.DeleteSeriesAsync(new DeleteSeriesRequest { Metric = "shop.e2e.scratch" }));
+        Assert.Equal(1ul, (await admin.RemoveSeriesAsync(new RemoveSeriesRequest { Metric = "shop.e2e.scratch" })).Count);
+        var ex = await Assert.ThrowsAsync<RpcException>(async () => await admin.RemoveSeriesAsync(new RemoveSeriesRequest { Metric = "shop.e2e.scratch" }));
         Assert.Equal(StatusCode.NotFound, ex.StatusCode);
     }
 }

@@ -51,7 +51,7 @@ public sealed class JsonOverHttpTests(JsonOverHttpTests.OneProcess process) : IC
             Assert.Equal(HttpStatusCode.OK, pushed.StatusCode);
         }
 
-        object Side(string region) => new { selector = new { metric = "ferry.booking.latency", matchLabels = new Dictionary<string, string> { ["region"] = region } }, window = new { last = "3600s" } };
+        object Side(string region) => new { selector = new { metric = "ferry.booking.latency", labelEquals = new Dictionary<string, string> { ["region"] = region } }, window = new { last = "3600s" } };
         using var compared = await http.PostAsync("/v1/compare", new { a = Side("north"), b = Side("south"), quantiles = new[] { 0.5, 0.99 } });
         Assert.Equal(HttpStatusCode.OK, compared.StatusCode);
         JsonNode reply = await compared.ReadJsonAsync();

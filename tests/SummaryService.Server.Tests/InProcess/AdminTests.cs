@@ -7,46 +7,46 @@ namespace SummaryService.Server.Tests.InProcess;
 public sealed class AdminTests
 {
     [Fact]
-    public async Task Catalogue_deletion_snapshot_and_figures()
+    public async Task Catalogue_removal_snapshot_and_holdings()
     {
         await using var server = new TestServer();
         await server.Ingest.PushAsync(Requests.Batch("shop.a", [1, 2, 3], ("host", "x")));
         await server.Ingest.PushAsync(Requests.Batch("shop.b", [4]));
 
-        var all = await server.Admin.ListSeriesAsync(new ListSeriesRequest());
+        var all = await server.Query.CatalogueAsync(new CatalogueRequest());
         Assert.Equal(["shop.a", "shop.b"], all.Series.Select(s => s.Metric));
         Assert.Equal(3ul, all.Series[0].Count);
         Assert.Equal("x", all.Series[0].Labels["host"]);
-        Assert.Single((await server.Admin.ListSeriesAsync(new ListSeriesRequest { Metric = "shop.b" })).Series);
+        Assert.Single((await server.Query.CatalogueAsync(new CatalogueRequest { Metric = "shop.b" })).Series);
 
         var numbered = Requests.Batch("shop.b", [5]);
         numbered.Producer = "till-7";
         numbered.Sequence = 1;
         await server.Ingest.PushAsync(numbered);
 
-        var stats = await server.Admin.GetStatsAsync(new GetStatsRequest());
+        var stats = await server.Admin.HoldingsAsync(new HoldingsRequest());
         Assert.Equal(2u, stats.Series);
         Assert.Equal(1u, stats.ProducerMarks);
         Assert.Equal(2ul, stats.Buckets);
         Assert.Equal("Wal", stats.Durability);
         Assert.Equal(4, stats.Tiers.Count);
 
-        var snapshot = await server.Admin.TakeSnapshotAsync(new TakeSnapshotRequest());
+        var snapshot = await server.Admin.WriteSnapshotAsync(new WriteSnapshotRequest());
         Assert.Equal(2u, snapshot.Series);
         Assert.True(snapshot.Bytes > 0);
 
-        var deleted = await server.Admin.DeleteSeriesAsync(new DeleteSeriesRequest { Metric = "shop.a", Labels = { ["host"] = "x" } });
+        var deleted = await server.Admin.RemoveSeriesAsync(new RemoveSeriesRequest { Metric = "shop.a", Labels = { ["host"] = "x" } });
         Assert.Equal(3ul, deleted.Count);
-        var again = await Assert.ThrowsAsync<RpcException>(async () => await server.Admin.DeleteSeriesAsync(new DeleteSeriesRequest { Metric = "shop.a", Labels = { ["host"] = "x" } }));
+        var again = await Assert.ThrowsAsync<RpcException>(async () => await server.Admin.RemoveSeriesAsync(new RemoveSeriesRequest { Metric = "shop.a", Labels = { ["host"] = "x" } }));
         Assert.Equal(StatusCode.NotFound, again.StatusCode);
-        Assert.Equal(["shop.b"], (await server.Admin.ListSeriesAsync(new ListSeriesRequest())).Series.Select(s => s.Metric));
+        Assert.Equal(["shop.b"], (await server.Query.CatalogueAsync(new CatalogueRequest())).Series.Select(s => s.Metric));
     }
 
     [Fact]
     public async Task Snapshots_are_a_failed_precondition_without_durability()
     {
         await using var server = new TestServer(new Dictionary<string, string?> { ["Persistence:Durability"] = "None" });
-        var ex = await Assert.ThrowsAsync<RpcException>(async () => await server.Admin.TakeSnapshotAsync(new TakeSnapshotRequest()));
+        var ex = await Assert.ThrowsAsync<RpcException>(async () => await server.Admin.WriteSnapshotAsync(new WriteSnapshotRequest()));
         Assert.Equal(StatusCode.FailedPrecondition, ex.StatusCode);
     }
 }

@@ -74,7 +74,7 @@ public sealed class AuthTests
             Assert.Equal(code, streamRefusal.StatusCode);
         }
 
-        Assert.Empty((await server.Admin.ListSeriesAsync(new ListSeriesRequest(), TestServer.Bearer(Operator))).Series);
+        Assert.Empty((await server.Query.CatalogueAsync(new CatalogueRequest(), TestServer.Bearer(Operator))).Series);
     }
 
     [Fact]
@@ -89,9 +89,9 @@ public sealed class AuthTests
         Assert.Equal(StatusCode.PermissionDenied, other.StatusCode);
         var writerReading = await Assert.ThrowsAsync<RpcException>(async () => await server.Query.SummarizeAsync(Requests.Summarize("team-a.latency"), TestServer.Bearer(Writer)));
         Assert.Equal(StatusCode.PermissionDenied, writerReading.StatusCode);
-        var readerAdmin = await Assert.ThrowsAsync<RpcException>(async () => await server.Admin.GetStatsAsync(new GetStatsRequest(), TestServer.Bearer(Reader)));
+        var readerAdmin = await Assert.ThrowsAsync<RpcException>(async () => await server.Admin.HoldingsAsync(new HoldingsRequest(), TestServer.Bearer(Reader)));
         Assert.Equal(StatusCode.PermissionDenied, readerAdmin.StatusCode);
-        Assert.Equal(1u, (await server.Admin.GetStatsAsync(new GetStatsRequest(), TestServer.Bearer(Operator))).Series);
+        Assert.Equal(1u, (await server.Admin.HoldingsAsync(new HoldingsRequest(), TestServer.Bearer(Operator))).Series);
     }
 
     [Fact]
@@ -101,13 +101,38 @@ public sealed class AuthTests
         await server.Ingest.PushAsync(Requests.Batch("team-a.latency", [1, 2, 3]), TestServer.Bearer(Writer));
         await server.Ingest.PushAsync(Requests.Batch("team-b.latency", [4, 5]), TestServer.Bearer(WriterAll));
 
-        var listed = await server.Admin.ListSeriesAsync(new ListSeriesRequest(), TestServer.Bearer(Reader));
+        var listed = await server.Query.CatalogueAsync(new CatalogueRequest(), TestServer.Bearer(Reader));
         Assert.Equal(["team-a.latency"], listed.Series.Select(s => s.Metric));
-        var outside = await Assert.ThrowsAsync<RpcException>(async () => await server.Admin.ListSeriesAsync(new ListSeriesRequest { Metric = "team-b.latency" }, TestServer.Bearer(Reader)));
+        var outside = await Assert.ThrowsAsync<RpcException>(async () => await server.Query.CatalogueAsync(new CatalogueRequest { Metric = "team-b.latency" }, TestServer.Bearer(Reader)));
         Assert.Equal(StatusCode.PermissionDenied, outside.StatusCode);
-        var writerListing = await Assert.ThrowsAsync<RpcException>(async () => await server.Admin.ListSeriesAsync(new ListSeriesRequest(), TestServer.Bearer(Writer)));
+        var writerListing = await Assert.ThrowsAsync<RpcException>(async () => await server.Query.CatalogueAsync(new CatalogueRequest(), TestServer.Bearer(Writer)));
         Assert.Equal(StatusCode.PermissionDenied, writerListing.StatusCode);
-        Assert.Equal(2, (await server.Admin.ListSeriesAsync(new ListSeriesRequest(), TestServer.Bearer(Operator))).Series.Count);
+        Assert.Equal(2, (await server.Query.CatalogueAsync(new CatalogueRequest(), TestServer.Bearer(Operator))).Series.Count);
+    }
+
+    [Theory]
+    [InlineData("/summary.v1.Ingest/Push", Scope.Write)]
+    [InlineData("/summary.v1.Ingest/PushSketch", Scope.Write)]
+    [InlineData("/summary.v1.Query/Summarize", Scope.Read)]
+    [InlineData("/summary.v1.Query/Timeline", Scope.Read)]
+    [InlineData("/summary.v1.Query/Catalogue", Scope.Read)]
+    [InlineData("/summary.v1.Admin/RemoveSeries", Scope.Admin)]
+    [InlineData("/summary.v1.Admin/WriteSnapshot", Scope.Admin)]
+    [InlineData("/summary.v1.Admin/Holdings", Scope.Admin)]
+    [InlineData("/grpc.health.v1.Health/Check", Scope.None)]
+    public void Each_service_needs_one_scope_the_catalogue_a_read(string method, Scope scope) =>
+        Assert.Equal(scope, ApiKeyInterceptor.ScopeOf(method));
+
+    [Fact]
+    public async Task A_read_key_may_not_remove_series_or_write_snapshots()
+    {
+        await using var server = Start();
+        await server.Ingest.PushAsync(Requests.Batch("team-a.latency", [1, 2, 3]), TestServer.Bearer(Writer));
+        var removal = await Assert.ThrowsAsync<RpcException>(async () => await server.Admin.RemoveSeriesAsync(new RemoveSeriesRequest { Metric = "team-a.latency" }, TestServer.Bearer(Reader)));
+        Assert.Equal(StatusCode.PermissionDenied, removal.StatusCode);
+        var snapshot = await Assert.ThrowsAsync<RpcException>(async () => await server.Admin.WriteSnapshotAsync(new WriteSnapshotRequest(), TestServer.Bearer(Reader)));
+        Assert.Equal(StatusCode.PermissionDenied, snapshot.StatusCode);
+        Assert.Single((await server.Query.CatalogueAsync(new CatalogueRequest(), TestServer.Bearer(Reader))).Series);
     }
 
     [Fact]

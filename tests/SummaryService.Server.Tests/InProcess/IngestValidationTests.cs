@@ -55,7 +55,21 @@ public sealed class IngestValidationTests
         Assert.Contains(mention, ex.Status.Detail, StringComparison.Ordinal);
         var after = await server.Query.SummarizeAsync(Requests.Summarize("shop.ok"));
         Assert.Equal(3ul, Assert.Single(after.Groups).Summary.Count);
-        Assert.Single((await server.Admin.ListSeriesAsync(new ListSeriesRequest())).Series);
+        Assert.Single((await server.Query.CatalogueAsync(new CatalogueRequest())).Series);
+    }
+
+    [Fact]
+    public async Task A_time_outside_the_store_is_named_in_iso_8601_utc_beside_unix_ms()
+    {
+        await using var server = new TestServer(new Dictionary<string, string?> { ["Store:MaxFuture"] = "90s" });
+        long now = DateTimeOffset.UtcNow.ToUnixTimeMilliseconds();
+        long ahead = (now + 3_600_000) / 1000 * 1000;
+        var ex = await Assert.ThrowsAsync<RpcException>(async () => await server.Ingest.PushAsync(new Batch(Requests.Batch("shop.ahead", [1])) { TimeUnixMs = ahead }));
+
+        // ISO 8601 extended format in UTC ("Z"), whole seconds: the standard's form, written out here independently.
+        string iso = DateTimeOffset.FromUnixTimeMilliseconds(ahead).UtcDateTime.ToString("yyyy-MM-dd'T'HH:mm:ss'Z'", System.Globalization.CultureInfo.InvariantCulture);
+        Assert.StartsWith($"time_unix_ms is {iso} (Unix ms {ahead}), more than 1m30s ahead of the store's clock (", ex.Status.Detail, StringComparison.Ordinal);
+        Assert.Matches(@"clock \(\d{4}-\d\d-\d\dT\d\d:\d\d:\d\d(\.\d{3})?Z \(Unix ms \d+\)\)\.$", ex.Status.Detail);
     }
 
     [Fact]
@@ -64,7 +78,7 @@ public sealed class IngestValidationTests
         await using var server = new TestServer(new Dictionary<string, string?> { ["Server:MaxMessageBytes"] = "4096" });
         var ex = await Assert.ThrowsAsync<RpcException>(async () => await server.Ingest.PushAsync(Requests.Batch("shop.big", Enumerable.Repeat(1.5, 2000))));
         Assert.Equal(StatusCode.ResourceExhausted, ex.StatusCode);
-        Assert.Empty((await server.Admin.ListSeriesAsync(new ListSeriesRequest())).Series);
+        Assert.Empty((await server.Query.CatalogueAsync(new CatalogueRequest())).Series);
     }
 
     [Fact]

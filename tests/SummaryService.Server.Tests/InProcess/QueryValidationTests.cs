@@ -49,15 +49,38 @@ public sealed class QueryValidationTests
     }
 
     [Fact]
-    public async Task Series_refuses_a_missing_or_too_fine_step()
+    public async Task Timeline_refuses_a_missing_or_too_fine_step_in_the_duration_syntax()
     {
-        await using var server = new TestServer(new Dictionary<string, string?> { ["Server:MaxSeriesSteps"] = "100" });
+        await using var server = new TestServer(new Dictionary<string, string?> { ["Server:MaxTimelineSteps"] = "100" });
         await server.Ingest.PushAsync(Requests.Batch("shop.s", [1]));
-        var missing = new SeriesRequest { Selector = Requests.Selector("shop.s"), Window = Requests.Last(TimeSpan.FromHours(1)) };
-        Assert.Equal(StatusCode.InvalidArgument, (await Assert.ThrowsAsync<RpcException>(async () => await server.Query.SeriesAsync(missing))).StatusCode);
-        var fine = new SeriesRequest(missing) { Step = Duration.FromTimeSpan(TimeSpan.FromSeconds(1)) };
-        var ex = await Assert.ThrowsAsync<RpcException>(async () => await server.Query.SeriesAsync(fine));
-        Assert.Contains("3600 points", ex.Status.Detail, StringComparison.Ordinal);
+        var missing = new TimelineRequest { Selector = Requests.Selector("shop.s"), Window = Requests.Last(TimeSpan.FromHours(1)) };
+        Assert.Equal(StatusCode.InvalidArgument, (await Assert.ThrowsAsync<RpcException>(async () => await server.Query.TimelineAsync(missing))).StatusCode);
+        var fine = new TimelineRequest(missing) { Step = Duration.FromTimeSpan(TimeSpan.FromSeconds(1)) };
+        var ex = await Assert.ThrowsAsync<RpcException>(async () => await server.Query.TimelineAsync(fine));
+        Assert.Contains("step 1s cuts the window of 1h into 3600 steps; at most 100 are allowed", ex.Status.Detail, StringComparison.Ordinal);
+    }
+
+    [Fact]
+    public async Task A_reversed_range_names_both_ends_in_iso_8601_utc_beside_unix_ms()
+    {
+        await using var server = new TestServer();
+        await server.Ingest.PushAsync(Requests.Batch("shop.r", [1]));
+        var request = Requests.Summarize("shop.r");
+        request.Window = Requests.Range(1_796_175_000_000, 1_796_174_999_000);
+        var ex = await Assert.ThrowsAsync<RpcException>(async () => await server.Query.SummarizeAsync(request));
+
+        // 1,796,175,000 s after 1970-01-01T00:00:00Z is 2026-12-02T01:30:00Z: 20,789 days and 5,400 s (checked with Python's datetime).
+        Assert.Equal("window.range from_unix_ms 2026-12-02T01:30:00Z (Unix ms 1796175000000) is not before to_unix_ms 2026-12-02T01:29:59Z (Unix ms 1796174999000); windows are half-open [from, to).", ex.Status.Detail);
+    }
+
+    [Fact]
+    public async Task A_selection_that_matches_nothing_is_named_in_the_display_form()
+    {
+        await using var server = new TestServer();
+        await server.Ingest.PushAsync(Requests.Batch("shop.d", [1], ("region", "north"), ("host", "a")));
+        var ex = await Assert.ThrowsAsync<RpcException>(async () => await server.Query.SummarizeAsync(Requests.Summarize("shop.d", ("region", "south"), ("host", "a"))));
+        Assert.Equal(StatusCode.NotFound, ex.StatusCode);
+        Assert.Equal("no series matches shop.d · host=a · region=south.", ex.Status.Detail);
     }
 
     [Fact]

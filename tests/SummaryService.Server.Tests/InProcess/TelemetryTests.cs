@@ -28,7 +28,7 @@ public sealed class TelemetryTests
         await server.Ingest.PushAsync(Requests.Batch("shop.tel", [1, 2, 3, 4]));
         await Assert.ThrowsAsync<RpcException>(async () => await server.Ingest.PushAsync(Requests.Batch("shop.tel", [double.NaN])));
         await server.Query.SummarizeAsync(Requests.Summarize("shop.tel"));
-        await server.Admin.TakeSnapshotAsync(new TakeSnapshotRequest());
+        await server.Admin.WriteSnapshotAsync(new WriteSnapshotRequest());
         server.Services.GetRequiredService<MeterProvider>().ForceFlush();
         server.Services.GetRequiredService<TracerProvider>().ForceFlush();
 
@@ -37,6 +37,9 @@ public sealed class TelemetryTests
         Assert.Equal(4, SumOf(metrics, "summary.ingest.values"));
         Assert.Equal(1, SumOf(metrics, "summary.ingest.rejected_batches", ("reason", "NonFiniteValue")));
         Assert.Contains(metrics, m => m.Name == "summary.query.duration");
+        var queryTags = TagsOf(metrics, "summary.query.duration");
+        Assert.Contains(("rpc.method", (object?)"Summarize"), queryTags); // OpenTelemetry semantic conventions for RPC: the method name under rpc.method
+        Assert.DoesNotContain(queryTags, t => t.Key == "rpc");
         Assert.Contains(metrics, m => m.Name == "summary.store.snapshot.duration");
         Assert.Contains(metrics, m => m.Name == "summary.store.log_sync.duration");
         Assert.Equal(1, LastGauge(metrics, "summary.store.series"));
@@ -64,6 +67,23 @@ public sealed class TelemetryTests
         }
 
         return total;
+    }
+
+    private static List<(string Key, object? Value)> TagsOf(List<Metric> metrics, string name)
+    {
+        var tags = new List<(string Key, object? Value)>();
+        foreach (Metric metric in metrics.Where(m => m.Name == name))
+        {
+            foreach (ref readonly MetricPoint point in metric.GetMetricPoints())
+            {
+                foreach (var pair in point.Tags)
+                {
+                    tags.Add((pair.Key, pair.Value));
+                }
+            }
+        }
+
+        return tags;
     }
 
     private static long LastGauge(List<Metric> metrics, string name)

@@ -32,7 +32,7 @@ public sealed class JsonRouteTests
         Assert.Equal(SortedArrayStatistics.QuantileCustom(sorted, 0.5, QuantileDefinition.R7), summary["quantiles"]![0]!["value"].Number(), 1e-12); // MathNet.Numerics, Hyndman & Fan definition 7
         Assert.Equal(SortedArrayStatistics.QuantileCustom(sorted, 0.9, QuantileDefinition.R7), summary["quantiles"]![1]!["value"].Number(), 1e-12); // MathNet.Numerics, Hyndman & Fan definition 7
 
-        using var catalogue = await http.GetAsync("/v1/admin/series?metric=shop.json.latency");
+        using var catalogue = await http.GetAsync("/v1/catalogue?metric=shop.json.latency");
         var entry = (await catalogue.ReadJsonAsync())["series"]![0]!;
         Assert.Equal("north", entry["labels"]!["region"]!.GetValue<string>());
     }

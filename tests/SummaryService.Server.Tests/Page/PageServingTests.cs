@@ -19,7 +19,7 @@ public sealed class PageServingTests
         Assert.Contains("Distribution view", html, StringComparison.Ordinal);
         Assert.DoesNotContain("://", html.Replace("http://www.w3.org", "", StringComparison.Ordinal), StringComparison.Ordinal); // every asset is same-origin
 
-        foreach (string asset in new[] { "page.css", "svg.js", "api.js", "bands.js", "histogram.js", "figures.js", "page.js" })
+        foreach (string asset in new[] { "page.css", "svg.js", "clock.js", "api.js", "bands.js", "histogram.js", "figures.js", "page.js" })
         {
             using var part = await http.GetAsync($"/page/{asset}");
             Assert.Equal(HttpStatusCode.OK, part.StatusCode);

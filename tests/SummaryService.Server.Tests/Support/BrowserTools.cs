@@ -1,4 +1,4 @@
-using System.Diagnostics;
+using SummaryService.TestSupport;
 
 namespace SummaryService.Server.Tests.Support;
 
@@ -28,31 +28,6 @@ internal static class BrowserTools
         }
     }
 
-    private static async Task RunAsync(string command, string[] arguments, string folder, TimeSpan limit)
-    {
-        var info = new ProcessStartInfo(command) { WorkingDirectory = folder, RedirectStandardOutput = true, RedirectStandardError = true, UseShellExecute = false };
-        info.Environment["DEBIAN_FRONTEND"] = "noninteractive";
-        foreach (string argument in arguments)
-        {
-            info.ArgumentList.Add(argument);
-        }
-
-        using Process process = Process.Start(info) ?? throw new InvalidOperationException($"{command} did not start");
-        Task<string> stdout = process.StandardOutput.ReadToEndAsync();
-        Task<string> stderr = process.StandardError.ReadToEndAsync();
-        using var timeout = new CancellationTokenSource(limit);
-        try
-        {
-            await process.WaitForExitAsync(timeout.Token);
-        }
-        catch (OperationCanceledException)
-        {
-            process.Kill(entireProcessTree: true);
-        }
-
-        if (!process.HasExited || process.ExitCode != 0)
-        {
-            throw new InvalidOperationException($"`{command} {string.Join(' ', arguments)}` failed:\n{await stdout}\n{await stderr}");
-        }
-    }
+    private static Task RunAsync(string command, string[] arguments, string folder, TimeSpan limit) =>
+        ChildCommand.RunCheckedAsync(command, arguments, folder, limit, new Dictionary<string, string> { ["DEBIAN_FRONTEND"] = "noninteractive" });
 }

@@ -23,7 +23,7 @@ internal static class Requests
         var selector = new Contract.V1.Selector { Metric = metric };
         foreach (var (name, value) in labels)
         {
-            selector.MatchLabels[name] = value;
+            selector.LabelEquals[name] = value;
         }
 
         return selector;

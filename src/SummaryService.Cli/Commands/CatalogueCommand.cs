@@ -6,14 +6,14 @@ using SummaryService.Contract.V1;
 
 namespace SummaryService.Cli.Commands;
 
-/// <summary><c>catalog</c>: the series the server holds, with their counts and the span their buckets cover.</summary>
-public static class CatalogCommand
+/// <summary><c>catalogue</c>: the series the server holds, with their counts and the span their buckets cover.</summary>
+public static class CatalogueCommand
 {
     /// <summary>Builds the command.</summary>
     public static Command Create(CommandRunner runner)
     {
         ArgumentNullException.ThrowIfNull(runner);
-        var command = new Command("catalog", "List the series held: metric, labels, values, buckets and the span covered.");
+        var command = new Command("catalogue", "List the series held: each series, its values, buckets and the span covered.");
         var metric = new Argument<string?>("metric") { Description = "Only this metric; every metric the key may read when left out.", Arity = ArgumentArity.ZeroOrOne };
         var json = CommonOptions.Json();
         command.Add(metric);
@@ -23,10 +23,10 @@ public static class CatalogCommand
             string? name = run.Parse.GetValue(metric);
             if (name is not null && name.StartsWith('-'))
             {
-                throw new UsageException($"'{name}' is not an option of catalog; see --help.");
+                throw new UsageException($"'{name}' is not an option of catalogue; see --help.");
             }
 
-            ListSeriesReply reply = await run.Server.Admin.ListSeriesAsync(new ListSeriesRequest { Metric = name ?? "" }, ServerConnection.Unary(run.Cancellation));
+            CatalogueReply reply = await run.Server.Query.CatalogueAsync(new CatalogueRequest { Metric = name ?? "" }, ServerConnection.Unary(run.Cancellation));
             if (run.Parse.GetValue(json))
             {
                 JsonOutput.Write(run.Console, reply);
@@ -34,16 +34,14 @@ public static class CatalogCommand
             else
             {
                 var table = new Table().Border(TableBorder.Rounded);
-                table.AddColumn(new TableColumn(new Text("metric")));
-                table.AddColumn(new TableColumn(new Text("labels")));
+                table.AddColumn(new TableColumn(new Text("series")));
                 table.AddColumn(new TableColumn(new Text("values")).RightAligned());
                 table.AddColumn(new TableColumn(new Text("buckets")).RightAligned());
-                table.AddColumn(new TableColumn(new Text("span")));
-                foreach (SeriesEntry entry in reply.Series)
+                table.AddColumn(new TableColumn(new Text("span (UTC)")));
+                foreach (CatalogueEntry entry in reply.Series)
                 {
                     table.AddRow(
-                        new Text(entry.Metric),
-                        new Text(Figures.Labels(entry.Labels)),
+                        new Text(Figures.Series(entry.Metric, entry.Labels)),
                         new Text(entry.Count.ToString(System.Globalization.CultureInfo.InvariantCulture)),
                         new Text(entry.Buckets.ToString(System.Globalization.CultureInfo.InvariantCulture)),
                         new Text(WindowCommand.Span(entry.Extent)));
@@ -60,7 +58,7 @@ public static class CatalogCommand
             }
 
             return ExitCodes.Ok;
-        });
+        }, new FieldNames(("metric", "the metric")));
         return command;
     }
 }

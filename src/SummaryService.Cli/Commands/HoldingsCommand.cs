@@ -1,27 +1,27 @@
 using System.CommandLine;
 using Spectre.Console;
 using SummaryService.Cli.Connection;
-using SummaryService.Cli.Parsing;
 using SummaryService.Cli.Rendering;
+using SummaryService.Contract.Readable;
 using SummaryService.Contract.V1;
 
 namespace SummaryService.Cli.Commands;
 
-/// <summary><c>store</c>: the server's own figures — series, buckets and estimated memory per tier and per shard.</summary>
-public static class StoreCommand
+/// <summary><c>holdings</c>: what the server holds — series, buckets and estimated memory per tier and per shard.</summary>
+public static class HoldingsCommand
 {
     /// <summary>Builds the command.</summary>
     public static Command Create(CommandRunner runner)
     {
         ArgumentNullException.ThrowIfNull(runner);
-        var command = new Command("store", "Show the store's figures: series, buckets, estimated memory per tier and shard, durability.");
+        var command = new Command("holdings", "Show what the server holds: series, buckets, estimated memory per tier and shard, durability.");
         var shards = new Option<bool>("--shards") { Description = "Also list every shard." };
         var json = CommonOptions.Json();
         command.Add(shards);
         command.Add(json);
         runner.Bind(command, async run =>
         {
-            GetStatsReply reply = await run.Server.Admin.GetStatsAsync(new GetStatsRequest(), ServerConnection.Unary(run.Cancellation));
+            HoldingsReply reply = await run.Server.Admin.HoldingsAsync(new HoldingsRequest(), ServerConnection.Unary(run.Cancellation));
             if (run.Parse.GetValue(json))
             {
                 JsonOutput.Write(run.Console, reply);
@@ -34,7 +34,7 @@ public static class StoreCommand
             tiers.AddColumn(new TableColumn(new Text("tier (bucket width)")));
             tiers.AddColumn(new TableColumn(new Text("buckets")).RightAligned());
             tiers.AddColumn(new TableColumn(new Text("estimated memory")).RightAligned());
-            foreach (TierStats tier in reply.Tiers)
+            foreach (TierHoldings tier in reply.Tiers)
             {
                 tiers.AddRow(new Text(DurationText.Format(tier.BucketWidth.ToTimeSpan())), new Text(Count(tier.Buckets)), new Text(Bytes(tier.EstimatedBytes)));
             }
@@ -47,7 +47,7 @@ public static class StoreCommand
                 table.AddColumn(new TableColumn(new Text("series")).RightAligned());
                 table.AddColumn(new TableColumn(new Text("buckets")).RightAligned());
                 table.AddColumn(new TableColumn(new Text("estimated memory")).RightAligned());
-                foreach (ShardStats shard in reply.Shards)
+                foreach (ShardHoldings shard in reply.Shards)
                 {
                     table.AddRow(new Text(Count(shard.Shard)), new Text(Count(shard.Series)), new Text(Count(shard.Buckets)), new Text(Bytes(shard.EstimatedBytes)));
                 }

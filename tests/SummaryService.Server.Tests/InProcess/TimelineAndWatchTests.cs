@@ -6,10 +6,10 @@ using SummaryService.Server.Tests.Support;
 
 namespace SummaryService.Server.Tests.InProcess;
 
-public sealed class SeriesAndWatchTests
+public sealed class TimelineAndWatchTests
 {
     [Fact]
-    public async Task Series_gives_one_summary_per_step_with_that_steps_values()
+    public async Task Timeline_gives_one_summary_per_step_with_that_steps_values()
     {
         await using var server = new TestServer();
         long now = DateTimeOffset.UtcNow.ToUnixTimeMilliseconds();
@@ -20,16 +20,16 @@ public sealed class SeriesAndWatchTests
         batch.ValueTimesUnixMs.AddRange(times);
         await server.Ingest.PushAsync(batch);
 
-        var reply = await server.Query.SeriesAsync(new SeriesRequest { Selector = Requests.Selector("shop.plot"), Window = Requests.Range(start, start + (5 * 60_000)), Step = Duration.FromTimeSpan(TimeSpan.FromMinutes(1)) });
-        Assert.Equal(5, reply.Points.Count);
+        var reply = await server.Query.TimelineAsync(new TimelineRequest { Selector = Requests.Selector("shop.plot"), Window = Requests.Range(start, start + (5 * 60_000)), Step = Duration.FromTimeSpan(TimeSpan.FromMinutes(1)) });
+        Assert.Equal(5, reply.Steps.Count);
         for (int p = 0; p < 5; p++)
         {
-            var point = reply.Points[p];
-            double[] inside = values.Where((_, i) => times[i] >= point.Step.FromUnixMs && times[i] < point.Step.ToUnixMs).ToArray();
+            var step = reply.Steps[p];
+            double[] inside = values.Where((_, i) => times[i] >= step.Step.FromUnixMs && times[i] < step.Step.ToUnixMs).ToArray();
             Assert.Equal(60, inside.Length);
-            var summary = Assert.Single(point.Groups).Summary;
+            var summary = Assert.Single(step.Groups).Summary;
             Assert.Equal(inside.Mean(), summary.Mean, 1e-9); // MathNet.Numerics
-            Assert.Equal(point.Step, point.Covered);
+            Assert.Equal(step.Step, step.Covered);
         }
     }
 
