@@ -76,7 +76,7 @@ public static class RetentionRun
         }
 
         long fillRss = ProcFigures.StatusBytes(server.Pid, "VmRSS");
-        var stats = await new Admin.AdminClient(channel).GetStatsAsync(new GetStatsRequest(), cancellationToken: limit.Token);
+        var stats = await new Admin.AdminClient(channel).HoldingsAsync(new HoldingsRequest(), cancellationToken: limit.Token);
         var report = new
         {
             Command = "retention " + string.Join(' ', args),
