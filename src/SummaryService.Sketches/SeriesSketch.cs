@@ -1,3 +1,4 @@
+using SummaryService.Sketches.Buckets;
 using SummaryService.Sketches.Modes;
 using SummaryService.Sketches.Moments;
 using SummaryService.Sketches.Quantiles;
@@ -6,26 +7,31 @@ using SummaryService.Sketches.Summaries;
 namespace SummaryService.Sketches;
 
 /// <summary>
-/// Everything kept about one series in one time bucket: moments, KLL quantiles and modes, fed
-/// and merged together so that they always describe the same values.
+/// Everything kept about one series in one time bucket: moments, KLL quantiles, log buckets and
+/// modes, fed and merged together so that they always describe the same values.
 /// </summary>
 /// <remarks>
-/// Most buckets of a quiet series hold a handful of values, for which the KLL and mode parts
-/// would be exact lists of those values anyway. So a sketch starts small: moments plus the raw
-/// values in arrival order (about 200 bytes for four values instead of about 850). It becomes the
-/// full composite, by feeding the held values to fresh parts, once it would hold more than
-/// <see cref="SmallValueLimit"/> values, when a full sketch is merged into it, or when
-/// <see cref="Quantiles"/> or <see cref="Modes"/> is read. Below that limit the full parts would
-/// never compact nor leave their exact mode counter, so every answer, merge and serialized byte is
-/// the same in either form; the KLL coin is only seeded, never drawn, until the sketch is full.
+/// <para>Most buckets hold a few hundred values at most, for which the KLL and mode parts would be
+/// exact lists of those values anyway. So a sketch starts small: moments plus the raw values in
+/// arrival order (about 1.6 KB for 200 values instead of about 6 KB). It becomes the full composite,
+/// by feeding the held values to fresh parts, once it would hold more than
+/// <see cref="SmallValueLimit"/> values, when a full sketch is merged into it, or when a part is
+/// read. Below that limit the full parts would never compact nor leave their exact mode counter, and
+/// the log buckets depend on the set of values only, so every answer, merge and serialized byte is
+/// the same in either form; the KLL coin is only seeded, never drawn, until the sketch is full.</para>
+/// <para>Parts may be missing, and an answer then rests on the parts that are there (the summary
+/// says which, <see cref="Summary.Form"/>): an aged bucket is compacted (<see cref="Compact"/>) to
+/// moments, log buckets and exact mode counts; a sketch written before log buckets existed has
+/// none unless its KLL part still holds every value. A merge keeps a part only if both sides have
+/// it, since no part can stand for values it never saw.</para>
 /// </remarks>
 public sealed class SeriesSketch
 {
-    /// <summary>Most values a sketch keeps raw before it becomes the full composite.</summary>
-    public const int SmallValueLimit = 32;
+    /// <summary>Most values a sketch keeps raw before it becomes the full composite (lower when k or the mode exact limit is lower).</summary>
+    public const int SmallValueLimit = 200;
 
-    // Object header 16 B and six fields of 8 B; a moment sketch is a 16 B header and nine 8 B fields.
-    private const long OwnBytes = 16 + (6 * 8);
+    // Object header 16 B and eight fields of 8 B; a moment sketch is a 16 B header and nine 8 B fields.
+    private const long OwnBytes = 16 + (8 * 8);
     private const long MomentBytes = 16 + (9 * 8);
     private const long ArrayHeaderBytes = 24;
 
@@ -33,10 +39,15 @@ public sealed class SeriesSketch
     private readonly SeriesSketchOptions _options;
     private readonly ulong _seed;
     private KllSketch? _quantiles;
+    private LogBucketSketch? _buckets;
     private ModeSketch? _modes;
 
-    // The held values while small (length ≥ count, null while empty); null once full.
+    // The held values while small (length ≥ count, null while empty); null once grown.
     private double[]? _small;
+    private bool _grown;
+
+    // False for an aged (compact) bucket: growing builds no KLL part.
+    private bool _keepsRank = true;
 
     /// <summary>Creates an empty sketch.</summary>
     /// <param name="options">Accuracy settings; defaults when null.</param>
@@ -45,6 +56,7 @@ public sealed class SeriesSketch
     {
         options ??= SeriesSketchOptions.Default;
         KllSketch.RequireK(options.K);
+        LogBucketSketch.RequireSettings(options.LogScale, options.LogMaxBuckets);
         ModeSketch.RequireSettings(options.ModeResolution, options.ModeExactLimit, options.ModeWidth, options.ModeDepth, options.ModeCandidates);
         _options = options;
         _moments = new MomentSketch();
@@ -55,14 +67,11 @@ public sealed class SeriesSketch
         }
     }
 
-    private SeriesSketch(MomentSketch moments, SeriesSketchOptions options, ulong seed, KllSketch? quantiles, ModeSketch? modes, double[]? small)
+    private SeriesSketch(MomentSketch moments, SeriesSketchOptions options, ulong seed)
     {
         _moments = moments;
         _options = options;
         _seed = seed;
-        _quantiles = quantiles;
-        _modes = modes;
-        _small = small;
     }
 
     /// <summary>Accuracy settings this sketch was made with (or read back with).</summary>
@@ -71,17 +80,27 @@ public sealed class SeriesSketch
     /// <summary>Count, extremes, sum, mean and central moments.</summary>
     public MomentSketch Moments => _moments;
 
-    /// <summary>Quantiles, ranks, MAD and histograms. Reading it turns a small sketch into its full form.</summary>
-    public KllSketch Quantiles
+    /// <summary>KLL quantiles, or null when this sketch keeps none (compact or merged with a compact one). Reading it turns a small sketch into its full form.</summary>
+    public KllSketch? Quantiles
     {
         get
         {
             Grow();
-            return _quantiles!;
+            return _quantiles;
         }
     }
 
-    /// <summary>Most frequent values. Reading it turns a small sketch into its full form.</summary>
+    /// <summary>Log buckets, or null for a sketch written before they existed (and merges with one). Reading it turns a small sketch into its full form.</summary>
+    public LogBucketSketch? LogBuckets
+    {
+        get
+        {
+            Grow();
+            return _buckets;
+        }
+    }
+
+    /// <summary>Exact mode counts or their count-min form. Reading it turns a small sketch into its full form.</summary>
     public ModeSketch Modes
     {
         get
@@ -91,22 +110,25 @@ public sealed class SeriesSketch
         }
     }
 
-    /// <summary>True while the sketch keeps its values raw rather than in the full KLL and mode parts.</summary>
-    public bool IsSmall => _quantiles is null;
+    /// <summary>True while the sketch keeps its values raw rather than in the parts.</summary>
+    public bool IsSmall => !_grown;
+
+    /// <summary>False for a compact sketch: it builds and keeps no KLL part.</summary>
+    public bool KeepsRankPart => _keepsRank && (!_grown || _quantiles is not null);
 
     /// <summary>Number of values folded in.</summary>
     public long Count => _moments.Count;
 
-    /// <summary>Approximate heap bytes of the whole composite: this object, the moments, and either the held values or the two full parts.</summary>
-    public long EstimatedBytes => _quantiles is null
-        ? OwnBytes + MomentBytes + (_small is null ? 0 : ArrayHeaderBytes + (8L * _small.Length))
-        : OwnBytes + MomentBytes + _quantiles.EstimatedBytes + _modes!.EstimatedBytes;
+    /// <summary>Approximate heap bytes of the whole composite: this object, the moments, and either the held values or the parts.</summary>
+    public long EstimatedBytes => _grown
+        ? OwnBytes + MomentBytes + (_quantiles?.EstimatedBytes ?? 0) + (_buckets?.EstimatedBytes ?? 0) + _modes!.EstimatedBytes
+        : OwnBytes + MomentBytes + (_small is null ? 0 : ArrayHeaderBytes + (8L * _small.Length));
 
     /// <summary>Folds in one finite value.</summary>
     public void Add(double value)
     {
         FiniteValues.Require(value);
-        if (_quantiles is null)
+        if (!_grown)
         {
             if (TryHold([value]))
             {
@@ -118,7 +140,8 @@ public sealed class SeriesSketch
         }
 
         _moments.AddUnchecked(value);
-        _quantiles!.AddUnchecked(value);
+        _quantiles?.AddUnchecked(value);
+        _buckets?.AddUnchecked(value);
         _modes!.AddUnchecked(value);
     }
 
@@ -126,7 +149,7 @@ public sealed class SeriesSketch
     public void Add(ReadOnlySpan<double> values)
     {
         FiniteValues.Require(values);
-        if (_quantiles is null)
+        if (!_grown)
         {
             if (TryHold(values))
             {
@@ -138,7 +161,8 @@ public sealed class SeriesSketch
         }
 
         _moments.AddUnchecked(values);
-        _quantiles!.AddUnchecked(values);
+        _quantiles?.AddUnchecked(values);
+        _buckets?.AddUnchecked(values);
         _modes!.AddUnchecked(values);
     }
 
@@ -158,7 +182,7 @@ public sealed class SeriesSketch
             throw new ArgumentException("Cannot merge series sketches whose mode sketches are keyed or shaped differently.", nameof(other));
         }
 
-        if (other._quantiles is null)
+        if (!other._grown)
         {
             if (other.Count == 0)
             {
@@ -166,8 +190,9 @@ public sealed class SeriesSketch
                 return;
             }
 
+            // Raw values can feed every part this sketch has, so nothing is lost.
             ReadOnlySpan<double> held = other.HeldValues;
-            if (_quantiles is null && TryHold(held))
+            if (!_grown && TryHold(held))
             {
                 _moments.Merge(other._moments);
                 return;
@@ -176,72 +201,141 @@ public sealed class SeriesSketch
             Grow();
             _moments.Merge(other._moments);
             (double min, double max) = OrderKeys.RangeOf(held);
-            _quantiles!.MergeUncompacted(held, min, max);
+            _quantiles?.MergeUncompacted(held, min, max);
+            _buckets?.AddUnchecked(held);
             _modes!.MergeExactEntries(ModeSketch.ExactEntriesOf(held, _options.ModeResolution));
             return;
         }
 
         Grow();
         _moments.Merge(other._moments);
-        _quantiles!.Merge(other._quantiles);
+        _quantiles = _quantiles is not null && other._quantiles is not null ? Merged(_quantiles, other._quantiles) : null;
+        _buckets = _buckets is not null && other._buckets is not null ? Merged(_buckets, other._buckets) : null;
         _modes!.Merge(other._modes!);
+    }
+
+    /// <summary>
+    /// Turns this sketch into the compact form of an aged bucket: no KLL part (now or after growing)
+    /// and no count-min table, so that what is left is moments, log buckets and mode counts while
+    /// they are exact. Every answer then rests on the log buckets, whose bound is deterministic. A
+    /// sketch without log buckets (written before they existed) keeps its parts, which are then its
+    /// only quantile source; a small sketch keeps its values, which stay exact.
+    /// </summary>
+    public void Compact()
+    {
+        if (_grown && _buckets is null)
+        {
+            return;
+        }
+
+        bool changes = _keepsRank || _quantiles is not null || (_modes is not null && !_modes.IsExact && !_modes.IsContinuous);
+        _keepsRank = false;
+        if (_grown)
+        {
+            _quantiles = null;
+            if (!_modes!.IsExact)
+            {
+                _modes.StopCounting();
+            }
+        }
+
+        // Trimmed when the form changes; an already compact bucket that takes late values keeps its slack.
+        if (changes)
+        {
+            TrimExcess();
+        }
     }
 
     /// <summary>
     /// Gives back working space the parts keep while values arrive (see <see cref="KllSketch.TrimExcess"/>),
     /// for a sketch that is done growing. Answers and serialized form are unchanged.
     /// </summary>
-    public void TrimExcess() => _quantiles?.TrimExcess();
+    public void TrimExcess()
+    {
+        _quantiles?.TrimExcess();
+        _buckets?.TrimExcess();
+        if (_small is not null && _small.Length > Count)
+        {
+            Array.Resize(ref _small, (int)Count);
+        }
+    }
 
     /// <summary>Creates an independent copy in the same form.</summary>
-    public SeriesSketch Clone() => _quantiles is null
-        ? new(_moments.Clone(), _options, _seed, null, null, Count == 0 ? null : HeldValues.ToArray())
-        : new(_moments.Clone(), _options, _seed, _quantiles.Clone(), _modes!.Clone(), null);
+    public SeriesSketch Clone()
+    {
+        var copy = new SeriesSketch(_moments.Clone(), _options, _seed)
+        {
+            _grown = _grown,
+            _keepsRank = _keepsRank,
+            _small = _grown || Count == 0 ? null : HeldValues.ToArray(),
+            _quantiles = _quantiles?.Clone(),
+            _buckets = _buckets?.Clone(),
+            _modes = _modes?.Clone(),
+        };
+        return copy;
+    }
 
     /// <summary>The whole descriptive summary with its bounds.</summary>
     public Summary Summarize(SummaryOptions? options = null)
     {
-        (KllSketch quantiles, ModeSketch modes) = FullParts();
-        return SummaryBuilder.Build(_moments, quantiles, modes, options ?? new SummaryOptions());
+        (KllSketch? quantiles, LogBucketSketch? buckets, ModeSketch modes) = FullParts();
+        return SummaryBuilder.Build(_moments, quantiles, buckets, modes, options ?? new SummaryOptions());
     }
 
     /// <summary>
-    /// The KLL and mode parts as the full form holds them; built afresh from the held values while
-    /// small, leaving this sketch as it is (for serializing and summarizing without growing).
+    /// The parts as the full form holds them; built afresh from the held values while small (a KLL
+    /// part always, as it holds the values exactly), leaving this sketch as it is (for serializing
+    /// and summarizing without growing).
     /// </summary>
-    internal (KllSketch Quantiles, ModeSketch Modes) FullParts()
+    internal (KllSketch? Quantiles, LogBucketSketch? Buckets, ModeSketch Modes) FullParts()
     {
-        if (_quantiles is not null)
+        if (_grown)
         {
-            return (_quantiles, _modes!);
+            return (_quantiles, _buckets, _modes!);
         }
 
-        (KllSketch quantiles, ModeSketch modes) = EmptyParts(_options, _seed);
+        var parts = EmptyParts(_options, _seed, withRank: true);
         ReadOnlySpan<double> held = HeldValues;
-        quantiles.AddUnchecked(held);
-        modes.AddUnchecked(held);
-        return (quantiles, modes);
+        parts.Quantiles!.AddUnchecked(held);
+        parts.Buckets.AddUnchecked(held);
+        parts.Modes.AddUnchecked(held);
+        return parts;
     }
 
     /// <summary>
     /// Assembles a sketch from validated parts (see <c>SketchCodec</c>). Parts that a small sketch
     /// would serialize to — one never-compacted level, exact modes that count exactly those items —
-    /// become a small sketch again, so a bucket read back from a snapshot is as small as it was.
+    /// become a small sketch again, so a bucket read back from a snapshot is as small as it was. A
+    /// KLL part that still holds every value also gives the log buckets, when none were written.
     /// </summary>
-    internal static SeriesSketch FromParts(MomentSketch moments, KllSketch quantiles, ModeSketch modes)
+    internal static SeriesSketch FromParts(MomentSketch moments, KllSketch? quantiles, LogBucketSketch? buckets, ModeSketch modes, bool keepsRank)
     {
-        SeriesSketchOptions options = OptionsOf(quantiles, modes);
+        SeriesSketchOptions options = OptionsOf(quantiles, buckets, modes);
         long count = moments.Count;
-        if (count <= SmallLimitOf(options) && quantiles.LevelCount == 1 && quantiles.IsExact && modes.IsExact)
+        ulong seed = quantiles?.RandomState ?? 0;
+        if (quantiles is not null && count <= SmallLimitOf(options) && quantiles.LevelCount == 1 && quantiles.IsExact && modes.IsExact)
         {
             double[] items = quantiles.LevelValues(0);
             if (items.Length == count && ModeSketch.ExactEntriesOf(items, options.ModeResolution).AsSpan().SequenceEqual(modes.ExactEntries) && SameRange(items, quantiles))
             {
-                return new SeriesSketch(moments, options, quantiles.RandomState, null, null, count == 0 ? null : items);
+                return new SeriesSketch(moments, options, seed) { _small = count == 0 ? null : items, _keepsRank = keepsRank };
             }
         }
 
-        return new SeriesSketch(moments, options, quantiles.RandomState, quantiles, modes, null);
+        if (buckets is null && quantiles is not null && quantiles.IsExact && quantiles.LevelCount == 1)
+        {
+            buckets = new LogBucketSketch(options.LogScale, options.LogMaxBuckets);
+            buckets.AddUnchecked(quantiles.LevelValues(0));
+        }
+
+        return new SeriesSketch(moments, options, seed)
+        {
+            _grown = true,
+            _keepsRank = keepsRank && quantiles is not null,
+            _quantiles = quantiles,
+            _buckets = buckets,
+            _modes = modes,
+        };
     }
 
     private ReadOnlySpan<double> HeldValues => _small is null ? default : _small.AsSpan(0, (int)_moments.Count);
@@ -251,13 +345,32 @@ public sealed class SeriesSketch
     private static int SmallLimitOf(SeriesSketchOptions options) =>
         Math.Min(SmallValueLimit, Math.Min(options.K, options.ModeExactLimit));
 
-    private static (KllSketch Quantiles, ModeSketch Modes) EmptyParts(SeriesSketchOptions options, ulong seed) =>
-        (new KllSketch(options.K, seed), new ModeSketch(options.ModeResolution, options.ModeExactLimit, options.ModeWidth, options.ModeDepth, options.ModeCandidates));
+    private static (KllSketch? Quantiles, LogBucketSketch Buckets, ModeSketch Modes) EmptyParts(SeriesSketchOptions options, ulong seed, bool withRank) =>
+        (withRank ? new KllSketch(options.K, seed) : null,
+         new LogBucketSketch(options.LogScale, options.LogMaxBuckets),
+         new ModeSketch(options.ModeResolution, options.ModeExactLimit, options.ModeWidth, options.ModeDepth, options.ModeCandidates));
 
-    private static SeriesSketchOptions OptionsOf(KllSketch quantiles, ModeSketch modes)
+    private static KllSketch Merged(KllSketch into, KllSketch other)
+    {
+        into.Merge(other);
+        return into;
+    }
+
+    private static LogBucketSketch Merged(LogBucketSketch into, LogBucketSketch other)
+    {
+        into.Merge(other);
+        return into;
+    }
+
+    private static SeriesSketchOptions OptionsOf(KllSketch? quantiles, LogBucketSketch? buckets, ModeSketch modes)
     {
         SeriesSketchOptions defaults = SeriesSketchOptions.Default;
-        bool isDefault = quantiles.K == defaults.K
+        int k = quantiles?.K ?? defaults.K;
+        int scale = buckets?.Scale ?? defaults.LogScale;
+        int maxBuckets = buckets?.MaxBuckets ?? defaults.LogMaxBuckets;
+        bool isDefault = k == defaults.K
+            && scale == defaults.LogScale
+            && maxBuckets == defaults.LogMaxBuckets
             && BitConverter.DoubleToInt64Bits(modes.Resolution) == BitConverter.DoubleToInt64Bits(defaults.ModeResolution)
             && modes.ExactLimit == defaults.ModeExactLimit
             && modes.Width == defaults.ModeWidth
@@ -267,7 +380,9 @@ public sealed class SeriesSketch
         // Shared when default, so that buckets read back from disk do not each carry a settings object.
         return isDefault ? defaults : new SeriesSketchOptions
         {
-            K = quantiles.K,
+            K = k,
+            LogScale = scale,
+            LogMaxBuckets = maxBuckets,
             ModeResolution = modes.Resolution,
             ModeExactLimit = modes.ExactLimit,
             ModeWidth = modes.Width,
@@ -315,12 +430,18 @@ public sealed class SeriesSketch
     // counts below the small limit, that is the state the parts would have reached value by value.
     private void Grow()
     {
-        if (_quantiles is not null)
+        if (_grown)
         {
             return;
         }
 
-        (_quantiles, _modes) = FullParts();
+        var parts = EmptyParts(_options, _seed, _keepsRank);
+        ReadOnlySpan<double> held = HeldValues;
+        parts.Quantiles?.AddUnchecked(held);
+        parts.Buckets.AddUnchecked(held);
+        parts.Modes.AddUnchecked(held);
+        (_quantiles, _buckets, _modes) = parts;
         _small = null;
+        _grown = true;
     }
 }

@@ -273,7 +273,9 @@ public sealed class PersistentSeriesStore : ISeriesStore, IAsyncDisposable
         _disposed = true;
         if (_persistence.Durability != DurabilityMode.None)
         {
-            await TakeSnapshotAsync().ConfigureAwait(false);
+            // Periodic snapshots log at Debug; the one at shutdown is what an operator looks for.
+            SnapshotInfo final = await TakeSnapshotAsync().ConfigureAwait(false);
+            _logger.LogInformation("Snapshot {Generation}: {Series} series, {Bytes} bytes in {Elapsed}, written at shutdown.", final.Generation, final.Series, final.Bytes, DurationText.Format(final.Elapsed));
         }
 
         if (_log is not null)

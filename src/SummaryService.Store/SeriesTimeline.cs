@@ -7,6 +7,12 @@ namespace SummaryService.Store;
 /// One series' buckets, tier by tier. Every value lives in exactly one bucket: the finest tier
 /// whose bucket for its timestamp has not yet aged out. Not thread-safe; the owning shard locks.
 /// </summary>
+/// <remarks>
+/// Buckets of the first tier keep the full sketch; every bucket of a later tier is kept compact
+/// (<see cref="SeriesSketch.Compact"/>: moments, log buckets and exact mode counts), however it got
+/// there — rolled up, read back from a snapshot, uploaded or filled by late values — so that an
+/// aged bucket costs a few hundred bytes to a couple of kilobytes and answers from its log buckets.
+/// </remarks>
 internal sealed class SeriesTimeline(SeriesKey key, StoreOptions options)
 {
     /// <summary>
@@ -79,16 +85,7 @@ internal sealed class SeriesTimeline(SeriesKey key, StoreOptions options)
     {
         var (tier, bucketStart) = savedTier >= 0 ? (savedTier, start) : Locate(start, nowMs);
         Invalidate(tier, bucketStart);
-        var buckets = _tiers[tier];
-        if (buckets.TryGetValue(bucketStart, out var existing))
-        {
-            long before = existing.EstimatedBytes;
-            existing.Merge(sketch);
-            return existing.EstimatedBytes - before;
-        }
-
-        buckets.Add(bucketStart, sketch);
-        return sketch.EstimatedBytes;
+        return PutInto(tier, bucketStart, sketch);
     }
 
     /// <summary>Moves buckets that aged out of a tier into the next one and drops those past the last; returns the change in estimated bytes.</summary>
@@ -111,18 +108,7 @@ internal sealed class SeriesTimeline(SeriesKey key, StoreOptions options)
                 {
                     long coarse = AlignDown(bucketStart, options.Tiers[i + 1].WidthMs);
                     Invalidate(i + 1, coarse);
-                    var next = _tiers[i + 1];
-                    if (next.TryGetValue(coarse, out var target))
-                    {
-                        long before = target.EstimatedBytes;
-                        target.Merge(sketch);
-                        change += target.EstimatedBytes - before;
-                    }
-                    else
-                    {
-                        next.Add(coarse, sketch);
-                        change += sketch.EstimatedBytes;
-                    }
+                    change += PutInto(i + 1, coarse, sketch);
                 }
             }
         }
@@ -294,12 +280,48 @@ internal sealed class SeriesTimeline(SeriesKey key, StoreOptions options)
             sketch = new SeriesSketch(options.Sketch, SeedFor(tier, bucketStart));
             buckets.Add(bucketStart, sketch);
             sketch.Add(values);
+            KeepForm(tier, sketch);
             return sketch.EstimatedBytes + TrimBucketBefore(buckets, bucketStart);
         }
 
         long previous = sketch.EstimatedBytes;
         sketch.Add(values);
+        KeepForm(tier, sketch);
         return sketch.EstimatedBytes - previous;
+    }
+
+    // Puts a whole sketch into a bucket (merging into one already there) in the tier's form; returns
+    // the change in estimated bytes. Compacted before a merge so that no KLL part or count-min table
+    // is built only to be dropped.
+    private long PutInto(int tier, long bucketStart, SeriesSketch sketch)
+    {
+        KeepForm(tier, sketch);
+        var buckets = _tiers[tier];
+        if (buckets.TryGetValue(bucketStart, out var existing))
+        {
+            long before = existing.EstimatedBytes;
+            existing.Merge(sketch);
+            KeepForm(tier, existing);
+            if (tier > 0)
+            {
+                // An aged bucket grows by whole merges, not by values: no slack to keep.
+                existing.TrimExcess();
+            }
+
+            return existing.EstimatedBytes - before;
+        }
+
+        buckets.Add(bucketStart, sketch);
+        return sketch.EstimatedBytes;
+    }
+
+    // Past the first tier a bucket is compact; compacting one that already is costs a few checks.
+    private static void KeepForm(int tier, SeriesSketch sketch)
+    {
+        if (tier > 0)
+        {
+            sketch.Compact();
+        }
     }
 
     // A series writes into its newest bucket; once a newer one opens, the one before it is done

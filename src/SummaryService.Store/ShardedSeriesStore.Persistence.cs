@@ -182,7 +182,7 @@ public sealed partial class ShardedSeriesStore
 
     private static LogRecord LogRecordOf(ulong lsn, SeriesBatch batch, TimeRun[] times)
     {
-        var record = new LogRecord { Lsn = lsn, Metric = batch.Metric, Producer = batch.Producer, Sequence = batch.Sequence };
+        var record = new LogRecord { Lsn = lsn, Metric = batch.Metric, Producer = batch.Producer, Sequence = batch.Sequence, FormatVersion = LogSegments.FormatVersion };
         foreach (var (name, value) in batch.Labels)
         {
             record.Labels.Add(name, value);

@@ -105,7 +105,7 @@ public sealed partial class ShardedSeriesStore
 
     private static LogRecord UploadRecordOf(ulong lsn, SketchUpload upload, long time, SeriesSketch sketch)
     {
-        var record = new LogRecord { Lsn = lsn, Metric = upload.Metric, Producer = upload.Producer, Sequence = upload.Sequence, Sketch = SketchCodec.ToState(sketch) };
+        var record = new LogRecord { Lsn = lsn, Metric = upload.Metric, Producer = upload.Producer, Sequence = upload.Sequence, Sketch = SketchCodec.ToState(sketch), FormatVersion = LogSegments.FormatVersion };
         foreach (var (name, value) in upload.Labels)
         {
             record.Labels.Add(name, value);

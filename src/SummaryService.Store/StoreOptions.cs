@@ -6,11 +6,17 @@ namespace SummaryService.Store;
 /// <summary>Shape, limits and accuracy of a series store.</summary>
 public sealed record StoreOptions
 {
-    /// <summary>10 s buckets for 6 h, 1 min for 7 days, 1 h for 90 days.</summary>
+    /// <summary>
+    /// 10 s buckets for 6 h, 1 min for 2 days, 10 min for 14 days, 1 h for 90 days: sized by what
+    /// dashboards ask (a 6 h window at 1 min steps reads one full form throughout; a day at 1 min, a
+    /// week at 10 min and a quarter at 1 h stay near or under 2,000 points) and by what a bucket costs
+    /// (a full 10 s bucket up to ~12 KB, a compact aged one ~1–2 KB; docs/performance.md, "Tiers").
+    /// </summary>
     public static readonly IReadOnlyList<TierOptions> DefaultTiers =
     [
         new(TimeSpan.FromSeconds(10), TimeSpan.FromHours(6)),
-        new(TimeSpan.FromMinutes(1), TimeSpan.FromDays(7)),
+        new(TimeSpan.FromMinutes(1), TimeSpan.FromDays(2)),
+        new(TimeSpan.FromMinutes(10), TimeSpan.FromDays(14)),
         new(TimeSpan.FromHours(1), TimeSpan.FromDays(90)),
     ];
 

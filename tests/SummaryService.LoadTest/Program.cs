@@ -5,10 +5,16 @@ using SummaryService.LoadTest.Baseline;
 using SummaryService.LoadTest.Report;
 using SummaryService.LoadTest.Workload;
 
-// `baseline-server PORT` serves the exact baseline; anything else is a load run (see LoadOptions).
+// `baseline-server PORT` serves the exact baseline; `retention ...` measures what days of a steady
+// series cost (see RetentionRun); anything else is a load run (see LoadOptions).
 if (args.Length >= 2 && args[0] == "baseline-server")
 {
     return await BaselineServer.RunAsync(int.Parse(args[1], CultureInfo.InvariantCulture));
+}
+
+if (args.Length >= 1 && args[0] == "retention")
+{
+    return await SummaryService.LoadTest.Retention.RetentionRun.RunAsync(args[1..]);
 }
 
 LoadOptions options;

@@ -142,6 +142,8 @@ try {
   check(/^\[.*\] at \d+%$/.test(seen.meanInterval ?? ""), `mean interval reads "${seen.meanInterval}"`);
   // Quantiles of a compacted sketch come from random coins, so two answers need only agree within the interval.
   check(seen.p99 >= p99.low && seen.p99 <= p99.high, `p99 shown ${seen.p99} outside the server's [${p99.low}, ${p99.high}]`);
+  // Each interval says which bound held it (log buckets, rank bound or min/max), as the server named it.
+  check(server.exact || /· (log buckets|rank bound|min\/max)/.test(seen.p99Interval ?? ""), `p99 interval "${seen.p99Interval}" names no bound (server: ${p99.lowSource} / ${p99.highSource})`);
   check(foreign.length === 0, `requests left the server: ${foreign.join(", ")}`);
   check(pageErrors.length === 0, `script errors: ${pageErrors.join("; ")}`);
 

@@ -135,6 +135,7 @@ public static class ShiftCommand
         }
 
         console.Write(table);
+        console.WriteLine(BoundText.Shifts(reply.Shifts));
         console.WriteLine($"Kolmogorov–Smirnov distance {Figures.Of(reply.KsDistance)} [{Figures.Of(reply.KsLow)}, {Figures.Of(reply.KsHigh)}] at {Figures.Percent(request.Confidence)} confidence");
         console.WriteLine("\"moved\" means the quantile's two intervals (rank error plus sampling error) do not overlap; \"inconclusive\" means they do, so the move may be real or noise and the data cannot tell yet. b / a is the ratio of the two point estimates either way.");
     }

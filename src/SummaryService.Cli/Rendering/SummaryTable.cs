@@ -25,7 +25,7 @@ public static class SummaryTable
         QuantileEstimate? median = summary.FiveNumber?.Median;
         if (median is not null)
         {
-            Row(table, "median (p50)", Figures.Of(median.Value), Figures.Interval(median.Low, median.High), RankNote(median.RankError, level));
+            Row(table, "median (p50)", Figures.Of(median.Value), Figures.Interval(median.Low, median.High), BoundText.Quantile(median, level));
             if (summary.HasMean)
             {
                 double gap = summary.Mean - median.Value;
@@ -48,17 +48,25 @@ public static class SummaryTable
         // Min, median and max have rows of their own above; a quantile at 0, 0.5 or 1 would repeat them.
         foreach (QuantileEstimate q in summary.Quantiles.Where(q => q.Q is not 0 and not 1 && !(q.Q == 0.5 && median is not null)))
         {
-            Row(table, Figures.QuantileName(q.Q), Figures.Of(q.Value), Figures.Interval(q.Low, q.High), RankNote(q.RankError, level));
+            Row(table, Figures.QuantileName(q.Q), Figures.Of(q.Value), Figures.Interval(q.Low, q.High), BoundText.Quantile(q, level));
         }
 
         foreach (RankEstimate r in summary.Ranks)
         {
-            Row(table, $"share ≤ {Figures.Of(r.Value)}", Figures.Percent(r.Fraction), $"[{Figures.Percent(r.Low)}, {Figures.Percent(r.High)}]", level);
+            Row(table, $"share ≤ {Figures.Of(r.Value)}", Figures.Percent(r.Fraction), $"[{Figures.Percent(r.Low)}, {Figures.Percent(r.High)}]", $"{BoundText.Of(r.LowSource, r.HighSource)}, {level}");
         }
 
         foreach (ModeEstimate m in summary.Modes)
         {
-            Row(table, $"mode {Figures.Of(m.Value)}", $"{m.Count}×", $"[{m.CountLow}, {m.CountHigh}]", "occurrences");
+            if (m.Kind == ModeKind.Region)
+            {
+                // A density peak of continuous data: where it lies, and the share of values in its hump.
+                Row(table, $"mode ~{Figures.Of(m.Value)}", $"{Figures.Percent(m.Share)} of values", Figures.Interval(m.Low, m.High), "density peak: where it lies");
+            }
+            else
+            {
+                Row(table, $"mode {Figures.Of(m.Value)}", $"{m.Count}×", $"[{m.CountLow}, {m.CountHigh}]", "occurrences");
+            }
         }
 
         if (summary.ModesOmitted > 0)
@@ -68,7 +76,7 @@ public static class SummaryTable
 
         table.Caption(Markup.Escape(summary.Exact
             ? "exact: nothing was approximated"
-            : $"rank error ε = {Figures.Percent(summary.RankError)} at {level} confidence"));
+            : $"{BoundText.Form(summary)}; rank error ε = {Figures.Percent(summary.RankError)} at {level} confidence"));
         return table;
     }
 
@@ -98,8 +106,6 @@ public static class SummaryTable
 
         return grid;
     }
-
-    private static string RankNote(double rankError, string level) => rankError == 0 ? "exact" : $"±{Figures.Percent(rankError)} rank, {level}";
 
     private static void Row(Table table, string name, string estimate, string interval, string note) =>
         table.AddRow(new Text(name), new Text(estimate), new Text(interval), new Text(note, new Style(Color.Grey)));

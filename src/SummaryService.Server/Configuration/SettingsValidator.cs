@@ -24,6 +24,16 @@ internal sealed class SettingsValidator :
                 return Fail($"Store:SketchK is {options.SketchK}; it must lie in [{Sketches.Quantiles.KllSketch.MinK}, {Sketches.Quantiles.KllSketch.MaxK}].");
             }
 
+            if (options.LogScale is < 0 or > Sketches.Buckets.LogBucketSketch.MaxScale)
+            {
+                return Fail($"Store:LogScale is {options.LogScale}; it must lie in [0, {Sketches.Buckets.LogBucketSketch.MaxScale}] (6 gives a relative bound of 0.54%).");
+            }
+
+            if (options.LogMaxBuckets is < Sketches.Buckets.LogBucketSketch.MinMaxBuckets or > Sketches.Buckets.LogBucketSketch.MaxMaxBuckets)
+            {
+                return Fail($"Store:LogMaxBuckets is {options.LogMaxBuckets}; it must lie in [{Sketches.Buckets.LogBucketSketch.MinMaxBuckets}, {Sketches.Buckets.LogBucketSketch.MaxMaxBuckets}].");
+            }
+
             if (!(options.ModeResolution >= 0) || !double.IsFinite(options.ModeResolution))
             {
                 return Fail($"Store:ModeResolution is {options.ModeResolution}; use 0 for exact values or a positive bin width.");

@@ -1,5 +1,6 @@
 using SummaryService.Contract.V1;
 using Domain = SummaryService.Sketches.Summaries;
+using DomainModes = SummaryService.Sketches.Modes;
 using StoreTimeRange = SummaryService.Store.TimeRange;
 
 namespace SummaryService.Server.Mapping;
@@ -18,6 +19,11 @@ public static class SummaryMapping
             RankError = summary.RankError,
             Confidence = summary.Confidence,
             ModesOmitted = (uint)summary.ModesOmitted,
+            Form = ToProto(summary.Form),
+            MadLowSource = ToProto(summary.MadLowSource),
+            MadHighSource = ToProto(summary.MadHighSource),
+            IqrLowSource = ToProto(summary.IqrLowSource),
+            IqrHighSource = ToProto(summary.IqrHighSource),
         };
         Set(summary.Sum, v => proto.Sum = v);
         Set(summary.Mean, v => proto.Mean = v);
@@ -39,6 +45,12 @@ public static class SummaryMapping
         Set(summary.MadLow, v => proto.MadLow = v);
         Set(summary.MadHigh, v => proto.MadHigh = v);
         Set(summary.QuartileSkewness, v => proto.QuartileSkewness = v);
+        Set(summary.RelativeError, v => proto.RelativeError = v);
+        if (summary.BucketScale is { } scale)
+        {
+            proto.BucketScale = scale;
+        }
+
         // Loops, not LINQ: a Series answer maps one summary per step, hundreds per call.
         foreach (var q in summary.Quantiles)
         {
@@ -47,12 +59,22 @@ public static class SummaryMapping
 
         foreach (var r in summary.Ranks)
         {
-            proto.Ranks.Add(new RankEstimate { Value = r.Value, Fraction = r.Fraction, Low = r.Low, High = r.High });
+            proto.Ranks.Add(new RankEstimate { Value = r.Value, Fraction = r.Fraction, Low = r.Low, High = r.High, LowSource = ToProto(r.LowSource), HighSource = ToProto(r.HighSource) });
         }
 
         foreach (var m in summary.Modes)
         {
-            proto.Modes.Add(new ModeEstimate { Value = m.Value, Count = (ulong)m.Count, CountLow = (ulong)m.CountLow, CountHigh = (ulong)m.CountHigh });
+            proto.Modes.Add(new ModeEstimate
+            {
+                Value = m.Value,
+                Count = (ulong)m.Count,
+                CountLow = (ulong)m.CountLow,
+                CountHigh = (ulong)m.CountHigh,
+                Kind = m.Kind == DomainModes.ModeKind.Region ? ModeKind.Region : ModeKind.ExactValue,
+                Low = m.Low,
+                High = m.High,
+                Share = m.Share,
+            });
         }
 
         if (summary.FiveNumber is { } five)
@@ -65,7 +87,7 @@ public static class SummaryMapping
             proto.Histogram = new Histogram();
             foreach (var b in bins)
             {
-                proto.Histogram.Bins.Add(new HistogramBin { Lower = b.Lower, Upper = b.Upper, Count = b.Count, CountLow = b.CountLow, CountHigh = b.CountHigh });
+                proto.Histogram.Bins.Add(new HistogramBin { Lower = b.Lower, Upper = b.Upper, Count = b.Count, CountLow = b.CountLow, CountHigh = b.CountHigh, LowSource = ToProto(b.LowSource), HighSource = ToProto(b.HighSource) });
             }
         }
 
@@ -74,7 +96,33 @@ public static class SummaryMapping
 
     /// <summary>The wire form of a quantile estimate.</summary>
     public static QuantileEstimate ToProto(Domain.QuantileEstimate q) =>
-        new() { Q = q.Q, Value = q.Value, Low = q.Low, High = q.High, RankError = q.RankError };
+        new() { Q = q.Q, Value = q.Value, Low = q.Low, High = q.High, RankError = q.RankError, LowSource = ToProto(q.LowSource), HighSource = ToProto(q.HighSource) };
+
+    /// <summary>The wire form of a quantile shift: each side's interval holds its population quantile.</summary>
+    public static QuantileShift ToProto(Domain.QuantileShift shift) => new()
+    {
+        Q = shift.Q,
+        A = shift.A.Value,
+        B = shift.B.Value,
+        Delta = shift.Delta,
+        Low = shift.Low,
+        High = shift.High,
+        Significant = shift.Significant,
+        ALow = shift.A.Low,
+        AHigh = shift.A.High,
+        BLow = shift.B.Low,
+        BHigh = shift.B.High,
+        ALowSource = ToProto(shift.A.LowSource),
+        AHighSource = ToProto(shift.A.HighSource),
+        BLowSource = ToProto(shift.B.LowSource),
+        BHighSource = ToProto(shift.B.HighSource),
+    };
+
+    /// <summary>The wire form of a bound's source; the two enums list the same sources in the same order.</summary>
+    public static BoundSource ToProto(Domain.BoundSource source) => (BoundSource)(int)source;
+
+    /// <summary>The wire form of the parts a summary was read from (the wire enum starts with an unset value).</summary>
+    public static SketchForm ToProto(Domain.SketchForm form) => (SketchForm)((int)form + 1);
 
     /// <summary>The wire form of a time range.</summary>
     public static TimeRange ToProto(StoreTimeRange range) => new() { FromUnixMs = range.FromUnixMs, ToUnixMs = range.ToUnixMs };

@@ -6,7 +6,6 @@ using SummaryService.Server.Auth;
 using SummaryService.Server.Configuration;
 using SummaryService.Server.Hosting;
 using SummaryService.Server.Mapping;
-using SummaryService.Server.Statistics;
 using SummaryService.Server.Telemetry;
 using SummaryService.Server.Validation;
 using SummaryService.Sketches.Summaries;
@@ -153,8 +152,6 @@ public sealed partial class QueryService(StoreHost host, ServerMetrics metrics, 
         SummaryOptions options = QueryRequests.OptionsOf(request.Quantiles, request.Confidence, [], 0, null, DefaultCompareQuantiles);
         var a = Side(request.A, "a", now, options, context);
         var b = Side(request.B, "b", now, options, context);
-        var aView = a.Group.Sketch.Quantiles.CreateView();
-        var bView = b.Group.Sketch.Quantiles.CreateView();
         var reply = new CompareReply
         {
             A = SummaryMapping.ToProto(a.Group.Summary),
@@ -166,11 +163,11 @@ public sealed partial class QueryService(StoreHost host, ServerMetrics metrics, 
         {
             foreach (double q in options.Quantiles)
             {
-                reply.Shifts.Add(DistributionComparison.Shift(a.Group.Sketch.Quantiles, aView, b.Group.Sketch.Quantiles, bView, q, options.Confidence));
+                reply.Shifts.Add(SummaryMapping.ToProto(SketchComparison.Shift(a.Group.Sketch, b.Group.Sketch, q, options.Confidence)));
             }
         }
 
-        var (distance, low, high) = DistributionComparison.KolmogorovSmirnov(a.Group.Sketch.Quantiles, aView, b.Group.Sketch.Quantiles, bView, options.Confidence);
+        var (distance, low, high) = SketchComparison.KolmogorovSmirnov(a.Group.Sketch, b.Group.Sketch, options.Confidence);
         reply.KsDistance = distance;
         reply.KsLow = low;
         reply.KsHigh = high;

@@ -129,8 +129,14 @@ public static class QueryRequests
             throw RpcErrors.Invalid("histogram.bin_count", $"histogram.bin_count is {spec.BinCount}; at most 10000 bins.");
         }
 
-        return spec.Edges.Count > 0
-            ? Sketches.Summaries.HistogramSpec.WithEdges(spec.Edges.ToArray())
-            : Sketches.Summaries.HistogramSpec.Automatic(spec.BinCount == 0 ? Sketches.Summaries.HistogramSpec.DefaultBinCount : (int)spec.BinCount);
+        if (spec.LogBuckets && spec.Edges.Count > 0)
+        {
+            throw RpcErrors.Invalid("histogram.log_buckets", $"histogram.log_buckets is set with {spec.Edges.Count} edges; bins that follow the log buckets take no edges.");
+        }
+
+        int bins = spec.BinCount == 0 ? Sketches.Summaries.HistogramSpec.DefaultBinCount : (int)spec.BinCount;
+        return spec.Edges.Count > 0 ? Sketches.Summaries.HistogramSpec.WithEdges(spec.Edges.ToArray())
+            : spec.LogBuckets ? Sketches.Summaries.HistogramSpec.LogScaled(bins)
+            : Sketches.Summaries.HistogramSpec.Automatic(bins);
     }
 }

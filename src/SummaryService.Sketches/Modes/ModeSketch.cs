@@ -1,14 +1,19 @@
 namespace SummaryService.Sketches.Modes;
 
 /// <summary>
-/// Most frequent values of a stream: exact counts while distinct keys are few, then a count-min
-/// table with conservative update plus a small set of tracked candidate keys.
+/// Most frequent values of a stream: exact counts while distinct keys are few, then — for discrete
+/// data — a count-min table with conservative update plus a small set of tracked candidate keys.
 /// </summary>
 /// <remarks>
-/// Values are keyed by their exact bits, or by bins of width <see cref="Resolution"/> so that
+/// <para>Values are keyed by their exact bits, or by bins of width <see cref="Resolution"/> so that
 /// continuous measurements can have a mode. Nothing is allocated up front: the exact counter
 /// starts at a few slots and the count-min table appears only when the distinct keys exceed
-/// <see cref="ExactLimit"/>.
+/// <see cref="ExactLimit"/>.</para>
+/// <para>Data is discrete when values are keyed by a resolution or every counted value is an
+/// integer. When the exact counter overflows on data that is not — a non-integral value among
+/// the keys — the values are continuous: a most frequent exact value means nothing there, so the
+/// sketch stops counting keys altogether (<see cref="IsContinuous"/>) and the modes come from the
+/// density of the log buckets instead. Merging with a continuous sketch makes a continuous one.</para>
 /// </remarks>
 public sealed class ModeSketch
 {
@@ -30,6 +35,7 @@ public sealed class ModeSketch
     private ExactCounter? _exact = new();
     private CountMinTable? _table;
     private CandidateHeap _candidates;
+    private bool _continuous;
 
     /// <summary>Creates an empty sketch.</summary>
     /// <param name="resolution">Bin width used to key values; 0 keys values by their exact bits.</param>
@@ -86,6 +92,9 @@ public sealed class ModeSketch
     /// <summary>True while every count is exact.</summary>
     public bool IsExact => _exact is not null;
 
+    /// <summary>True once the data showed itself continuous: no keys are counted any more.</summary>
+    public bool IsContinuous => _continuous;
+
     /// <summary>Largest over-count of any one estimate, at probability 1 − e^−d: ⌈εN⌉, or 0 while exact.</summary>
     public long MaxOverCount => _table is null ? 0 : (long)Math.Ceiling(_table.Epsilon * Count);
 
@@ -123,7 +132,14 @@ public sealed class ModeSketch
 
         if (next < values.Length)
         {
-            AddToTable(values[next..]);
+            if (_continuous)
+            {
+                Count += values.Length - next;
+            }
+            else
+            {
+                AddToTable(values[next..]);
+            }
         }
     }
 
@@ -168,6 +184,13 @@ public sealed class ModeSketch
         if (other.Resolution.CompareTo(Resolution) != 0 || other.Width != Width || other.Depth != Depth)
         {
             throw new ArgumentException($"Cannot merge mode sketches keyed or shaped differently (resolution {Resolution} vs {other.Resolution}, table {Width}x{Depth} vs {other.Width}x{other.Depth}).", nameof(other));
+        }
+
+        if (other._continuous || _continuous)
+        {
+            StopCounting();
+            Count += other.Count;
+            return;
         }
 
         if (other._exact is not null)
@@ -226,6 +249,12 @@ public sealed class ModeSketch
     public ModeEstimate[] Modes(int maxModes, out int possibleModes)
     {
         ArgumentOutOfRangeException.ThrowIfLessThan(maxModes, 0);
+        if (_continuous)
+        {
+            possibleModes = 0;
+            return [];
+        }
+
         var all = Estimates();
         if (all.Count == 0)
         {
@@ -279,6 +308,13 @@ public sealed class ModeSketch
     /// <summary>Rebuilds a sketch from validated parts (see <c>SketchCodec</c>).</summary>
     internal static ModeSketch Restore(ModeSketch empty, long count, (long Key, long Count)[]? exact, long[]? counters, (long Key, long Count)[] candidates)
     {
+        if (exact is null && counters is null)
+        {
+            empty.StopCounting();
+            empty.Count = count;
+            return empty;
+        }
+
         if (exact is not null)
         {
             foreach ((long key, long c) in exact)
@@ -305,9 +341,14 @@ public sealed class ModeSketch
             _exact.Add(key, count);
             if (_exact.Distinct > ExactLimit)
             {
-                SwitchToTable();
+                LeaveExactCounting();
             }
 
+            return;
+        }
+
+        if (_continuous)
+        {
             return;
         }
 
@@ -315,6 +356,46 @@ public sealed class ModeSketch
         if (_candidates.Wants(estimate))
         {
             _candidates.Track(key, estimate);
+        }
+    }
+
+    /// <summary>
+    /// Drops every count and stops counting: the form of continuous data, and the compact form of an
+    /// aged bucket, whose modes come from the log buckets' density instead.
+    /// </summary>
+    internal void StopCounting()
+    {
+        _exact = null;
+        _table = null;
+        _candidates = new CandidateHeap(CandidateLimit);
+        _continuous = true;
+    }
+
+    // Past the exact limit: discrete data goes on in the count-min form, continuous data stops.
+    private void LeaveExactCounting()
+    {
+        bool discrete = Resolution > 0;
+        if (!discrete)
+        {
+            discrete = true;
+            foreach ((long key, _) in _exact!.SortedEntries())
+            {
+                double value = ModeKey.ValueOf(key);
+                if (value != Math.Floor(value))
+                {
+                    discrete = false;
+                    break;
+                }
+            }
+        }
+
+        if (discrete)
+        {
+            SwitchToTable();
+        }
+        else
+        {
+            StopCounting();
         }
     }
 
@@ -366,7 +447,7 @@ public sealed class ModeSketch
         if (_exact is not null)
         {
             return _exact.SortedEntries()
-                .Select(e => new ModeEstimate(ModeKey.ValueOf(e.Key), e.Count, e.Count, e.Count))
+                .Select(e => WithPlace(new ModeEstimate(ModeKey.ValueOf(e.Key), e.Count, e.Count, e.Count)))
                 .ToList();
         }
 
@@ -384,10 +465,19 @@ public sealed class ModeSketch
         if (_exact is not null)
         {
             long exact = _exact.CountOf(key);
-            return new ModeEstimate(ModeKey.ValueOf(key), exact, exact, exact);
+            return WithPlace(new ModeEstimate(ModeKey.ValueOf(key), exact, exact, exact));
         }
 
-        long estimate = _table!.Estimate(key);
-        return new ModeEstimate(ModeKey.ValueOf(key), estimate, Math.Max(0, estimate - MaxOverCount), estimate);
+        if (_table is null)
+        {
+            return WithPlace(new ModeEstimate(ModeKey.ValueOf(key), 0, 0, Count));
+        }
+
+        long estimate = _table.Estimate(key);
+        return WithPlace(new ModeEstimate(ModeKey.ValueOf(key), estimate, Math.Max(0, estimate - MaxOverCount), estimate));
     }
+
+    // An exact value lies where it is; its share is of all values counted.
+    private ModeEstimate WithPlace(ModeEstimate mode) =>
+        mode with { Kind = ModeKind.ExactValue, Low = mode.Value, High = mode.Value, Share = Count == 0 ? 0 : (double)mode.Count / Count };
 }

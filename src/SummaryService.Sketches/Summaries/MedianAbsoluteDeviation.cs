@@ -3,36 +3,47 @@ using SummaryService.Sketches.Quantiles;
 namespace SummaryService.Sketches.Summaries;
 
 /// <summary>
-/// Median absolute deviation MAD = median |x − median| (unscaled), read from the weighted items of a
-/// KLL sketch, with an interval derived from the rank bounds.
+/// Median absolute deviation MAD = median |x − median| (unscaled), estimated from weighted values
+/// (the KLL items, or the log buckets' midpoints), with an interval derived from the count bounds.
 /// </summary>
 /// <remarks>
-/// <para>The estimate is the definition-7 median of the deviations of the retained items from the
-/// estimated median, with their weights; it is exact while the sketch is exact.</para>
+/// <para>The estimate is the definition-7 median of the deviations of the weighted values from the
+/// estimated median; it is exact while the sketch is exact.</para>
 /// <para>Interval: with the true median M inside the median interval [m₋, m₊], the number of values
-/// strictly closer than a to M is at most Ŵ⁻(m₊ + a) − Ŵ(m₋ − a) + 2t and the number at distance at
-/// most a is at least Ŵ(m₋ + a) − Ŵ⁻(m₊ − a) − 2t. The deviation order statistic d₍ⱼ₎ therefore lies
-/// between the largest a whose upper count stays below j and the smallest a whose lower count reaches
-/// j. Failure budget: δ/2 on the median interval, δ/2 over the eight one-sided count events at the
-/// fixed points M ± d₍ⱼ₎.</para>
+/// strictly closer than a to M is at most U&lt;(m₊ + a) − L≤(m₋ − a) and the number at distance at
+/// most a is at least L≤(m₋ + a) − U&lt;(m₊ − a), where L and U are the lower and upper bounds on
+/// the counts below a point (<see cref="SummaryBounds.CountBelow"/>: the KLL part's ±t intersected
+/// with the log buckets' exact bounds). The deviation order statistic d₍ⱼ₎ therefore lies between
+/// the largest a whose upper count stays below j and the smallest a whose lower count reaches j.
+/// Failure budget of the KLL part: δ/2 on the median interval, δ/2 over the eight one-sided count
+/// events at the fixed points M ± d₍ⱼ₎; the log buckets' bounds are certain.</para>
 /// </remarks>
 internal static class MedianAbsoluteDeviation
 {
-    // 2^−60 of the data's range: finer than any retained item can resolve.
+    // 2^−60 of the data's range: finer than any retained item can resolve. Where log buckets take
+    // part the interval is at least a bucket wide, so 2^−32 of the range is ample and the end is
+    // found in about half the steps; each step reads both parts' counts.
     private const int BisectionSteps = 60;
+    private const int BisectionStepsWithBuckets = 32;
 
-    public static (double Mad, double Low, double High) Estimate(RankBounds bounds, bool exact)
+    /// <summary>
+    /// The MAD and its interval, with the source of each end: the weaker of the sources of the two
+    /// count bounds that decided it (evaluated at that end).
+    /// </summary>
+    public static (double Mad, double Low, double High, BoundSource LowSource, BoundSource HighSource) Estimate(SummaryBounds bounds)
     {
-        KllSortedView view = bounds.View;
+        KllSortedView view = bounds.EstimateView!;
         double median = view.Quantile(0.5);
         double mad = Deviations(view, median).Quantile(0.5);
-        if (exact)
+        if (bounds.Exact)
         {
-            return (mad, mad, mad);
+            return (mad, mad, mad, BoundSource.Exact, BoundSource.Exact);
         }
 
-        var (medianLow, medianHigh) = bounds.MedianIntervalForMad();
-        double t = bounds.MadShift;
+        double rankError = bounds.Rank?.MadShift ?? 0;
+        QuantileEstimate medianInterval = bounds.MedianForMad();
+        double medianLow = medianInterval.Low;
+        double medianHigh = medianInterval.High;
         double n = view.Count;
         double span = view.Max - view.Min;
         double h = ((view.Count - 1) * 0.5) + 1;
@@ -41,21 +52,28 @@ internal static class MedianAbsoluteDeviation
         double f = h - j0;
 
         double UpperCountCloserThan(double a) =>
-            Math.Min(n, view.CountBelow(medianHigh + a) + t) - Math.Max(0, view.CountAtOrBelow(medianLow - a) - t);
+            bounds.CountBelow(medianHigh + a, strict: true, rankError).High - bounds.CountBelow(medianLow - a, strict: false, rankError).Low;
         double LowerCountWithin(double a) =>
-            Math.Max(0, view.CountAtOrBelow(medianLow + a) - t) - Math.Min(n, view.CountBelow(medianHigh - a) + t);
+            bounds.CountBelow(medianLow + a, strict: false, rankError).Low - bounds.CountBelow(medianHigh - a, strict: true, rankError).High;
 
-        double LowerEnd(double j) => LargestWhere(a => UpperCountCloserThan(a) < j, span);
-        double UpperEnd(double j) => SmallestWhere(a => LowerCountWithin(a) >= j, span);
+        int steps = bounds.Buckets is null ? BisectionSteps : BisectionStepsWithBuckets;
+        double LowerEnd(double j) => LargestWhere(a => UpperCountCloserThan(a) < j, span, steps);
+        double UpperEnd(double j) => SmallestWhere(a => LowerCountWithin(a) >= j, span, steps);
 
         double low0 = LowerEnd(j0);
         double high0 = UpperEnd(j0);
         double low = f == 0 ? low0 : low0 + (f * (LowerEnd(j1) - low0));
         double high = f == 0 ? high0 : high0 + (f * (UpperEnd(j1) - high0));
-        return (mad, Math.Min(low, mad), Math.Max(high, mad));
+        BoundSource lowSource = Bounded.Weaker(
+            Bounded.Weaker(bounds.CountBelow(medianHigh + low0, strict: true, rankError).HighSource, bounds.CountBelow(medianLow - low0, strict: false, rankError).LowSource),
+            Bounded.Weaker(medianInterval.LowSource, medianInterval.HighSource));
+        BoundSource highSource = Bounded.Weaker(
+            Bounded.Weaker(bounds.CountBelow(medianLow + high0, strict: false, rankError).LowSource, bounds.CountBelow(medianHigh - high0, strict: true, rankError).HighSource),
+            Bounded.Weaker(medianInterval.LowSource, medianInterval.HighSource));
+        return (mad, Math.Min(low, mad), Math.Max(high, mad), lowSource, highSource);
     }
 
-    /// <summary>Deviations of the retained items from <paramref name="centre"/>, ascending, with the items' weights.</summary>
+    /// <summary>Deviations of the weighted values from <paramref name="centre"/>, ascending, with their weights.</summary>
     private static KllSortedView Deviations(KllSortedView view, double centre)
     {
         ReadOnlySpan<double> values = view.Values;
@@ -83,7 +101,7 @@ internal static class MedianAbsoluteDeviation
     }
 
     // Bisection on a monotone predicate over [0, limit]; stops when no double lies strictly between.
-    private static double LargestWhere(Func<double, bool> holds, double limit)
+    private static double LargestWhere(Func<double, bool> holds, double limit, int steps)
     {
         if (!holds(0))
         {
@@ -97,7 +115,7 @@ internal static class MedianAbsoluteDeviation
 
         double lo = 0;
         double hi = limit;
-        for (int step = 0; step < BisectionSteps; step++)
+        for (int step = 0; step < steps; step++)
         {
             double mid = lo + ((hi - lo) / 2);
             if (mid <= lo || mid >= hi)
@@ -118,7 +136,7 @@ internal static class MedianAbsoluteDeviation
         return lo;
     }
 
-    private static double SmallestWhere(Func<double, bool> holds, double limit)
+    private static double SmallestWhere(Func<double, bool> holds, double limit, int steps)
     {
         if (holds(0))
         {
@@ -132,7 +150,7 @@ internal static class MedianAbsoluteDeviation
 
         double lo = 0;
         double hi = limit;
-        for (int step = 0; step < BisectionSteps; step++)
+        for (int step = 0; step < steps; step++)
         {
             double mid = lo + ((hi - lo) / 2);
             if (mid <= lo || mid >= hi)

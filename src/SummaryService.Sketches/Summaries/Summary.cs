@@ -69,11 +69,23 @@ public sealed record Summary
     /// <summary>Median absolute deviation from the median (unscaled).</summary>
     public double? Mad { get; init; }
 
-    /// <summary>Interval for the MAD, derived from the median's interval and the rank bounds.</summary>
+    /// <summary>Interval for the MAD, derived from the median's interval and the count bounds.</summary>
     public double? MadLow { get; init; }
 
     /// <inheritdoc cref="MadLow"/>
     public double? MadHigh { get; init; }
+
+    /// <summary>Which bound gave <see cref="MadLow"/>.</summary>
+    public BoundSource MadLowSource { get; init; }
+
+    /// <summary>Which bound gave <see cref="MadHigh"/>.</summary>
+    public BoundSource MadHighSource { get; init; }
+
+    /// <summary>Which bound gave <see cref="IqrLow"/> (the weaker of the two quartiles' ends).</summary>
+    public BoundSource IqrLowSource { get; init; }
+
+    /// <summary>Which bound gave <see cref="IqrHigh"/>.</summary>
+    public BoundSource IqrHighSource { get; init; }
 
     /// <summary>Bowley's quartile skewness (Q3 + Q1 − 2·Q2)/(Q3 − Q1); null when Q3 = Q1.</summary>
     public double? QuartileSkewness { get; init; }
@@ -81,7 +93,10 @@ public sealed record Summary
     /// <summary>Shares of values at or below the requested thresholds.</summary>
     public IReadOnlyList<RankEstimate> Ranks { get; init; } = [];
 
-    /// <summary>Values that could be the most frequent, most frequent first.</summary>
+    /// <summary>
+    /// Modes, most frequent or most prominent first: on discrete data every value that could be the
+    /// most frequent (ties together); on continuous data the density peaks of the log buckets.
+    /// </summary>
     public IReadOnlyList<ModeEstimate> Modes { get; init; } = [];
 
     /// <summary>Values that could be the mode but were left out by the mode limit.</summary>
@@ -98,4 +113,17 @@ public sealed record Summary
 
     /// <summary>Confidence of every interval in this summary.</summary>
     public double Confidence { get; init; }
+
+    /// <summary>Which parts the figures were read from.</summary>
+    public SketchForm Form { get; init; }
+
+    /// <summary>
+    /// The log buckets' relative bound (base − 1)/(base + 1) at the scale in force; null without log
+    /// buckets. A quantile interval read from them reaches at most this far from its midpoint,
+    /// relatively, for values of one sign.
+    /// </summary>
+    public double? RelativeError { get; init; }
+
+    /// <summary>Scale of the log buckets read; null without them.</summary>
+    public int? BucketScale { get; init; }
 }

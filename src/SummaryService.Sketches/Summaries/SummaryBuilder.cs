@@ -1,48 +1,101 @@
 using MathNet.Numerics.Distributions;
+using SummaryService.Sketches.Buckets;
 using SummaryService.Sketches.Modes;
 using SummaryService.Sketches.Moments;
 using SummaryService.Sketches.Quantiles;
 
 namespace SummaryService.Sketches.Summaries;
 
-/// <summary>Turns the three sketches of a series into one <see cref="Summary"/>.</summary>
+/// <summary>Turns the parts of a series sketch into one <see cref="Summary"/>.</summary>
 internal static class SummaryBuilder
 {
-    public static Summary Build(MomentSketch moments, KllSketch quantiles, ModeSketch modes, SummaryOptions options)
+    public static Summary Build(MomentSketch moments, KllSketch? quantiles, LogBucketSketch? buckets, ModeSketch modes, SummaryOptions options)
     {
         options.Validate();
         long n = moments.Count;
+        SketchForm form = (quantiles, buckets) switch
+        {
+            (not null, not null) => SketchForm.Full,
+            (null, not null) => SketchForm.LogBuckets,
+            (not null, null) => SketchForm.RankOnly,
+            _ => SketchForm.MomentsOnly,
+        };
         if (n == 0)
         {
-            return new Summary { Count = 0, Exact = true, Confidence = options.Confidence };
+            return new Summary { Count = 0, Exact = true, Confidence = options.Confidence, Form = form };
         }
 
-        var bounds = new RankBounds(quantiles, options.Confidence);
-        var median = bounds.Estimate(0.5);
-        var lowerQuartile = bounds.Estimate(0.25);
-        var upperQuartile = bounds.Estimate(0.75);
+        var bounds = new SummaryBounds(moments, quantiles, buckets, options.Confidence);
+        var median = bounds.Quantile(0.5);
+        var lowerQuartile = bounds.Quantile(0.25);
+        var upperQuartile = bounds.Quantile(0.75);
         double iqr = upperQuartile.Value - lowerQuartile.Value;
-        var (mad, madLow, madHigh) = MedianAbsoluteDeviation.Estimate(bounds, quantiles.IsExact);
-        var modeList = modes.Modes(options.MaxModes, out int possibleModes);
+        var mad = Mad(bounds);
+        var (modeList, omitted) = Modes(modes, buckets, moments, options.MaxModes);
 
         return MomentFigures(moments, options.Confidence) with
         {
-            Quantiles = options.Quantiles.Select(bounds.Estimate).ToArray(),
+            Form = form,
+            RelativeError = buckets?.RelativeError,
+            BucketScale = buckets?.Scale,
+            Quantiles = options.Quantiles.Select(q => bounds.Quantile(q)).ToArray(),
             FiveNumber = new FiveNumberSummary(moments.Min, lowerQuartile, median, upperQuartile, moments.Max),
             Iqr = iqr,
             IqrLow = Math.Max(0, upperQuartile.Low - lowerQuartile.High),
             IqrHigh = upperQuartile.High - lowerQuartile.Low,
-            Mad = mad,
-            MadLow = madLow,
-            MadHigh = madHigh,
+            IqrLowSource = Bounded.Weaker(upperQuartile.LowSource, lowerQuartile.HighSource),
+            IqrHighSource = Bounded.Weaker(upperQuartile.HighSource, lowerQuartile.LowSource),
+            Mad = mad?.Mad,
+            MadLow = mad?.Low,
+            MadHigh = mad?.High,
+            MadLowSource = mad?.LowSource ?? BoundSource.None,
+            MadHighSource = mad?.HighSource ?? BoundSource.None,
             QuartileSkewness = iqr > 0 ? (upperQuartile.Value + lowerQuartile.Value - (2 * median.Value)) / iqr : null,
             Ranks = options.RankOf.Select(bounds.ShareAtOrBelow).ToArray(),
             Modes = modeList,
-            ModesOmitted = possibleModes - modeList.Length,
-            Histogram = options.Histogram is { } spec ? bounds.Histogram(HistogramEdges(spec, moments.Min, moments.Max)) : null,
-            Exact = quantiles.IsExact && modes.IsExact,
+            ModesOmitted = omitted,
+            Histogram = options.Histogram is { } spec ? Histogram(spec, bounds, buckets, moments) : null,
+            Exact = bounds.Exact && modes.IsExact,
             RankError = bounds.Epsilon,
         };
+    }
+
+    private static (double Mad, double Low, double High, BoundSource LowSource, BoundSource HighSource)? Mad(SummaryBounds bounds) =>
+        bounds.EstimateView is null ? null : MedianAbsoluteDeviation.Estimate(bounds);
+
+    // Discrete data: the mode sketch's values. Continuous data (or an aged bucket past its exact
+    // counts): the log buckets' density peaks, led by the zeros when they outnumber every bucket.
+    private static (ModeEstimate[] Modes, int Omitted) Modes(ModeSketch modes, LogBucketSketch? buckets, MomentSketch moments, int maxModes)
+    {
+        if (!modes.IsContinuous)
+        {
+            var list = modes.Modes(maxModes, out int possible);
+            return (list, possible - list.Length);
+        }
+
+        if (buckets is null)
+        {
+            return ([], 0);
+        }
+
+        List<ModeEstimate> peaks = DensityPeaks.Find(buckets, moments.Min, moments.Max, moments.Count);
+        long zeros = buckets.ZeroCount;
+        if (zeros > 0 && buckets.PositiveBuckets().Concat(buckets.NegativeBuckets()).All(b => b.Count < zeros))
+        {
+            peaks.Insert(0, new ModeEstimate(0, zeros, zeros, zeros) { Kind = ModeKind.ExactValue, Low = 0, High = 0, Share = (double)zeros / moments.Count });
+        }
+
+        return (peaks.Take(maxModes).ToArray(), Math.Max(0, peaks.Count - maxModes));
+    }
+
+    private static IReadOnlyList<HistogramBin> Histogram(HistogramSpec spec, SummaryBounds bounds, LogBucketSketch? buckets, MomentSketch moments)
+    {
+        if (spec.LogBuckets && buckets is not null)
+        {
+            return LogHistogram.Of(buckets, spec.BinCount, moments.Min, moments.Max);
+        }
+
+        return bounds.Histogram(HistogramEdges(spec, moments.Min, moments.Max));
     }
 
     private static Summary MomentFigures(MomentSketch m, double confidence)

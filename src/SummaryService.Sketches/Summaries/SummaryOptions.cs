@@ -64,6 +64,11 @@ public sealed record SummaryOptions
                 throw new ArgumentOutOfRangeException(nameof(Histogram), spec.Edges.Count, "Histogram.Edges needs at least two edges.");
             }
 
+            if (spec.LogBuckets && spec.Edges.Count > 0)
+            {
+                throw new ArgumentOutOfRangeException(nameof(Histogram), spec.Edges.Count, "Histogram.LogBuckets takes its edges from the buckets; give no Edges with it.");
+            }
+
             if (spec.Edges.Count == 0 && spec.BinCount is < 1 or > 10_000)
             {
                 throw new ArgumentOutOfRangeException(nameof(Histogram), spec.BinCount, "Histogram.BinCount must be between 1 and 10000.");

@@ -7,6 +7,9 @@ namespace SummaryService.Store.Persistence;
 /// <summary>Finds, reads and prunes write-ahead log segments.</summary>
 internal static class LogSegments
 {
+    /// <summary>Version written into each record; records without it are version 1.</summary>
+    public const uint FormatVersion = 2;
+
     /// <summary>Segments in log order, by the first sequence number in their name.</summary>
     public static List<(ulong FirstLsn, string Path)> List(string directory)
     {
@@ -48,10 +51,10 @@ internal static class LogSegments
             int parsed = 0;
             foreach (var payload in payloads)
             {
+                LogRecord record;
                 try
                 {
-                    records.Add(LogRecord.Parser.ParseFrom(payload.Span));
-                    parsed++;
+                    record = LogRecord.Parser.ParseFrom(payload.Span);
                 }
                 catch (InvalidProtocolBufferException ex)
                 {
@@ -59,6 +62,15 @@ internal static class LogSegments
                     good = payloads.Take(parsed).Sum(p => (long)p.Length + RecordFraming.HeaderBytes);
                     break;
                 }
+
+                // A record from a newer server is not damage: cutting it would lose acknowledged batches.
+                if (record.FormatVersion > FormatVersion)
+                {
+                    throw new InvalidDataException($"Write-ahead log segment {Path.GetFileName(path)} holds a record of format version {record.FormatVersion} (record {parsed}); this server reads versions 1 and {FormatVersion}. Open it with the newer server.");
+                }
+
+                records.Add(record);
+                parsed++;
             }
 
             report.LogRecordsRead += parsed;

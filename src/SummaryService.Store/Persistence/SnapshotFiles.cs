@@ -10,7 +10,12 @@ namespace SummaryService.Store.Persistence;
 /// </summary>
 internal static class SnapshotFiles
 {
-    public const uint FormatVersion = 1;
+    /// <summary>Version written: 2, whose buckets may be sketch states of version 2 (log buckets, compact form).</summary>
+    public const uint FormatVersion = 2;
+
+    /// <summary>Versions read: 1 (sketch states of version 1 only) and 2; a newer one is refused as unusable.</summary>
+    public static bool CanRead(uint version) => version is 1 or FormatVersion;
+
     /// <summary>Name of the manifest file in a generation's directory.</summary>
     public const string ManifestName = "manifest.bin";
 
@@ -47,7 +52,7 @@ internal static class SnapshotFiles
             }
 
             manifest = SnapshotManifest.Parser.ParseFrom(manifestRecords[0].Span);
-            if (manifest.FormatVersion != FormatVersion || manifest.ShardCount == 0 || manifest.ShardLsns.Count != manifest.ShardCount)
+            if (!CanRead(manifest.FormatVersion) || manifest.ShardCount == 0 || manifest.ShardLsns.Count != manifest.ShardCount)
             {
                 problem = $"manifest has format version {manifest.FormatVersion} and {manifest.ShardLsns.Count} shard marks for {manifest.ShardCount} shards";
                 return false;
@@ -71,7 +76,7 @@ internal static class SnapshotFiles
 
                 // A file cut just after a series record must not pass for whole: its last record is then no footer.
                 var header = ShardHeader.Parser.ParseFrom(records[0].Span);
-                if (header.FormatVersion != FormatVersion || header.Shard != shard || header.Generation != manifest.Generation || !TryFooter(records[^1], out ulong footerSeries) || footerSeries != (ulong)(records.Count - 2))
+                if (header.FormatVersion != manifest.FormatVersion || header.Shard != shard || header.Generation != manifest.Generation || !TryFooter(records[^1], out ulong footerSeries) || footerSeries != (ulong)(records.Count - 2))
                 {
                     problem = $"{Path.GetFileName(file)}: header or footer does not match the manifest";
                     return false;
@@ -114,7 +119,7 @@ internal static class SnapshotFiles
             }
 
             manifest = SnapshotManifest.Parser.ParseFrom(manifestRecords[0].Span);
-            if (manifest.FormatVersion != FormatVersion || manifest.ShardCount == 0 || manifest.ShardLsns.Count != manifest.ShardCount)
+            if (!CanRead(manifest.FormatVersion) || manifest.ShardCount == 0 || manifest.ShardLsns.Count != manifest.ShardCount)
             {
                 dropped.Add($"manifest has format version {manifest.FormatVersion} and {manifest.ShardLsns.Count} shard marks for {manifest.ShardCount} shards: nothing can be salvaged");
                 return false;
@@ -128,7 +133,7 @@ internal static class SnapshotFiles
 
         for (int shard = 0; shard < manifest.ShardCount; shard++)
         {
-            if (SalvageShard(Path.Combine(directory, ShardFileName(shard)), shard, manifest.Generation, dropped) is { } salvaged)
+            if (SalvageShard(Path.Combine(directory, ShardFileName(shard)), shard, manifest.Generation, manifest.FormatVersion, dropped) is { } salvaged)
             {
                 shards.Add(salvaged);
             }
@@ -137,7 +142,7 @@ internal static class SnapshotFiles
         return true;
     }
 
-    private static (ShardHeader Header, List<SeriesRecord> Series)? SalvageShard(string file, int shard, ulong generation, List<string> dropped)
+    private static (ShardHeader Header, List<SeriesRecord> Series)? SalvageShard(string file, int shard, ulong generation, uint manifestVersion, List<string> dropped)
     {
         string name = Path.GetFileName(file);
         try
@@ -150,7 +155,7 @@ internal static class SnapshotFiles
 
             byte[] bytes = File.ReadAllBytes(file);
             var records = RecordFraming.ReadAll(bytes, out long good, out string? stop);
-            if (records.Count == 0 || ShardHeader.Parser.ParseFrom(records[0].Span) is not { } header || header.Shard != shard || header.Generation != generation)
+            if (records.Count == 0 || ShardHeader.Parser.ParseFrom(records[0].Span) is not { } header || header.FormatVersion != manifestVersion || header.Shard != shard || header.Generation != generation)
             {
                 dropped.Add($"{name}: header unusable ({stop ?? "it does not match the manifest"}), all {bytes.Length} bytes dropped");
                 return null;

@@ -28,12 +28,55 @@ internal static class SizesReport
         WriteSerialized(output);
         output.WriteLine();
         WriteInMemory(output);
+        output.WriteLine();
+        WriteBuckets(output);
+    }
+
+    // A bucket as the store keeps it: a first-tier bucket once the next one has opened (trimmed), and
+    // an aged bucket of a later tier (compact). Sizes: 2,778 values is the load run's 10 s bucket,
+    // 1e6 a busy one; 1,000 / 10,000 / 60,000 are 1 min / 10 min / 1 h at 1,000 values a minute.
+    private static void WriteBuckets(TextWriter output)
+    {
+        const int FullTarget = 12 * 1024;
+        const int CompactTarget = 2 * 1024;
+        output.WriteLine($"Buckets as the store keeps them (targets: full first-tier bucket <= {FullTarget} bytes, full aged bucket <= {CompactTarget} bytes)");
+        output.WriteLine($"{"distribution",-18}{"values",10}{"bucket",16}{"live~",9}{"own",9}{"KLL items",11}{"KLL levels",12}{"modes",11}{"form",9}  verdict");
+        foreach (Distribution distribution in new[] { Distribution.LogNormalLatency, Distribution.StatusCodes })
+        {
+            foreach (int count in new[] { 2778, SampleData.FullSketchValues })
+            {
+                double[] values = SampleData.Generate(distribution, count, seed: 1);
+                WriteBucketRow(output, distribution, values, "first, written", sketch => { }, target: null);
+                WriteBucketRow(output, distribution, values, "first, closed", sketch => sketch.TrimExcess(), FullTarget);
+            }
+
+            foreach (int count in new[] { 1000, 10_000, 60_000, SampleData.FullSketchValues })
+            {
+                double[] values = SampleData.Generate(distribution, count, seed: 1);
+                WriteBucketRow(output, distribution, values, "aged (compact)", sketch => sketch.Compact(), CompactTarget);
+            }
+        }
+    }
+
+    private static void WriteBucketRow(TextWriter output, Distribution distribution, double[] values, string bucket, Action<SeriesSketch> keep, int? target)
+    {
+        SeriesSketch Build()
+        {
+            SeriesSketch sketch = InSpans(values);
+            keep(sketch);
+            return sketch;
+        }
+
+        SeriesSketch sketch = Build();
+        long live = LiveBytesMeter.Measure(Build, FullSketchCopies);
+        string verdict = target is null ? "-" : Math.Max(live, sketch.EstimatedBytes) <= target ? "within target" : "OVER TARGET";
+        output.WriteLine($"{distribution,-18}{values.Length,10}{bucket,16}{live,9}{sketch.EstimatedBytes,9}{Describe(sketch)}  {verdict}");
     }
 
     private static void WriteSerialized(TextWriter output)
     {
         output.WriteLine($"Serialized size of a default sketch (target: full sketch <= {SerializedTargetBytes} bytes)");
-        output.WriteLine($"{"distribution",-18}{"values",10}{"bytes",10}{"KLL items",11}{"KLL levels",12}{"modes",11}{"form",7}  verdict");
+        output.WriteLine($"{"distribution",-18}{"values",10}{"bytes",10}{"KLL items",11}{"KLL levels",12}{"modes",11}{"form",9}  verdict");
         foreach (Distribution distribution in s_distributions)
         {
             WriteSerializedRow(output, distribution, SampleData.FullSketchValues, SerializedTargetBytes);
@@ -57,7 +100,7 @@ internal static class SizesReport
         output.WriteLine("In-memory size: bytes allocated by construction + adds (an upper bound on live bytes)");
         output.WriteLine("and live bytes estimated from the collected heap while many copies are held; 'own' is SeriesSketch.EstimatedBytes");
         output.WriteLine($"(target: {SmallSketchValues}-value sketch <= {SmallSketchMemoryTargetBytes} bytes)");
-        output.WriteLine($"{"distribution",-18}{"values",10}{"fed",8}{"allocated",11}{"live~",9}{"own",9}{"KLL items",11}{"KLL levels",12}{"modes",11}{"form",7}  verdict");
+        output.WriteLine($"{"distribution",-18}{"values",10}{"fed",8}{"allocated",11}{"live~",9}{"own",9}{"KLL items",11}{"KLL levels",12}{"modes",11}{"form",9}  verdict");
         foreach (Distribution distribution in s_distributions)
         {
             double[] few = SampleData.Generate(distribution, SmallSketchValues, seed: 1);
@@ -107,8 +150,9 @@ internal static class SizesReport
     private static string Describe(SeriesSketch sketch)
     {
         SeriesSketch parts = sketch.Clone();
-        string form = sketch.IsSmall ? "small" : "full";
-        return $"{parts.Quantiles.RetainedItems,11}{parts.Quantiles.LevelCount,12}{(parts.Modes.IsExact ? "exact" : "count-min"),11}{form,7}";
+        string form = sketch.IsSmall ? "small" : sketch.KeepsRankPart ? "full" : "compact";
+        string modes = parts.Modes.IsExact ? "exact" : parts.Modes.IsContinuous ? "density" : "count-min";
+        return $"{parts.Quantiles?.RetainedItems,11}{parts.Quantiles?.LevelCount,12}{modes,11}{form,9}";
     }
 
     // The allocated figure is an upper bound, so only it can prove the target met; when it is over,

@@ -17,7 +17,7 @@ namespace SummaryService.Benchmarks.Summarize;
 public class SummarizePartsBenchmarks
 {
     private SeriesSketch _sketch = null!;
-    private RankBounds _bounds = null!;
+    private SummaryBounds _bounds = null!;
 
     [Params(Distribution.LogNormalLatency, Distribution.StatusCodes)]
     public Distribution Distribution { get; set; }
@@ -26,26 +26,34 @@ public class SummarizePartsBenchmarks
     public void Setup()
     {
         _sketch = FullSketch.Build(Distribution, dataSeed: 1, sketchSeed: 11);
-        _bounds = new RankBounds(_sketch.Quantiles, SummaryOptions.DefaultConfidence);
+        _bounds = new SummaryBounds(_sketch.Moments, _sketch.Quantiles, _sketch.LogBuckets, SummaryOptions.DefaultConfidence);
     }
 
     /// <summary>Sorted weighted view plus the four Hoeffding bounds; returned as object because the type is internal.</summary>
     [Benchmark]
-    public object RankBoundsWithView() => new RankBounds(_sketch.Quantiles, SummaryOptions.DefaultConfidence);
+    public object RankBoundsWithView() => new RankBounds(_sketch.Quantiles!, SummaryOptions.DefaultConfidence);
+
+    /// <summary>Both parts' readers: the KLL view and bounds, and the log buckets in value order.</summary>
+    [Benchmark]
+    public object SummaryBoundsWithViews() => new SummaryBounds(_sketch.Moments, _sketch.Quantiles, _sketch.LogBuckets, SummaryOptions.DefaultConfidence);
 
     [Benchmark]
-    public KllSortedView SortedViewOnly() => _sketch.Quantiles.CreateView();
+    public KllSortedView SortedViewOnly() => _sketch.Quantiles!.CreateView();
 
     [Benchmark]
     public QuantileEstimate[] SevenQuantilesFromBounds() =>
-        SummaryOptions.DefaultQuantiles.Select(_bounds.Estimate).ToArray();
+        SummaryOptions.DefaultQuantiles.Select(q => _bounds.Quantile(q)).ToArray();
 
     [Benchmark]
-    public (double Mad, double Low, double High) MadWithInterval() =>
-        MedianAbsoluteDeviation.Estimate(_bounds, _sketch.Quantiles.IsExact);
+    public (double Mad, double Low, double High, BoundSource LowSource, BoundSource HighSource) MadWithInterval() =>
+        MedianAbsoluteDeviation.Estimate(_bounds);
 
     [Benchmark]
     public ModeEstimate[] Modes() => _sketch.Modes.Modes(SummaryOptions.DefaultMaxModes);
+
+    /// <summary>Density peaks of the log buckets: the modes of continuous data.</summary>
+    [Benchmark]
+    public List<ModeEstimate> DensityPeaksOfBuckets() => Sketches.Buckets.DensityPeaks.Find(_sketch.LogBuckets!, _sketch.Moments.Min, _sketch.Moments.Max, _sketch.Count);
 
     [Benchmark]
     public int ModeCandidateCount() => _sketch.Modes.ModeCandidateCount();

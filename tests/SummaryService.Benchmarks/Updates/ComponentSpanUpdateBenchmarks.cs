@@ -1,6 +1,7 @@
 using BenchmarkDotNet.Attributes;
 using SummaryService.Benchmarks.Workloads;
 using SummaryService.Sketches;
+using SummaryService.Sketches.Buckets;
 using SummaryService.Sketches.Modes;
 using SummaryService.Sketches.Moments;
 using SummaryService.Sketches.Quantiles;
@@ -13,8 +14,9 @@ namespace SummaryService.Benchmarks.Updates;
 /// </summary>
 /// <remarks>
 /// A component's public span <c>Add</c> runs the finite-value check and then its own update, while
-/// the composite runs the check once and all three updates, so
-/// composite ≈ moments + quantiles + modes − 2 × finite check.
+/// the composite runs the check once and all four updates, so
+/// composite ≈ moments + quantiles + log buckets + modes − 3 × finite check. Targets: the log
+/// buckets alone at most 5 ns per value.
 /// </remarks>
 [MemoryDiagnoser]
 public class ComponentSpanUpdateBenchmarks : DistributionFill
@@ -36,6 +38,19 @@ public class ComponentSpanUpdateBenchmarks : DistributionFill
     public KllSketch Quantiles()
     {
         var sketch = new KllSketch(seed: 7);
+        ReadOnlySpan<double> values = Values;
+        for (int start = 0; start < values.Length; start += SampleData.SpanLength)
+        {
+            sketch.Add(values.Slice(start, SampleData.SpanLength));
+        }
+
+        return sketch;
+    }
+
+    [Benchmark(OperationsPerInvoke = SampleData.FullSketchValues)]
+    public LogBucketSketch LogBuckets()
+    {
+        var sketch = new LogBucketSketch();
         ReadOnlySpan<double> values = Values;
         for (int start = 0; start < values.Length; start += SampleData.SpanLength)
         {

@@ -24,6 +24,13 @@ public sealed class DemoTests(ServerFixture server)
         QuantileShift tail = checkout.Shifts[1];
         Assert.True(tail.Significant, $"checkout p90 {tail.A} → {tail.B}"); // log-sd 0.35 → 0.6: lognormal p90 = 120·e^(1.2816σ), ~188 → ~260 ms before the outliers (z(0.9) = 1.2816, NIST/SEMATECH e-Handbook normal table)
         Assert.True(tail.Low > 0);
+
+        // The release's outliers move checkout's p99 several-fold; with the log buckets' tail
+        // intervals (±0.54%) the move is called, and by log buckets on both sides.
+        QuantileShift p99 = checkout.Shifts[2];
+        Assert.True(p99.Significant, $"checkout p99 {p99.A} [{p99.ALow}, {p99.AHigh}] → {p99.B} [{p99.BLow}, {p99.BHigh}]");
+        Assert.True(p99.B > 2 * p99.A);
+        Assert.Equal(BoundSource.LogBuckets, p99.BLowSource);
         Assert.All(pricing.Shifts, s => Assert.False(s.Significant, $"pricing q{s.Q} {s.A} → {s.B}"));
 
         // About 20 minutes × 40 values/s on each side, and the release's outliers pull the mean away from the median.

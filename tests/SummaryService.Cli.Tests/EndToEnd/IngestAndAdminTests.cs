@@ -58,7 +58,7 @@ public sealed class IngestAndAdminTests(ServerFixture server)
         var holdings = (await CliRun.AgainstAsync(server.Address, "holdings", "--json")).Json<HoldingsReply>();
         Assert.True(holdings.Series >= 1);
         Assert.Equal("Wal", holdings.Durability);
-        Assert.NotEmpty(holdings.Tiers);
+        Assert.Equal(4, holdings.Tiers.Count);
         var holdingsTable = await CliRun.AgainstAsync(server.Address, "holdings", "--shards");
         Assert.Contains("durability Wal", holdingsTable.Out, StringComparison.Ordinal);
         Assert.Contains($"{holdings.ProducerMarks} producer marks", holdingsTable.Out, StringComparison.Ordinal);

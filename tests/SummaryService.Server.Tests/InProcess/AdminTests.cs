@@ -29,7 +29,7 @@ public sealed class AdminTests
         Assert.Equal(1u, stats.ProducerMarks);
         Assert.Equal(2ul, stats.Buckets);
         Assert.Equal("Wal", stats.Durability);
-        Assert.Equal(3, stats.Tiers.Count);
+        Assert.Equal(4, stats.Tiers.Count);
 
         var snapshot = await server.Admin.WriteSnapshotAsync(new WriteSnapshotRequest());
         Assert.Equal(2u, snapshot.Series);

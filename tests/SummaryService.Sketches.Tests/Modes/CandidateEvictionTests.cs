@@ -18,14 +18,17 @@ public class CandidateEvictionTests
     [InlineData(1.0, 62)]
     public void Candidates_follow_the_eviction_rule_after_every_value(double resolution, int seed)
     {
-        // Resolution 0: distinct values, so many candidates tie at the lowest count; resolution 1:
-        // repeated bins, so tracked keys are raised as often as new ones arrive.
+        // Resolution 0: distinct integers (keyed by their bits, so discrete data, which the count-min
+        // form is for), so many candidates tie at the lowest count; resolution 1: repeated bins, so
+        // tracked keys are raised as often as new ones arrive.
         var sketch = new ModeSketch(resolution, exactLimit: 16, width: 16, depth: 3, candidateLimit: Candidates);
         var rng = new Random(seed);
         SortedDictionary<long, long>? model = null;
         for (int i = 0; i < 20_000; i++)
         {
-            double value = Math.Round(rng.NextDouble() * 400 * (1 + rng.NextDouble()), 3);
+            double value = resolution == 0
+                ? Math.Round(rng.NextDouble() * 400_000 * (1 + rng.NextDouble()))
+                : Math.Round(rng.NextDouble() * 400 * (1 + rng.NextDouble()), 3);
             sketch.Add(value);
             if (sketch.IsExact)
             {

@@ -3,7 +3,10 @@ using SummaryService.Sketches.Tests.Support;
 
 namespace SummaryService.Sketches.Tests.Modes;
 
-/// <summary>Modes are exact while distinct values are few, and bounded by the count-min guarantee after.</summary>
+/// <summary>
+/// Modes are exact while distinct values are few; after that discrete data is bounded by the
+/// count-min guarantee, and continuous data stops being counted (its modes come from the log buckets).
+/// </summary>
 public class ModeSketchTests
 {
     [Fact]
@@ -21,7 +24,7 @@ public class ModeSketchTests
         foreach (double code in codes)
         {
             long truth = values.LongCount(v => v == code);
-            Assert.Equal(new ModeEstimate(code, truth, truth, truth), sketch.Estimate(code));
+            Assert.Equal(new ModeEstimate(code, truth, truth, truth) { Low = code, High = code, Share = truth / 1e6 }, sketch.Estimate(code));
         }
 
         var modes = sketch.Modes(5);
@@ -66,8 +69,9 @@ public class ModeSketchTests
     {
         for (int seed = 0; seed < 20; seed++)
         {
+            // Discrete data: integers, so past the exact limit counting goes on in the count-min form.
             var rng = new Random(seed);
-            var values = Enumerable.Range(0, 1_000_000).Select(_ => rng.NextDouble() < 0.05 ? 123.0 : rng.NextDouble() * 1000).ToArray();
+            var values = Enumerable.Range(0, 1_000_000).Select(_ => rng.NextDouble() < 0.05 ? 123.0 : Math.Floor(rng.NextDouble() * 100_000)).ToArray();
             var sketch = new ModeSketch();
             sketch.Add(values);
 
@@ -77,6 +81,49 @@ public class ModeSketchTests
             long truth = values.LongCount(v => v == 123.0);
             Assert.InRange(truth, mode.CountLow, mode.CountHigh);
         }
+    }
+
+    [Fact]
+    public void Continuous_data_stops_being_counted_once_the_exact_counter_overflows()
+    {
+        // Non-integral values past the 256 exact keys: no count-min table is built or fed.
+        var rng = new Random(46);
+        var values = Enumerable.Range(0, 100_000).Select(_ => rng.NextDouble() < 0.05 ? 123.0 : rng.NextDouble() * 1000).ToArray();
+        var sketch = new ModeSketch();
+        sketch.Add(values.AsSpan(0, 50_000));
+        foreach (double v in values.AsSpan(50_000))
+        {
+            sketch.Add(v);
+        }
+
+        Assert.True(sketch.IsContinuous);
+        Assert.False(sketch.IsExact);
+        Assert.True(sketch.TableCounters.IsEmpty);
+        Assert.Empty(sketch.Modes(10));
+        Assert.Equal(values.Length, sketch.Count);
+        Assert.Equal((0L, 0L, values.Length), (sketch.Estimate(123).Count, sketch.Estimate(123).CountLow, sketch.Estimate(123).CountHigh));
+    }
+
+    [Fact]
+    public void Integers_stay_discrete_and_a_merge_with_continuous_data_is_continuous()
+    {
+        var integers = new ModeSketch();
+        integers.Add(Enumerable.Range(0, 1000).Select(i => (double)(i % 400)).ToArray());
+        var continuous = new ModeSketch();
+        continuous.Add(Enumerable.Range(0, 1000).Select(i => i + 0.5).ToArray());
+        Assert.False(integers.IsContinuous);
+        Assert.False(integers.TableCounters.IsEmpty);
+        Assert.True(continuous.IsContinuous);
+
+        var exact = new ModeSketch();
+        exact.Add([1.0, 1.0, 2.0]);
+        exact.Merge(continuous);
+        integers.Merge(continuous);
+
+        Assert.True(exact.IsContinuous);
+        Assert.True(integers.IsContinuous);
+        Assert.Equal(2000, integers.Count);
+        Assert.Equal(1003, exact.Count);
     }
 
     [Fact]
@@ -158,7 +205,8 @@ public class ModeSketchTests
     public void Span_and_single_value_adds_give_the_same_sketch(double resolution, int depth)
     {
         var rng = new Random(45);
-        var values = Enumerable.Range(0, 200_000).Select(_ => rng.NextDouble() < 0.02 ? 42.0 : Math.Exp(3 + rng.NextDouble())).ToArray();
+        // Integral at resolution 0, so the data is discrete and the count-min form is reached.
+        var values = Enumerable.Range(0, 200_000).Select(_ => rng.NextDouble() < 0.02 ? 42.0 : Math.Round(1000 * Math.Exp(3 + rng.NextDouble()))).ToArray();
         var one = new ModeSketch(resolution, depth: depth);
         var many = new ModeSketch(resolution, depth: depth);
         foreach (double v in values)

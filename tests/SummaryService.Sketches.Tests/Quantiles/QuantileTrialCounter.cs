@@ -59,7 +59,7 @@ internal sealed class QuantileTrialCounter(ExactReference reference, double[] pr
         }
     }
 
-    private static int AllowedMisses(int trials, double failure)
+    internal static int AllowedMisses(int trials, double failure)
     {
         var binomial = new MathNet.Numerics.Distributions.Binomial(failure, trials);
         int allowed = 0;

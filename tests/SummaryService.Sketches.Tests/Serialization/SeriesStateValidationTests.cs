@@ -21,7 +21,7 @@ public class SeriesStateValidationTests
 
     [Theory]
     [InlineData(0u)]
-    [InlineData(2u)]
+    [InlineData(3u)]
     [InlineData(uint.MaxValue)]
     public void Unknown_version_is_rejected(uint version)
     {
@@ -37,6 +37,7 @@ public class SeriesStateValidationTests
     [InlineData("moments")]
     [InlineData("quantiles")]
     [InlineData("modes")]
+    [InlineData("log_buckets")]
     public void Missing_part_is_rejected(string part)
     {
         SeriesSketchState state = BaseStates.ExactModes();
@@ -46,7 +47,14 @@ public class SeriesStateValidationTests
                 state.Moments = null;
                 break;
             case "quantiles":
+                // Optional from version 2 on (the compact form has none); version 1 always had it.
+                state.Version = SketchCodec.RankOnlyVersion;
+                state.LogBuckets = null;
                 state.Quantiles = null;
+                break;
+            case "log_buckets":
+                // Absent only with no_log_buckets set, so a message cut short is not taken for one without.
+                state.LogBuckets = null;
                 break;
             default:
                 state.Modes = null;

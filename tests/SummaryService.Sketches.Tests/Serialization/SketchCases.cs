@@ -40,14 +40,14 @@ internal static class SketchCases
             case "exact-200":
                 {
                     SeriesSketch s = Fed(new SeriesSketch(seed: 4), Uniform(200, seed: 4));
-                    Assert.True(s.Quantiles.IsExact, "200 values fit the top level of k = 200 uncompacted");
+                    Assert.True(s.Quantiles!.IsExact, "200 values fit the top level of k = 200 uncompacted");
                     return s;
                 }
 
             case "compacted-100000":
                 {
                     SeriesSketch s = Fed(new SeriesSketch(seed: 5), Uniform(100_000, seed: 5));
-                    Assert.False(s.Quantiles.IsExact);
+                    Assert.False(s.Quantiles!.IsExact);
                     Assert.False(s.Modes.IsExact);
                     return s;
                 }
@@ -55,7 +55,7 @@ internal static class SketchCases
             case "small-k-many-levels":
                 {
                     SeriesSketch s = Fed(new SeriesSketch(new SeriesSketchOptions { K = 8 }, seed: 6), Uniform(20_000, seed: 6));
-                    Assert.True(s.Quantiles.LevelCount >= 8);
+                    Assert.True(s.Quantiles!.LevelCount >= 8);
                     return s;
                 }
 
@@ -64,7 +64,7 @@ internal static class SketchCases
                     // 5000 values on 50 distinct integers: within the exact limit of 128 keys.
                     SeriesSketch s = Fed(new SeriesSketch(seed: 7), Integers(5000, 50, seed: 7));
                     Assert.True(s.Modes.IsExact);
-                    Assert.False(s.Quantiles.IsExact);
+                    Assert.False(s.Quantiles!.IsExact);
                     return s;
                 }
 
@@ -96,7 +96,7 @@ internal static class SketchCases
                     SeriesSketch s = Fed(new SeriesSketch(seed: 11), Integers(60, 30, seed: 11));
                     s.Merge(Fed(new SeriesSketch(seed: 12), Integers(70, 30, seed: 12)));
                     s.Merge(new SeriesSketch(seed: 13));
-                    Assert.True(s.Quantiles.IsExact);
+                    Assert.True(s.Quantiles!.IsExact);
                     return s;
                 }
 
@@ -105,7 +105,7 @@ internal static class SketchCases
                     SeriesSketch s = Fed(new SeriesSketch(seed: 14), Uniform(30_000, seed: 14));
                     s.Merge(Fed(new SeriesSketch(seed: 15), Integers(20_000, 40, seed: 15)));
                     s.Merge(Fed(new SeriesSketch(seed: 16), Uniform(7, seed: 16)));
-                    Assert.False(s.Quantiles.IsExact);
+                    Assert.False(s.Quantiles!.IsExact);
                     Assert.False(s.Modes.IsExact);
                     return s;
                 }

@@ -59,7 +59,7 @@ public class SmallFormEquivalenceTests
         SmallFormCases.Feed(sketch, more, feed);
         SmallFormCases.Feed(full, more, feed);
 
-        Assert.False(sketch.Quantiles.IsExact);
+        Assert.False(sketch.Quantiles!.IsExact);
         AssertSame(full, sketch);
     }
 
@@ -161,6 +161,9 @@ public class SmallFormEquivalenceTests
         state.Modes.ExactKeys.Add(BitConverter.DoubleToInt64Bits(3.0));
         state.Modes.ExactCounts.Clear();
         state.Modes.ExactCounts.Add(2UL);
+        var buckets = new SummaryService.Sketches.Buckets.LogBucketSketch();
+        buckets.Add([1.0, 2.0]);
+        state.LogBuckets = SketchCodec.ToState(buckets);
 
         SeriesSketch restored = SketchCodec.FromState(state);
 
