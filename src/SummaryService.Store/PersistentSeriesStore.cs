@@ -2,7 +2,6 @@ using System.Diagnostics;
 using Microsoft.Extensions.Logging;
 using SummaryService.Contract.Readable;
 using SummaryService.Sketches.Serialization;
-using SummaryService.Sketches.Summaries;
 using SummaryService.Store.Persistence;
 using SummaryService.Store.Persistence.Formats;
 
@@ -14,7 +13,7 @@ namespace SummaryService.Store;
 /// accepted batches are logged and fsynced before they are acknowledged when durability is
 /// <see cref="DurabilityMode.Wal"/>.
 /// </summary>
-public sealed class PersistentSeriesStore : ISeriesStore, IAsyncDisposable
+public sealed class PersistentSeriesStore : ISeriesStore, IStoreMaintenance, IAsyncDisposable
 {
     private readonly PersistenceOptions _persistence;
     private readonly TimeProvider _time;
@@ -68,7 +67,14 @@ public sealed class PersistentSeriesStore : ISeriesStore, IAsyncDisposable
     public Action<TimeSpan>? SnapshotObserved { get; set; }
 
     /// <summary>Opens the store in <see cref="PersistenceOptions.DataDirectory"/>, recovering whatever is there.</summary>
-    public static PersistentSeriesStore Open(StoreOptions options, PersistenceOptions persistence, TimeProvider time, ILogger logger, Action<TimeSpan>? logSyncObserved = null, IDataFiles? files = null)
+    /// <param name="options">Tiers, limits and sketch settings.</param>
+    /// <param name="persistence">Data directory, durability and snapshot settings.</param>
+    /// <param name="time">The store's clock.</param>
+    /// <param name="logger">Where recovery and persistence trouble is told.</param>
+    /// <param name="logSyncObserved">Called with the duration of each log sync; for telemetry.</param>
+    /// <param name="files">Every write to the data directory goes through it; local files when null.</param>
+    /// <param name="producers">The producer ledger the store fills and recovery restores; a fresh one when null.</param>
+    public static PersistentSeriesStore Open(StoreOptions options, PersistenceOptions persistence, TimeProvider time, ILogger logger, Action<TimeSpan>? logSyncObserved = null, IDataFiles? files = null, IProducerLedger? producers = null)
     {
         ArgumentNullException.ThrowIfNull(persistence);
         var report = new RecoveryReport();
@@ -81,7 +87,7 @@ public sealed class PersistentSeriesStore : ISeriesStore, IAsyncDisposable
         var onDisk = SnapshotFiles.List(snapshots);
         foreach (var (generation, path) in onDisk)
         {
-            if (TryLoad(path, options, time, out store, out loaded, report, out string? problem))
+            if (TryLoad(path, options, time, producers, out store, out loaded, report, out string? problem))
             {
                 report.SnapshotGeneration = generation;
                 break;
@@ -92,14 +98,14 @@ public sealed class PersistentSeriesStore : ISeriesStore, IAsyncDisposable
         }
 
         // No whole generation: the valid part of the newest beats starting empty.
-        if (store is null && onDisk.Count > 0 && TryLoad(onDisk[0].Path, options, time, out store, out loaded, report, out _, salvage: true))
+        if (store is null && onDisk.Count > 0 && TryLoad(onDisk[0].Path, options, time, producers, out store, out loaded, report, out _, salvage: true))
         {
             report.SnapshotGeneration = onDisk[0].Generation;
             report.SnapshotSalvaged = true;
             logger.LogWarning("Snapshot {Generation} was salvaged in part: {Losses}", onDisk[0].Generation, string.Join("; ", report.Warnings));
         }
 
-        store ??= new ShardedSeriesStore(options, time);
+        store ??= new ShardedSeriesStore(options, time, producers);
         Func<SeriesKey, ulong> snapshotLsn = loaded is null
             ? _ => 0
             : key => loaded.ShardLsns[(int)(key.Hash & (ulong)(loaded.ShardCount - 1))];
@@ -128,25 +134,39 @@ public sealed class PersistentSeriesStore : ISeriesStore, IAsyncDisposable
     public ValueTask<AppendResult> AppendAsync(SeriesBatch batch, CancellationToken cancellationToken = default) => Inner.AppendAsync(batch, cancellationToken);
 
     /// <inheritdoc/>
-    public ValueTask<AppendResult> MergeSketchAsync(SketchUpload upload, CancellationToken cancellationToken = default) => Inner.MergeSketchAsync(upload, cancellationToken);
+    public ValueTask<AppendResult> MergeSketchAsync(UploadedSketch upload, CancellationToken cancellationToken = default) => Inner.MergeSketchAsync(upload, cancellationToken);
 
     /// <inheritdoc/>
-    public WindowSummary Summarize(Selector selector, TimeRange window, IReadOnlyList<string> groupBy, SummaryOptions options) => Inner.Summarize(selector, window, groupBy, options);
+    public ValueTask<WindowSketches> ReadAsync(SeriesSelector selector, TimeWindow window, IReadOnlyList<string> groupBy, CancellationToken cancellationToken = default) =>
+        Inner.ReadAsync(selector, window, groupBy, cancellationToken);
 
     /// <inheritdoc/>
-    public IReadOnlyList<WindowSummary> SummarizeSteps(Selector selector, TimeRange window, long stepMs, IReadOnlyList<string> groupBy, SummaryOptions options) =>
-        Inner.SummarizeSteps(selector, window, stepMs, groupBy, options);
+    public ValueTask<IReadOnlyList<WindowSketches>> ReadStepsAsync(SeriesSelector selector, TimeWindow window, long stepMs, IReadOnlyList<string> groupBy, CancellationToken cancellationToken = default) =>
+        Inner.ReadStepsAsync(selector, window, stepMs, groupBy, cancellationToken);
 
     /// <inheritdoc/>
-    public IReadOnlyList<SeriesInfo> ListSeries(string? metric = null) => Inner.ListSeries(metric);
+    public ValueTask<IReadOnlyList<SeriesInfo>> ListSeriesAsync(string? metric = null, CancellationToken cancellationToken = default) => Inner.ListSeriesAsync(metric, cancellationToken);
 
     /// <inheritdoc/>
-    public bool Delete(SeriesKey key) => Inner.Delete(key);
+    public ValueTask<SeriesInfo?> RemoveAsync(SeriesKey key, CancellationToken cancellationToken = default) => Inner.RemoveAsync(key, cancellationToken);
 
     /// <inheritdoc/>
+    public ValueTask<StoreStats> GetStatsAsync(CancellationToken cancellationToken = default) => Inner.GetStatsAsync(cancellationToken);
+
+    /// <inheritdoc/>
+    public DurabilityMode Durability => _persistence.Durability;
+
+    /// <inheritdoc/>
+    public ValueTask RollAsync(CancellationToken cancellationToken = default) => Inner.RollAsync(cancellationToken);
+
+    /// <inheritdoc/>
+    public async Task<SnapshotInfo?> WriteSnapshotAsync(CancellationToken cancellationToken = default) =>
+        Durability == DurabilityMode.None ? null : await TakeSnapshotAsync(cancellationToken).ConfigureAwait(false);
+
+    /// <summary>Counts and estimated memory, per tier and per shard (synchronous, for in-process callers).</summary>
     public StoreStats GetStats() => Inner.GetStats();
 
-    /// <inheritdoc/>
+    /// <summary>Rolls aged buckets at the store clock's time (synchronous, for in-process callers).</summary>
     public void Roll() => Inner.Roll();
 
     /// <summary>
@@ -298,7 +318,7 @@ public sealed class PersistentSeriesStore : ISeriesStore, IAsyncDisposable
         _snapshotGate.Dispose();
     }
 
-    private static bool TryLoad(string path, StoreOptions options, TimeProvider time, out ShardedSeriesStore? store, out SnapshotManifest? manifest, RecoveryReport report, out string? problem, bool salvage = false)
+    private static bool TryLoad(string path, StoreOptions options, TimeProvider time, IProducerLedger? producers, out ShardedSeriesStore? store, out SnapshotManifest? manifest, RecoveryReport report, out string? problem, bool salvage = false)
     {
         store = null;
         problem = null;
@@ -310,7 +330,8 @@ public sealed class PersistentSeriesStore : ISeriesStore, IAsyncDisposable
             return false;
         }
 
-        var candidate = new ShardedSeriesStore(options, time);
+        // Loading series touches no producer mark, so a rejected candidate leaves the ledger as it was.
+        var candidate = new ShardedSeriesStore(options, time, producers);
         int series = 0;
         int buckets = 0;
         try
@@ -363,5 +384,3 @@ public sealed class PersistentSeriesStore : ISeriesStore, IAsyncDisposable
     }
 }
 
-/// <summary>One snapshot written.</summary>
-public sealed record SnapshotInfo(ulong Generation, int Series, long Bytes, TimeSpan Elapsed);

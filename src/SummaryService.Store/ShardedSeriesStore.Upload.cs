@@ -12,7 +12,7 @@ public sealed partial class ShardedSeriesStore
     /// Validates the upload completely, then merges its sketch into the bucket of its timestamp, or
     /// throws <see cref="StoreRejectedException"/> and changes nothing.
     /// </summary>
-    public async ValueTask<AppendResult> MergeSketchAsync(SketchUpload upload, CancellationToken cancellationToken = default)
+    public async ValueTask<AppendResult> MergeSketchAsync(UploadedSketch upload, CancellationToken cancellationToken = default)
     {
         ArgumentNullException.ThrowIfNull(upload);
         ArgumentNullException.ThrowIfNull(upload.Sketch);
@@ -43,7 +43,7 @@ public sealed partial class ShardedSeriesStore
     }
 
     // Under the shard lock, like a batch: the next LSN, the log record, the sketch into its bucket.
-    private Task? ApplyUpload(SeriesShard shard, SeriesTimeline timeline, SketchUpload upload, long timeUnixMs, SeriesSketch sketch, long now)
+    private Task? ApplyUpload(SeriesShard shard, SeriesTimeline timeline, UploadedSketch upload, long timeUnixMs, SeriesSketch sketch, long now)
     {
         ulong lsn = (ulong)Interlocked.Increment(ref _lastLsn);
         Task? durable = Journal?.Invoke(UploadRecordOf(lsn, upload, timeUnixMs, sketch));
@@ -103,7 +103,7 @@ public sealed partial class ShardedSeriesStore
         }
     }
 
-    private static LogRecord UploadRecordOf(ulong lsn, SketchUpload upload, long time, SeriesSketch sketch)
+    private static LogRecord UploadRecordOf(ulong lsn, UploadedSketch upload, long time, SeriesSketch sketch)
     {
         var record = new LogRecord { Lsn = lsn, Metric = upload.Metric, Producer = upload.Producer, Sequence = upload.Sequence, Sketch = SketchCodec.ToState(sketch), FormatVersion = LogSegments.FormatVersion };
         foreach (var (name, value) in upload.Labels)

@@ -10,6 +10,7 @@ using SummaryService.Server.Diagnostics;
 using SummaryService.Server.Services;
 using SummaryService.Server.Telemetry;
 using SummaryService.Server.Validation;
+using SummaryService.Store;
 using SummaryService.Store.Persistence;
 
 namespace SummaryService.Server.Hosting;
@@ -31,7 +32,10 @@ public static class ServiceRegistration
         services.AddSingleton(TimeProvider.System);
         services.AddSingleton<ServerMetrics>();
         services.TryAddSingleton<IDataFiles, LocalDataFiles>();
+        services.TryAddSingleton<IProducerLedger, ProducerSequences>();
         services.AddSingleton<StoreHost>();
+        services.AddSingleton(provider => provider.GetRequiredService<StoreHost>().Store);
+        services.AddSingleton(provider => provider.GetRequiredService<StoreHost>().Maintenance);
         services.AddSingleton<ApiKeyRegistry>();
         services.AddSingleton<RefusalLog>();
         services.AddSingleton<IngestBudget>();

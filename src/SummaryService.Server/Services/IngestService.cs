@@ -2,7 +2,6 @@ using System.Threading.Channels;
 using Grpc.Core;
 using SummaryService.Contract.V1;
 using SummaryService.Server.Auth;
-using SummaryService.Server.Hosting;
 using SummaryService.Server.Mapping;
 using SummaryService.Server.Telemetry;
 using SummaryService.Server.Validation;
@@ -16,7 +15,7 @@ namespace SummaryService.Server.Services;
 /// whole; so a refused batch, for whatever reason, changes nothing.
 /// </summary>
 [BindServiceMethod(typeof(DecodeCheckedBinding<Ingest.IngestBase>), nameof(DecodeCheckedBinding<Ingest.IngestBase>.BindService))]
-public sealed class IngestService(StoreHost host, ServerMetrics metrics, IHostApplicationLifetime lifetime, IngestBudget budget) : Ingest.IngestBase
+public sealed class IngestService(ISeriesStore store, ServerMetrics metrics, IHostApplicationLifetime lifetime, IngestBudget budget) : Ingest.IngestBase
 {
     /// <summary>Applied batches a stream may hold unanswered while their log group commits.</summary>
     internal const int MaxUnansweredBatches = 32;
@@ -185,7 +184,7 @@ public sealed class IngestService(StoreHost host, ServerMetrics metrics, IHostAp
     }
 
     /// <inheritdoc/>
-    public override Task<PushReply> PushSketch(Contract.V1.SketchUpload request, ServerCallContext context)
+    public override Task<PushReply> PushSketch(SketchUpload request, ServerCallContext context)
     {
         ArgumentNullException.ThrowIfNull(request);
         ArgumentNullException.ThrowIfNull(context);
@@ -193,9 +192,9 @@ public sealed class IngestService(StoreHost host, ServerMetrics metrics, IHostAp
         return WithinBudgetAsync(request.CalculateSize(), () => MergeAsync(request, context.CancellationToken));
     }
 
-    private async Task<PushReply> MergeAsync(Contract.V1.SketchUpload request, CancellationToken cancellationToken)
+    private async Task<PushReply> MergeAsync(SketchUpload request, CancellationToken cancellationToken)
     {
-        Store.SketchUpload upload;
+        UploadedSketch upload;
         try
         {
             upload = IngestMapping.ToStore(request);
@@ -208,7 +207,7 @@ public sealed class IngestService(StoreHost host, ServerMetrics metrics, IHostAp
 
         try
         {
-            AppendResult result = await host.Store.MergeSketchAsync(upload, cancellationToken).ConfigureAwait(false);
+            AppendResult result = await store.MergeSketchAsync(upload, cancellationToken).ConfigureAwait(false);
             metrics.ValuesIngested(result.Accepted);
             return new PushReply { Sequence = request.Sequence, Accepted = (ulong)result.Accepted, Duplicate = result.Duplicate };
         }
@@ -224,7 +223,7 @@ public sealed class IngestService(StoreHost host, ServerMetrics metrics, IHostAp
         try
         {
             using var rented = new RentedBatch(batch);
-            AppendResult result = await host.Store.AppendAsync(rented.Batch, cancellationToken).ConfigureAwait(false);
+            AppendResult result = await store.AppendAsync(rented.Batch, cancellationToken).ConfigureAwait(false);
             metrics.ValuesIngested(result.Accepted);
             return new PushReply { Sequence = batch.Sequence, Accepted = (ulong)result.Accepted, Duplicate = result.Duplicate };
         }

@@ -4,49 +4,47 @@ using SummaryService.Contract.Readable;
 using SummaryService.Contract.V1;
 using SummaryService.Server.Auth;
 using SummaryService.Server.Configuration;
-using SummaryService.Server.Hosting;
 using SummaryService.Server.Mapping;
 using SummaryService.Server.Telemetry;
 using SummaryService.Server.Validation;
 using SummaryService.Sketches.Summaries;
-using StoreSelector = SummaryService.Store.Selector;
-using StoreTimeRange = SummaryService.Store.TimeRange;
+using SummaryService.Store;
 
 namespace SummaryService.Server.Services;
 
 /// <summary>Query RPCs: every request is validated field by field before the store is read; reads never change stored data.</summary>
 [BindServiceMethod(typeof(DecodeCheckedBinding<Query.QueryBase>), nameof(DecodeCheckedBinding<Query.QueryBase>.BindService))]
-public sealed partial class QueryService(StoreHost host, ServerMetrics metrics, TimeProvider time, IOptions<ServerSettings> settings, IHostApplicationLifetime lifetime) : Query.QueryBase
+public sealed partial class QueryService(ISeriesStore store, ServerMetrics metrics, TimeProvider time, IOptions<ServerSettings> settings, IHostApplicationLifetime lifetime) : Query.QueryBase
 {
     private static readonly double[] DefaultCompareQuantiles = [0.5, 0.9, 0.99];
 
     /// <inheritdoc/>
-    public override Task<SummarizeReply> Summarize(SummarizeRequest request, ServerCallContext context)
+    public override async Task<SummarizeReply> Summarize(SummarizeRequest request, ServerCallContext context)
     {
         ArgumentNullException.ThrowIfNull(request);
         ArgumentNullException.ThrowIfNull(context);
         long started = time.GetTimestamp();
         var (selector, groupBy, options) = Prepare(request, context);
-        StoreTimeRange window = QueryRequests.WindowOf(request.Window, "window", NowMs());
-        var answer = host.Store.Summarize(selector, window, groupBy, options);
-        SelectionCheck.Require(answer, selector, groupBy, "selector");
-        SummarizeReply reply = SummaryMapping.ToProto(answer);
+        TimeWindow window = QueryRequests.WindowOf(request.Window, "window", NowMs());
+        WindowSketches read = await store.ReadAsync(selector, window, groupBy, context.CancellationToken).ConfigureAwait(false);
+        SelectionCheck.Require(read, selector, groupBy, "selector");
+        SummarizeReply reply = SummaryMapping.ToProto(StoreSummaries.Summarize(read, options));
         metrics.QueryAnswered(nameof(Summarize), ServerMetrics.Since(time, started));
-        return Task.FromResult(reply);
+        return reply;
     }
 
     /// <summary>
     /// One summary per step, oldest first. Each step is widened to whole buckets like any window, so
     /// steps narrower than the bucket width report a covered span wider than the step.
     /// </summary>
-    public override Task<TimelineReply> Timeline(TimelineRequest request, ServerCallContext context)
+    public override async Task<TimelineReply> Timeline(TimelineRequest request, ServerCallContext context)
     {
         ArgumentNullException.ThrowIfNull(request);
         ArgumentNullException.ThrowIfNull(context);
         long started = time.GetTimestamp();
-        StoreSelector selector = QueryRequests.SelectorOf(request.Selector, "selector");
+        SeriesSelector selector = QueryRequests.SelectorOf(request.Selector, "selector");
         CallerAccess.Of(context).Require(Scope.Read, selector.Metric, "selector.metric");
-        StoreTimeRange window = QueryRequests.WindowOf(request.Window, "window", NowMs());
+        TimeWindow window = QueryRequests.WindowOf(request.Window, "window", NowMs());
         if (request.Step is null)
         {
             throw RpcErrors.Invalid("step", "step is missing; give the width of each step.");
@@ -68,15 +66,16 @@ public sealed partial class QueryService(StoreHost host, ServerMetrics metrics, 
 
         var groupBy = GroupByOf(request.GroupBy);
         SummaryOptions options = QueryRequests.OptionsOf(request.Quantiles, request.Confidence, [], 0, null);
-        var answers = host.Store.SummarizeSteps(selector, window, step, groupBy, options);
-        SelectionCheck.Require(answers[0], selector, groupBy, "selector");
+        var reads = await store.ReadStepsAsync(selector, window, step, groupBy, context.CancellationToken).ConfigureAwait(false);
+        SelectionCheck.Require(reads[0], selector, groupBy, "selector");
         var reply = new TimelineReply();
-        for (int i = 0; i < answers.Count; i++)
+        for (int i = 0; i < reads.Count; i++)
         {
+            WindowSummary answer = StoreSummaries.Summarize(reads[i], options);
             long from = window.FromUnixMs + (i * step);
-            var range = new StoreTimeRange(from, Math.Min(from + step, window.ToUnixMs));
-            var entry = new TimelineStep { Step = SummaryMapping.ToProto(range), Covered = SummaryMapping.ToProto(answers[i].Covered) };
-            foreach (Store.GroupSummary group in answers[i].Groups)
+            var range = new TimeWindow(from, Math.Min(from + step, window.ToUnixMs));
+            var entry = new TimelineStep { Step = SummaryMapping.ToProto(range), Covered = SummaryMapping.ToProto(answer.Covered) };
+            foreach (SummarizedGroup group in answer.Groups)
             {
                 if (group.Summary.Count > 0)
                 {
@@ -88,7 +87,7 @@ public sealed partial class QueryService(StoreHost host, ServerMetrics metrics, 
         }
 
         metrics.QueryAnswered(nameof(Timeline), ServerMetrics.Since(time, started));
-        return Task.FromResult(reply);
+        return reply;
     }
 
     /// <summary>
@@ -128,8 +127,8 @@ public sealed partial class QueryService(StoreHost host, ServerMetrics metrics, 
             do
             {
                 long started = time.GetTimestamp();
-                StoreTimeRange window = QueryRequests.WindowOf(query.Window, "query.window", NowMs());
-                SummarizeReply reply = SummaryMapping.ToProto(host.Store.Summarize(selector, window, groupBy, options));
+                TimeWindow window = QueryRequests.WindowOf(query.Window, "query.window", NowMs());
+                SummarizeReply reply = SummaryMapping.ToProto(await store.SummarizeAsync(selector, window, groupBy, options, stop.Token).ConfigureAwait(false));
                 metrics.QueryAnswered(nameof(Watch), ServerMetrics.Since(time, started));
                 await SlowReaders.WriteOrCutOffAsync(responseStream, reply, settings.Value.WatchMaxLag, time, stop.Token).ConfigureAwait(false);
                 sent++;
@@ -143,15 +142,15 @@ public sealed partial class QueryService(StoreHost host, ServerMetrics metrics, 
     }
 
     /// <inheritdoc/>
-    public override Task<CompareReply> Compare(CompareRequest request, ServerCallContext context)
+    public override async Task<CompareReply> Compare(CompareRequest request, ServerCallContext context)
     {
         ArgumentNullException.ThrowIfNull(request);
         ArgumentNullException.ThrowIfNull(context);
         long started = time.GetTimestamp();
         long now = NowMs();
         SummaryOptions options = QueryRequests.OptionsOf(request.Quantiles, request.Confidence, [], 0, null, DefaultCompareQuantiles);
-        var a = Side(request.A, "a", now, options, context);
-        var b = Side(request.B, "b", now, options, context);
+        var a = await SideAsync(request.A, "a", now, options, context).ConfigureAwait(false);
+        var b = await SideAsync(request.B, "b", now, options, context).ConfigureAwait(false);
         var reply = new CompareReply
         {
             A = SummaryMapping.ToProto(a.Group.Summary),
@@ -172,27 +171,28 @@ public sealed partial class QueryService(StoreHost host, ServerMetrics metrics, 
         reply.KsLow = low;
         reply.KsHigh = high;
         metrics.QueryAnswered(nameof(Compare), ServerMetrics.Since(time, started));
-        return Task.FromResult(reply);
+        return reply;
     }
 
-    private (Store.GroupSummary Group, StoreTimeRange Covered) Side(Contract.V1.Side? side, string name, long now, SummaryOptions options, ServerCallContext context)
+    private async Task<(SummarizedGroup Group, TimeWindow Covered)> SideAsync(Side? side, string name, long now, SummaryOptions options, ServerCallContext context)
     {
         if (side is null)
         {
             throw RpcErrors.Invalid(name, $"{name} is missing; give a selector and a window for each side.");
         }
 
-        StoreSelector selector = QueryRequests.SelectorOf(side.Selector, $"{name}.selector");
+        SeriesSelector selector = QueryRequests.SelectorOf(side.Selector, $"{name}.selector");
         CallerAccess.Of(context).Require(Scope.Read, selector.Metric, $"{name}.selector.metric");
-        StoreTimeRange window = QueryRequests.WindowOf(side.Window, $"{name}.window", now);
-        var answer = host.Store.Summarize(selector, window, [], options);
-        SelectionCheck.Require(answer, selector, [], $"{name}.selector");
+        TimeWindow window = QueryRequests.WindowOf(side.Window, $"{name}.window", now);
+        WindowSketches read = await store.ReadAsync(selector, window, [], context.CancellationToken).ConfigureAwait(false);
+        SelectionCheck.Require(read, selector, [], $"{name}.selector");
+        WindowSummary answer = StoreSummaries.Summarize(read, options);
         return (answer.Groups[0], answer.Covered);
     }
 
-    private (StoreSelector Selector, IReadOnlyList<string> GroupBy, SummaryOptions Options) Prepare(SummarizeRequest request, ServerCallContext context, string prefix = "")
+    private (SeriesSelector Selector, IReadOnlyList<string> GroupBy, SummaryOptions Options) Prepare(SummarizeRequest request, ServerCallContext context, string prefix = "")
     {
-        StoreSelector selector = QueryRequests.SelectorOf(request.Selector, $"{prefix}selector");
+        SeriesSelector selector = QueryRequests.SelectorOf(request.Selector, $"{prefix}selector");
         CallerAccess.Of(context).Require(Scope.Read, selector.Metric, $"{prefix}selector.metric");
         var groupBy = GroupByOf(request.GroupBy);
         SummaryOptions options = QueryRequests.OptionsOf(request.Quantiles, request.Confidence, request.RankOf, request.MaxModes, request.Histogram);

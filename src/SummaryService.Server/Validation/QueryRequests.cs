@@ -1,8 +1,7 @@
 using SummaryService.Contract.Readable;
 using SummaryService.Contract.V1;
 using SummaryService.Sketches.Summaries;
-using StoreSelector = SummaryService.Store.Selector;
-using StoreTimeRange = SummaryService.Store.TimeRange;
+using SummaryService.Store;
 
 namespace SummaryService.Server.Validation;
 
@@ -13,18 +12,18 @@ namespace SummaryService.Server.Validation;
 public static class QueryRequests
 {
     /// <summary>The selector, which must name a metric.</summary>
-    public static StoreSelector SelectorOf(Contract.V1.Selector? selector, string field)
+    public static SeriesSelector SelectorOf(Contract.V1.Selector? selector, string field)
     {
         if (selector is null || string.IsNullOrEmpty(selector.Metric))
         {
             throw RpcErrors.Invalid($"{field}.metric", $"{field}.metric is empty; name the metric to read.");
         }
 
-        return new StoreSelector(selector.Metric, new Dictionary<string, string>(selector.LabelEquals, StringComparer.Ordinal));
+        return new SeriesSelector(selector.Metric, new Dictionary<string, string>(selector.LabelEquals, StringComparer.Ordinal));
     }
 
     /// <summary>The window as a half-open range, measuring <c>last</c> back from <paramref name="nowMs"/>.</summary>
-    public static StoreTimeRange WindowOf(Window? window, string field, long nowMs)
+    public static TimeWindow WindowOf(Window? window, string field, long nowMs)
     {
         switch (window?.SpanCase)
         {
@@ -35,7 +34,7 @@ public static class QueryRequests
                     throw RpcErrors.Invalid($"{field}.range", $"{field}.range from_unix_ms {TimeText.IsoAndUnixMs(range.FromUnixMs)} is not before to_unix_ms {TimeText.IsoAndUnixMs(range.ToUnixMs)}; windows are half-open [from, to).");
                 }
 
-                return new StoreTimeRange(range.FromUnixMs, range.ToUnixMs);
+                return new TimeWindow(range.FromUnixMs, range.ToUnixMs);
             case Window.SpanOneofCase.Last:
                 TimeSpan last = DurationOf(window.Last, $"{field}.last");
                 if (last <= TimeSpan.Zero)
@@ -43,7 +42,7 @@ public static class QueryRequests
                     throw RpcErrors.Invalid($"{field}.last", $"{field}.last is {DurationText.Format(last)}; it must be positive.");
                 }
 
-                return new StoreTimeRange(nowMs - (long)last.TotalMilliseconds, nowMs);
+                return new TimeWindow(nowMs - (long)last.TotalMilliseconds, nowMs);
             default:
                 throw RpcErrors.Invalid(field, $"{field} is missing; give a range or a trailing duration (last).");
         }
