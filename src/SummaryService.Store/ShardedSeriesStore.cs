@@ -105,7 +105,7 @@ public sealed partial class ShardedSeriesStore : ISeriesStore, IStoreMaintenance
 
         ulong lsn = (ulong)Interlocked.Increment(ref _lastLsn);
         shard.AppliedLsn = lsn;
-        return Journal?.Invoke(LogRecordOf(lsn, batch, times));
+        return Journal?.Invoke(LogRecordOf(lsn, timeline.Key, batch, times));
     }
 
     /// <summary>
