@@ -52,6 +52,7 @@ public static class ServiceRegistration
             // Outermost first: every status, the key check's included, leaves through the error mapping.
             options.Interceptors.Add<ErrorMappingInterceptor>();
             options.Interceptors.Add<ApiKeyInterceptor>();
+            options.Interceptors.Add<QueryTimingInterceptor>();
         }).AddJsonTranscoding(); // the google.api.http routes of the contract: JSON over HTTP/1.1 through the same interceptors
         services.AddGrpcReflection();
         services.AddGrpcHealthChecks().AddCheck<StoreHealthCheck>("store");

@@ -93,9 +93,9 @@ public static class QueryRequests
             }
         }
 
-        if (maxModes > 1000)
+        if (maxModes > QueryDefaults.MaxModes)
         {
-            throw RpcErrors.Invalid("max_modes", $"max_modes is {maxModes}; at most 1000 modes are listed.");
+            throw RpcErrors.Invalid("max_modes", $"max_modes is {maxModes}; at most {QueryDefaults.MaxModes} modes are listed.");
         }
 
         return new SummaryOptions
@@ -123,9 +123,9 @@ public static class QueryRequests
             throw RpcErrors.Invalid("histogram.edges", "histogram.edges has one edge; give at least two, or none for equal-width bins.");
         }
 
-        if (spec.BinCount > 10_000)
+        if (spec.BinCount > QueryDefaults.MaxHistogramBins)
         {
-            throw RpcErrors.Invalid("histogram.bin_count", $"histogram.bin_count is {spec.BinCount}; at most 10000 bins.");
+            throw RpcErrors.Invalid("histogram.bin_count", $"histogram.bin_count is {spec.BinCount}; at most {QueryDefaults.MaxHistogramBins} bins.");
         }
 
         if (spec.LogBuckets && spec.Edges.Count > 0)
