@@ -1,7 +1,7 @@
 using SummaryService.Contract.Readable;
 using SummaryService.Contract.V1;
-using SummaryService.Sketches.Summaries;
 using SummaryService.Store;
+using Domain = SummaryService.Sketches.Summaries;
 
 namespace SummaryService.Server.Validation;
 
@@ -12,7 +12,7 @@ namespace SummaryService.Server.Validation;
 public static class QueryRequests
 {
     /// <summary>The selector, which must name a metric.</summary>
-    public static SeriesSelector SelectorOf(Contract.V1.Selector? selector, string field)
+    public static SeriesSelector SelectorOf(Selector? selector, string field)
     {
         if (selector is null || string.IsNullOrEmpty(selector.Metric))
         {
@@ -68,7 +68,7 @@ public static class QueryRequests
     }
 
     /// <summary>Summary options with the request's quantiles, confidence, thresholds, modes and histogram.</summary>
-    public static SummaryOptions OptionsOf(IReadOnlyList<double> quantiles, double confidence, IReadOnlyList<double> rankOf, uint maxModes, Contract.V1.HistogramSpec? histogram, IReadOnlyList<double>? defaultQuantiles = null)
+    public static Domain.SummaryOptions OptionsOf(IReadOnlyList<double> quantiles, double confidence, IReadOnlyList<double> rankOf, uint maxModes, HistogramSpec? histogram, IReadOnlyList<double>? defaultQuantiles = null)
     {
         ArgumentNullException.ThrowIfNull(quantiles);
         ArgumentNullException.ThrowIfNull(rankOf);
@@ -82,7 +82,7 @@ public static class QueryRequests
 
         if (confidence != 0 && !(confidence > 0 && confidence < 1))
         {
-            throw RpcErrors.Invalid("confidence", $"confidence is {confidence}; it must lie strictly between 0 and 1 (0 means {SummaryOptions.DefaultConfidence}).");
+            throw RpcErrors.Invalid("confidence", $"confidence is {confidence}; it must lie strictly between 0 and 1 (0 means {Domain.SummaryOptions.DefaultConfidence}).");
         }
 
         for (int i = 0; i < rankOf.Count; i++)
@@ -98,17 +98,17 @@ public static class QueryRequests
             throw RpcErrors.Invalid("max_modes", $"max_modes is {maxModes}; at most {QueryDefaults.MaxModes} modes are listed.");
         }
 
-        return new SummaryOptions
+        return new Domain.SummaryOptions
         {
-            Quantiles = quantiles.Count == 0 ? defaultQuantiles ?? SummaryOptions.DefaultQuantiles : quantiles.ToArray(),
-            Confidence = confidence == 0 ? SummaryOptions.DefaultConfidence : confidence,
+            Quantiles = quantiles.Count == 0 ? defaultQuantiles ?? Domain.SummaryOptions.DefaultQuantiles : quantiles.ToArray(),
+            Confidence = confidence == 0 ? Domain.SummaryOptions.DefaultConfidence : confidence,
             RankOf = rankOf.ToArray(),
-            MaxModes = maxModes == 0 ? SummaryOptions.DefaultMaxModes : (int)maxModes,
+            MaxModes = maxModes == 0 ? Domain.SummaryOptions.DefaultMaxModes : (int)maxModes,
             Histogram = histogram is null ? null : HistogramOf(histogram),
         };
     }
 
-    private static Sketches.Summaries.HistogramSpec HistogramOf(Contract.V1.HistogramSpec spec)
+    private static Domain.HistogramSpec HistogramOf(HistogramSpec spec)
     {
         for (int i = 0; i < spec.Edges.Count; i++)
         {
@@ -133,9 +133,9 @@ public static class QueryRequests
             throw RpcErrors.Invalid("histogram.log_buckets", $"histogram.log_buckets is set with {spec.Edges.Count} edges; bins that follow the log buckets take no edges.");
         }
 
-        int bins = spec.BinCount == 0 ? Sketches.Summaries.HistogramSpec.DefaultBinCount : (int)spec.BinCount;
-        return spec.Edges.Count > 0 ? Sketches.Summaries.HistogramSpec.WithEdges(spec.Edges.ToArray())
-            : spec.LogBuckets ? Sketches.Summaries.HistogramSpec.LogScaled(bins)
-            : Sketches.Summaries.HistogramSpec.Automatic(bins);
+        int bins = spec.BinCount == 0 ? Domain.HistogramSpec.DefaultBinCount : (int)spec.BinCount;
+        return spec.Edges.Count > 0 ? Domain.HistogramSpec.WithEdges(spec.Edges.ToArray())
+            : spec.LogBuckets ? Domain.HistogramSpec.LogScaled(bins)
+            : Domain.HistogramSpec.Automatic(bins);
     }
 }

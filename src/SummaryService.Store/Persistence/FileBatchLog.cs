@@ -12,10 +12,8 @@ namespace SummaryService.Store.Persistence;
 public sealed class FileBatchLog : IBatchLog
 {
     private readonly string _directory;
-    private readonly TimeSpan _syncInterval;
     private readonly ILogger _logger;
-    private readonly IDataFiles _files;
-    private readonly Action<TimeSpan>? _syncObserved;
+    private readonly Func<ulong, WriteAheadLog> _open;
     private WriteAheadLog? _log;
 
     /// <summary>A log in <paramref name="directory"/> (created if missing).</summary>
@@ -27,10 +25,8 @@ public sealed class FileBatchLog : IBatchLog
     public FileBatchLog(string directory, TimeSpan syncInterval, ILogger logger, IDataFiles files, Action<TimeSpan>? syncObserved = null)
     {
         _directory = directory;
-        _syncInterval = syncInterval;
         _logger = logger;
-        _files = files;
-        _syncObserved = syncObserved;
+        _open = firstLsn => new WriteAheadLog(directory, firstLsn, syncInterval, logger, files, syncObserved);
         Directory.CreateDirectory(directory);
     }
 
@@ -65,7 +61,7 @@ public sealed class FileBatchLog : IBatchLog
             throw new InvalidOperationException("the batch log was started already.");
         }
 
-        _log = new WriteAheadLog(_directory, firstLsn, _syncInterval, _logger, _files, _syncObserved);
+        _log = _open(firstLsn);
     }
 
     /// <inheritdoc/>
