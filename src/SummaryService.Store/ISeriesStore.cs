@@ -1,10 +1,14 @@
-using SummaryService.Sketches.Summaries;
+using SummaryService.Sketches;
 
 namespace SummaryService.Store;
 
 /// <summary>
-/// What the server needs from a store of time-bucketed series sketches. The local implementation
-/// is <see cref="ShardedSeriesStore"/>; a distributed back end can take its place.
+/// The one seam between the server and a store of time-bucketed series sketches. The single-node
+/// implementation is <see cref="ShardedSeriesStore"/> (kept on disk by <see cref="PersistentSeriesStore"/>);
+/// a distributed back end implements the same calls. Reads return merged sketches per group, not
+/// finished summaries: summaries are built above the store (<see cref="StoreSummaries"/>), so every
+/// back end answers the same figures from the same sketches. Upkeep lives behind
+/// <see cref="IStoreMaintenance"/>, producer de-duplication behind <see cref="IProducerLedger"/>.
 /// </summary>
 public interface ISeriesStore
 {
@@ -18,30 +22,28 @@ public interface ISeriesStore
     /// Validates an uploaded sketch and merges it into the bucket of its timestamp completely, or throws
     /// <see cref="StoreRejectedException"/> and changes nothing. Durable like <see cref="AppendAsync"/>.
     /// </summary>
-    ValueTask<AppendResult> MergeSketchAsync(SketchUpload upload, CancellationToken cancellationToken = default);
+    ValueTask<AppendResult> MergeSketchAsync(UploadedSketch upload, CancellationToken cancellationToken = default);
 
-    /// <summary>Summary of the selected series over the window, one per combination of the group-by labels' values.</summary>
-    WindowSummary Summarize(Selector selector, TimeRange window, IReadOnlyList<string> groupBy, SummaryOptions options);
+    /// <summary>The selected series over the window merged into one sketch per combination of the group-by labels' values.</summary>
+    /// <exception cref="StoreRejectedException">The window is empty.</exception>
+    ValueTask<WindowSketches> ReadAsync(SeriesSelector selector, TimeWindow window, IReadOnlyList<string> groupBy, CancellationToken cancellationToken = default);
 
     /// <summary>
-    /// One summary per step of the window, oldest first: step i is [from + i·step, min(from + (i+1)·step, to)).
-    /// Each answer is what <see cref="Summarize"/> of that step alone gives; one call lets the store
-    /// find the series and take their locks once per call rather than once per step.
+    /// One answer per step of the window, oldest first: step i is [from + i·step, min(from + (i+1)·step, to)).
+    /// Each answer is what <see cref="ReadAsync"/> of that step alone gives; one call lets the store
+    /// find the series once per call rather than once per step.
     /// </summary>
     /// <exception cref="StoreRejectedException">The window is empty, the step is under 1 ms, or it makes more steps than the store answers per call.</exception>
-    IReadOnlyList<WindowSummary> SummarizeSteps(Selector selector, TimeRange window, long stepMs, IReadOnlyList<string> groupBy, SummaryOptions options);
+    ValueTask<IReadOnlyList<WindowSketches>> ReadStepsAsync(SeriesSelector selector, TimeWindow window, long stepMs, IReadOnlyList<string> groupBy, CancellationToken cancellationToken = default);
 
     /// <summary>Series of a metric (or of every metric when null), with their extent.</summary>
-    IReadOnlyList<SeriesInfo> ListSeries(string? metric = null);
+    ValueTask<IReadOnlyList<SeriesInfo>> ListSeriesAsync(string? metric = null, CancellationToken cancellationToken = default);
 
-    /// <summary>Removes one series and all its buckets; false when it did not exist.</summary>
-    bool Delete(SeriesKey key);
+    /// <summary>Removes one series and all its buckets in one step; returns what was removed, or null when it did not exist.</summary>
+    ValueTask<SeriesInfo?> RemoveAsync(SeriesKey key, CancellationToken cancellationToken = default);
 
-    /// <summary>Counts and estimated memory, per tier and per shard.</summary>
-    StoreStats GetStats();
-
-    /// <summary>Rolls aged buckets into coarser tiers and drops those past retention, at the store clock's time.</summary>
-    void Roll();
+    /// <summary>Counts and estimated memory, in total, per tier and per partition of the store.</summary>
+    ValueTask<StoreStats> GetStatsAsync(CancellationToken cancellationToken = default);
 }
 
 /// <summary>Outcome of an accepted batch.</summary>
@@ -49,32 +51,31 @@ public interface ISeriesStore
 /// <param name="Duplicate">True when this (producer, sequence) was applied before and was not applied again.</param>
 public readonly record struct AppendResult(long Accepted, bool Duplicate);
 
-/// <summary>A window query's answer.</summary>
+/// <summary>A window read's answer.</summary>
 /// <param name="Groups">One entry per group, ordered by their label values.</param>
 /// <param name="Covered">Span of the buckets actually merged (bucket-aligned; may reach beyond the window), or the window itself when no bucket overlapped.</param>
-public sealed record WindowSummary(IReadOnlyList<GroupSummary> Groups, TimeRange Covered);
+public sealed record WindowSketches(IReadOnlyList<GroupSketch> Groups, TimeWindow Covered);
 
-/// <summary>One group of a window query.</summary>
+/// <summary>One group of a window read.</summary>
 /// <param name="Labels">The group-by labels and their values (empty string where a series lacks the label).</param>
-/// <param name="Summary">The merged figures.</param>
+/// <param name="Sketch">The group's series merged over the window; a fresh sketch the caller owns.</param>
 /// <param name="SeriesMerged">How many series were merged into this group.</param>
-/// <param name="Sketch">The merged sketch, for callers that compare distributions.</param>
-public sealed record GroupSummary(IReadOnlyDictionary<string, string> Labels, Summary Summary, int SeriesMerged, Sketches.SeriesSketch Sketch);
+public sealed record GroupSketch(IReadOnlyDictionary<string, string> Labels, SeriesSketch Sketch, int SeriesMerged);
 
 /// <summary>A series in the catalogue.</summary>
-public sealed record SeriesInfo(SeriesKey Key, long Count, TimeRange Extent, int Buckets);
+public sealed record SeriesInfo(SeriesKey Key, long Count, TimeWindow Extent, int Buckets);
 
 /// <summary>Store figures.</summary>
 /// <param name="Series">Series held.</param>
 /// <param name="Buckets">Buckets held, all tiers.</param>
 /// <param name="EstimatedBytes">Estimated sketch bytes, all tiers.</param>
 /// <param name="Tiers">Figures per tier.</param>
-/// <param name="Shards">Figures per shard.</param>
+/// <param name="Partitions">Figures per partition of the store (a shard of the local store, a partition of a cluster).</param>
 /// <param name="ProducerMarks">Producers whose highest applied sequence is remembered (see <see cref="StoreOptions.ProducerMarkRetention"/>).</param>
-public sealed record StoreStats(int Series, long Buckets, long EstimatedBytes, IReadOnlyList<TierStats> Tiers, IReadOnlyList<ShardStats> Shards, int ProducerMarks);
+public sealed record StoreStats(int Series, long Buckets, long EstimatedBytes, IReadOnlyList<TierStats> Tiers, IReadOnlyList<PartitionStats> Partitions, int ProducerMarks);
 
 /// <summary>Figures of one tier across all series.</summary>
 public sealed record TierStats(TimeSpan BucketWidth, long Buckets, long EstimatedBytes);
 
-/// <summary>Figures of one shard.</summary>
-public sealed record ShardStats(int Shard, int Series, long Buckets, long EstimatedBytes);
+/// <summary>Figures of one partition of the store.</summary>
+public sealed record PartitionStats(int Partition, int Series, long Buckets, long EstimatedBytes);

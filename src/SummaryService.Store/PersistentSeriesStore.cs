@@ -2,47 +2,49 @@ using System.Diagnostics;
 using Microsoft.Extensions.Logging;
 using SummaryService.Contract.Readable;
 using SummaryService.Sketches.Serialization;
-using SummaryService.Sketches.Summaries;
 using SummaryService.Store.Persistence;
-using SummaryService.Store.Persistence.Formats;
 
 namespace SummaryService.Store;
 
 /// <summary>
-/// A <see cref="ShardedSeriesStore"/> kept on disk: snapshot generations plus a write-ahead log.
+/// A <see cref="ShardedSeriesStore"/> kept durable: snapshot generations in an <see cref="ISnapshotStore"/>
+/// plus a batch log (<see cref="IBatchLog"/>); files by default, any other medium through the two interfaces.
 /// Start-up loads the newest valid snapshot (falling back to older ones) and replays the log;
 /// accepted batches are logged and fsynced before they are acknowledged when durability is
 /// <see cref="DurabilityMode.Wal"/>.
 /// </summary>
-public sealed class PersistentSeriesStore : ISeriesStore, IAsyncDisposable
+public sealed class PersistentSeriesStore : ISeriesStore, IStoreMaintenance, IAsyncDisposable
 {
     private readonly PersistenceOptions _persistence;
     private readonly TimeProvider _time;
     private readonly ILogger _logger;
-    private readonly WriteAheadLog? _log;
+    private readonly IBatchLog _log;
+    private readonly ISnapshotStore _snapshots;
+    private readonly bool _logging;
     private readonly SemaphoreSlim _snapshotGate = new(1, 1);
     private readonly object _snapshotRequests = new();
-    private readonly IDataFiles _files;
     private volatile string? _snapshotTrouble;
     private TaskCompletionSource<SnapshotInfo>? _nextSnapshot;
     private readonly List<(ulong Generation, ulong LogStart)> _kept;
     private ulong _nextGeneration;
     private bool _disposed;
 
-    private PersistentSeriesStore(ShardedSeriesStore inner, PersistenceOptions persistence, TimeProvider time, ILogger logger, RecoveryReport recovery, List<(ulong, ulong)> kept, ulong nextGeneration, Action<TimeSpan>? logSyncObserved, IDataFiles files)
+    private PersistentSeriesStore(ShardedSeriesStore inner, PersistenceOptions persistence, TimeProvider time, ILogger logger, RecoveryReport recovery, List<(ulong, ulong)> kept, ulong nextGeneration, IBatchLog log, ISnapshotStore snapshots)
     {
         Inner = inner;
-        _files = files;
+        _log = log;
+        _snapshots = snapshots;
         _persistence = persistence;
         _time = time;
         _logger = logger;
         Recovery = recovery;
         _kept = kept;
         _nextGeneration = nextGeneration;
-        if (persistence.Durability == DurabilityMode.Wal)
+        _logging = persistence.Durability == DurabilityMode.Wal;
+        if (_logging)
         {
-            _log = new WriteAheadLog(LogDirectory(persistence), inner.LastLsn + 1, persistence.LogSyncInterval, logger, files, logSyncObserved);
-            inner.Journal = _log.Append;
+            log.Start(inner.LastLsn + 1);
+            inner.Journal = log.Append;
             inner.DurableBarrier = _log.Barrier;
         }
 
@@ -53,7 +55,7 @@ public sealed class PersistentSeriesStore : ISeriesStore, IAsyncDisposable
     /// Why writes are refused now, or null: with a log, the log cannot write; with snapshots only,
     /// the last snapshot failed (an acknowledged batch could then be lost beyond the promised interval).
     /// </summary>
-    public string? WriteTrouble => _log is not null ? _log.Trouble : _snapshotTrouble;
+    public string? WriteTrouble => _logging ? _log.Trouble : _snapshotTrouble;
 
     /// <summary>Why the last snapshot failed, or null; with a log nothing acknowledged is at risk, but the log grows until one works.</summary>
     public string? SnapshotTrouble => _snapshotTrouble;
@@ -67,21 +69,40 @@ public sealed class PersistentSeriesStore : ISeriesStore, IAsyncDisposable
     /// <summary>Called with the duration of each snapshot; for telemetry.</summary>
     public Action<TimeSpan>? SnapshotObserved { get; set; }
 
-    /// <summary>Opens the store in <see cref="PersistenceOptions.DataDirectory"/>, recovering whatever is there.</summary>
-    public static PersistentSeriesStore Open(StoreOptions options, PersistenceOptions persistence, TimeProvider time, ILogger logger, Action<TimeSpan>? logSyncObserved = null, IDataFiles? files = null)
+    /// <summary>Opens the store in <see cref="PersistenceOptions.DataDirectory"/> (snapshot and log files), recovering whatever is there.</summary>
+    /// <param name="options">Tiers, limits and sketch settings.</param>
+    /// <param name="persistence">Data directory, durability and snapshot settings.</param>
+    /// <param name="time">The store's clock.</param>
+    /// <param name="logger">Where recovery and persistence trouble is told.</param>
+    /// <param name="logSyncObserved">Called with the duration of each log sync; for telemetry.</param>
+    /// <param name="files">Every write to the data directory goes through it; local files when null.</param>
+    /// <param name="producers">The producer ledger the store fills and recovery restores; a fresh one when null.</param>
+    public static PersistentSeriesStore Open(StoreOptions options, PersistenceOptions persistence, TimeProvider time, ILogger logger, Action<TimeSpan>? logSyncObserved = null, IDataFiles? files = null, IProducerLedger? producers = null)
     {
         ArgumentNullException.ThrowIfNull(persistence);
-        var report = new RecoveryReport();
-        string snapshots = SnapshotDirectory(persistence);
-        Directory.CreateDirectory(snapshots);
-        Directory.CreateDirectory(LogDirectory(persistence));
+        files ??= new LocalDataFiles();
+        var log = new FileBatchLog(Path.Combine(persistence.DataDirectory, "wal"), persistence.LogSyncInterval, logger, files, logSyncObserved);
+        var snapshots = new FileSnapshotStore(Path.Combine(persistence.DataDirectory, "snapshots"), files, logger);
+        return Open(options, persistence, log, snapshots, time, logger, producers);
+    }
 
+    /// <summary>
+    /// Opens the store on any medium: loads the newest usable snapshot generation (falling back to
+    /// older ones, then to the valid part of the newest), replays the log after it, and from then on
+    /// logs and snapshots through the same two interfaces. The store owns both from here on.
+    /// </summary>
+    public static PersistentSeriesStore Open(StoreOptions options, PersistenceOptions persistence, IBatchLog log, ISnapshotStore snapshots, TimeProvider time, ILogger logger, IProducerLedger? producers = null)
+    {
+        ArgumentNullException.ThrowIfNull(persistence);
+        ArgumentNullException.ThrowIfNull(log);
+        ArgumentNullException.ThrowIfNull(snapshots);
+        var report = new RecoveryReport();
         ShardedSeriesStore? store = null;
-        SnapshotManifest? loaded = null;
-        var onDisk = SnapshotFiles.List(snapshots);
-        foreach (var (generation, path) in onDisk)
+        SnapshotMark? loaded = null;
+        var onDisk = snapshots.Generations();
+        foreach (ulong generation in onDisk)
         {
-            if (TryLoad(path, options, time, out store, out loaded, report, out string? problem))
+            if (TryLoad(snapshots, generation, options, time, producers, out store, out loaded, report, out string? problem))
             {
                 report.SnapshotGeneration = generation;
                 break;
@@ -92,61 +113,71 @@ public sealed class PersistentSeriesStore : ISeriesStore, IAsyncDisposable
         }
 
         // No whole generation: the valid part of the newest beats starting empty.
-        if (store is null && onDisk.Count > 0 && TryLoad(onDisk[0].Path, options, time, out store, out loaded, report, out _, salvage: true))
+        if (store is null && onDisk.Count > 0 && TryLoad(snapshots, onDisk[0], options, time, producers, out store, out loaded, report, out _, salvage: true))
         {
-            report.SnapshotGeneration = onDisk[0].Generation;
+            report.SnapshotGeneration = onDisk[0];
             report.SnapshotSalvaged = true;
-            logger.LogWarning("Snapshot {Generation} was salvaged in part: {Losses}", onDisk[0].Generation, string.Join("; ", report.Warnings));
+            logger.LogWarning("Snapshot {Generation} was salvaged in part: {Losses}", onDisk[0], string.Join("; ", report.Warnings));
         }
 
-        store ??= new ShardedSeriesStore(options, time);
-        Func<SeriesKey, ulong> snapshotLsn = loaded is null
-            ? _ => 0
-            : key => loaded.ShardLsns[(int)(key.Hash & (ulong)(loaded.ShardCount - 1))];
-        foreach (LogRecord record in LogSegments.ReadAll(LogDirectory(persistence), logger, report))
+        store ??= new ShardedSeriesStore(options, time, producers);
+        Func<SeriesKey, ulong> snapshotLsn = loaded is null ? _ => 0 : loaded.LsnOf;
+        foreach (LoggedWrite record in log.ReadAll(report))
         {
             try
             {
                 store.Replay(record, snapshotLsn, report);
             }
-            catch (Exception ex) when (ex is SketchFormatException or ArgumentException or InvalidOperationException or IndexOutOfRangeException or OverflowException)
+            catch (Exception ex) when (RecoveryReport.IsUnusableContent(ex))
             {
                 // A record whose frame checks out but whose content cannot be applied: skipped, and said so.
-                report.LogRecordsUnusable++;
-                report.Warnings.Add($"log record {record.Lsn} of {record.Metric} skipped: {ex.Message}");
-                logger.LogWarning("Write-ahead log record {Lsn} skipped: {Reason}", record.Lsn, ex.Message);
+                report.SkipRecord(record.Lsn, record.Key.Metric, ex.Message, logger);
             }
         }
 
-        var kept = onDisk.Select(g => (g.Generation, LogStart: ReadLogStart(g.Path))).Where(g => g.LogStart.HasValue).Select(g => (g.Generation, g.LogStart!.Value)).ToList();
-        ulong next = onDisk.Count == 0 ? 1 : onDisk[0].Generation + 1;
+        var kept = onDisk.Select(g => (Generation: g, LogStart: LogStartOf(snapshots, g))).Where(g => g.LogStart.HasValue).Select(g => (g.Generation, g.LogStart!.Value)).ToList();
+        ulong next = onDisk.Count == 0 ? 1 : onDisk[0] + 1;
         logger.LogInformation("Recovered series store from {Directory}: {Report}.", persistence.DataDirectory, report);
-        return new PersistentSeriesStore(store, persistence, time, logger, report, kept, next, logSyncObserved, files ?? new LocalDataFiles());
+        return new PersistentSeriesStore(store, persistence, time, logger, report, kept, next, log, snapshots);
     }
 
     /// <inheritdoc/>
     public ValueTask<AppendResult> AppendAsync(SeriesBatch batch, CancellationToken cancellationToken = default) => Inner.AppendAsync(batch, cancellationToken);
 
     /// <inheritdoc/>
-    public ValueTask<AppendResult> MergeSketchAsync(SketchUpload upload, CancellationToken cancellationToken = default) => Inner.MergeSketchAsync(upload, cancellationToken);
+    public ValueTask<AppendResult> MergeSketchAsync(UploadedSketch upload, CancellationToken cancellationToken = default) => Inner.MergeSketchAsync(upload, cancellationToken);
 
     /// <inheritdoc/>
-    public WindowSummary Summarize(Selector selector, TimeRange window, IReadOnlyList<string> groupBy, SummaryOptions options) => Inner.Summarize(selector, window, groupBy, options);
+    public ValueTask<WindowSketches> ReadAsync(SeriesSelector selector, TimeWindow window, IReadOnlyList<string> groupBy, CancellationToken cancellationToken = default) =>
+        Inner.ReadAsync(selector, window, groupBy, cancellationToken);
 
     /// <inheritdoc/>
-    public IReadOnlyList<WindowSummary> SummarizeSteps(Selector selector, TimeRange window, long stepMs, IReadOnlyList<string> groupBy, SummaryOptions options) =>
-        Inner.SummarizeSteps(selector, window, stepMs, groupBy, options);
+    public ValueTask<IReadOnlyList<WindowSketches>> ReadStepsAsync(SeriesSelector selector, TimeWindow window, long stepMs, IReadOnlyList<string> groupBy, CancellationToken cancellationToken = default) =>
+        Inner.ReadStepsAsync(selector, window, stepMs, groupBy, cancellationToken);
 
     /// <inheritdoc/>
-    public IReadOnlyList<SeriesInfo> ListSeries(string? metric = null) => Inner.ListSeries(metric);
+    public ValueTask<IReadOnlyList<SeriesInfo>> ListSeriesAsync(string? metric = null, CancellationToken cancellationToken = default) => Inner.ListSeriesAsync(metric, cancellationToken);
 
     /// <inheritdoc/>
-    public bool Delete(SeriesKey key) => Inner.Delete(key);
+    public ValueTask<SeriesInfo?> RemoveAsync(SeriesKey key, CancellationToken cancellationToken = default) => Inner.RemoveAsync(key, cancellationToken);
 
     /// <inheritdoc/>
+    public ValueTask<StoreStats> GetStatsAsync(CancellationToken cancellationToken = default) => Inner.GetStatsAsync(cancellationToken);
+
+    /// <inheritdoc/>
+    public DurabilityMode Durability => _persistence.Durability;
+
+    /// <inheritdoc/>
+    public ValueTask RollAsync(CancellationToken cancellationToken = default) => Inner.RollAsync(cancellationToken);
+
+    /// <inheritdoc/>
+    public async Task<SnapshotInfo?> WriteSnapshotAsync(CancellationToken cancellationToken = default) =>
+        Durability == DurabilityMode.None ? null : await TakeSnapshotAsync(cancellationToken).ConfigureAwait(false);
+
+    /// <summary>Counts and estimated memory, per tier and per shard (synchronous, for in-process callers).</summary>
     public StoreStats GetStats() => Inner.GetStats();
 
-    /// <inheritdoc/>
+    /// <summary>Rolls aged buckets at the store clock's time (synchronous, for in-process callers).</summary>
     public void Roll() => Inner.Roll();
 
     /// <summary>
@@ -214,48 +245,31 @@ public sealed class PersistentSeriesStore : ISeriesStore, IAsyncDisposable
         // Producer marks first: every sequence they cover is then in a shard export or in the log after it.
         var producers = Inner.Producers.Export();
         ulong logStart = Inner.LastLsn + 1;
-        if (_log is not null)
-        {
-            await _log.RotateAsync(logStart).ConfigureAwait(false);
-        }
+        await _log.RotateAsync(logStart).ConfigureAwait(false);
 
         ulong generation = _nextGeneration++;
-        var manifest = new SnapshotManifest
-        {
-            FormatVersion = SnapshotFiles.FormatVersion,
-            Generation = generation,
-            CreatedUnixMs = _time.GetUtcNow().ToUnixTimeMilliseconds(),
-            ShardCount = (uint)Inner.ShardCount,
-            LogStart = logStart,
-        };
-        foreach (var (producer, mark) in producers)
-        {
-            manifest.Producers[producer] = mark.Highest;
-            manifest.ProducersLastSeenUnixMs[producer] = mark.LastSeenUnixMs;
-        }
-
+        long created = _time.GetUtcNow().ToUnixTimeMilliseconds();
+        long[] tierWidths = Inner.Options.Tiers.Select(t => t.WidthMs).ToArray();
+        var shardLsns = new ulong[Inner.ShardCount];
         int series = 0;
-        string directory;
-        using (var writer = SnapshotWriter.Begin(SnapshotDirectory(_persistence), generation, _files))
+        long bytes;
+        using (ISnapshotWriter writer = _snapshots.Begin(generation))
         {
-            for (int i = 0; i < Inner.ShardCount; i++)
+            for (int i = 0; i < shardLsns.Length; i++)
             {
-                var (lsn, records) = Inner.ExportShard(i);
-                manifest.ShardLsns.Add(lsn);
-                series += records.Count;
-                var header = new ShardHeader { FormatVersion = SnapshotFiles.FormatVersion, Generation = generation, Shard = (uint)i, ShardCount = (uint)Inner.ShardCount, AppliedLsn = lsn };
-                header.TierWidthsMs.AddRange(Inner.Options.Tiers.Select(t => t.WidthMs));
-                await Task.Run(() => writer.WriteShard(header, records)).ConfigureAwait(false);
+                var (lsn, count) = Inner.ExportShard(i, writer);
+                shardLsns[i] = lsn;
+                series += count;
+                await writer.EndShardAsync(new ShardMark(i, shardLsns.Length, lsn, tierWidths)).ConfigureAwait(false);
             }
 
-            directory = writer.Complete(manifest);
+            bytes = writer.Complete(new SnapshotMark(generation, created, shardLsns, logStart, producers));
         }
 
         _kept.Insert(0, (generation, logStart));
-        SnapshotFiles.Prune(SnapshotDirectory(_persistence), _persistence.SnapshotsKept, _logger);
+        _snapshots.Prune(_persistence.SnapshotsKept);
         _kept.RemoveRange(Math.Min(_kept.Count, _persistence.SnapshotsKept), Math.Max(0, _kept.Count - _persistence.SnapshotsKept));
-        LogSegments.DeleteBefore(LogDirectory(_persistence), _kept.Min(k => k.LogStart), _logger);
-        long bytes = Directory.EnumerateFiles(directory).Sum(f => new FileInfo(f).Length);
+        _log.DeleteBefore(_kept.Min(k => k.LogStart));
         watch.Stop();
         SnapshotObserved?.Invoke(watch.Elapsed);
         _logger.LogDebug("Snapshot {Generation}: {Series} series, {Bytes} bytes in {Elapsed}.", generation, series, bytes, DurationText.Format(TimeSpan.FromMilliseconds(watch.ElapsedMilliseconds)));
@@ -278,11 +292,7 @@ public sealed class PersistentSeriesStore : ISeriesStore, IAsyncDisposable
             _logger.LogInformation("Snapshot {Generation}: {Series} series, {Bytes} bytes in {Elapsed}, written at shutdown.", final.Generation, final.Series, final.Bytes, DurationText.Format(final.Elapsed));
         }
 
-        if (_log is not null)
-        {
-            await _log.DisposeAsync().ConfigureAwait(false);
-        }
-
+        await _log.DisposeAsync().ConfigureAwait(false);
         _snapshotGate.Dispose();
     }
 
@@ -290,44 +300,39 @@ public sealed class PersistentSeriesStore : ISeriesStore, IAsyncDisposable
     internal async ValueTask CloseWithoutSnapshotAsync()
     {
         _disposed = true;
-        if (_log is not null)
-        {
-            await _log.DisposeAsync().ConfigureAwait(false);
-        }
-
+        await _log.DisposeAsync().ConfigureAwait(false);
         _snapshotGate.Dispose();
     }
 
-    private static bool TryLoad(string path, StoreOptions options, TimeProvider time, out ShardedSeriesStore? store, out SnapshotManifest? manifest, RecoveryReport report, out string? problem, bool salvage = false)
+    private static bool TryLoad(ISnapshotStore snapshots, ulong generation, StoreOptions options, TimeProvider time, IProducerLedger? producers, out ShardedSeriesStore? store, out SnapshotMark? mark, RecoveryReport report, out string? problem, bool salvage = false)
     {
         store = null;
-        problem = null;
-        bool read = salvage
-            ? SnapshotFiles.TrySalvage(path, out manifest, out var shards, report.Warnings)
-            : SnapshotFiles.TryRead(path, out manifest, out shards, out problem);
-        if (!read)
+        mark = null;
+        if (!snapshots.TryRead(generation, salvage, report, out SnapshotImage? image, out problem))
         {
             return false;
         }
 
-        var candidate = new ShardedSeriesStore(options, time);
+        // Loading series touches no producer mark, so a rejected candidate leaves the ledger as it was.
+        var candidate = new ShardedSeriesStore(options, time, producers);
         int series = 0;
         int buckets = 0;
         try
         {
-            foreach (var (header, records) in shards)
+            foreach (ShardImage shard in image!.Shards)
             {
-                bool sameLayout = candidate.HasTierWidths(header.TierWidthsMs);
-                foreach (SeriesRecord record in records)
+                bool sameLayout = candidate.HasTierWidths(shard.Mark.TierWidthsMs);
+                foreach (SeriesImage record in shard.Series)
                 {
                     try
                     {
-                        buckets += candidate.Load(record, header.AppliedLsn, sameLayout);
+                        var (key, stored) = record.Decode();
+                        buckets += candidate.Load(key, stored, shard.Mark.AppliedLsn, sameLayout);
                         series++;
                     }
                     catch (Exception ex) when (salvage && ex is SketchFormatException or ArgumentException)
                     {
-                        report.Warnings.Add($"series {record.Metric} of shard {header.Shard} skipped: {ex.Message}");
+                        report.Warnings.Add($"series {record.Metric} of shard {shard.Mark.Shard} skipped: {ex.Message}");
                     }
                 }
             }
@@ -338,30 +343,14 @@ public sealed class PersistentSeriesStore : ISeriesStore, IAsyncDisposable
             return false;
         }
 
-        candidate.Producers.Import(MarksOf(manifest!));
+        candidate.Producers.Import(image.Mark.Producers);
         report.SnapshotSeries = series;
         report.SnapshotBuckets = buckets;
         store = candidate;
+        mark = image.Mark;
         return true;
     }
 
-    private static ulong? ReadLogStart(string path) =>
-        SnapshotFiles.TryRead(path, out var manifest, out _, out _) ? manifest!.LogStart : null;
-
-    private static string SnapshotDirectory(PersistenceOptions p) => Path.Combine(p.DataDirectory, "snapshots");
-
-    private static string LogDirectory(PersistenceOptions p) => Path.Combine(p.DataDirectory, "wal");
-
-    // Snapshots written before last-seen times were kept count their producers as heard from at creation.
-    private static IEnumerable<KeyValuePair<string, ProducerMark>> MarksOf(SnapshotManifest manifest)
-    {
-        foreach (var (producer, highest) in manifest.Producers)
-        {
-            long seen = manifest.ProducersLastSeenUnixMs.TryGetValue(producer, out long at) ? at : manifest.CreatedUnixMs;
-            yield return KeyValuePair.Create(producer, new ProducerMark(highest, seen));
-        }
-    }
+    private static ulong? LogStartOf(ISnapshotStore snapshots, ulong generation) =>
+        snapshots.TryRead(generation, salvage: false, new RecoveryReport(), out SnapshotImage? image, out _) ? image!.Mark.LogStart : null;
 }
-
-/// <summary>One snapshot written.</summary>
-public sealed record SnapshotInfo(ulong Generation, int Series, long Bytes, TimeSpan Elapsed);

@@ -10,12 +10,12 @@ namespace SummaryService.Store;
 /// recorder takes a fresh producer id each time its process starts, so without expiry the marks, and
 /// every snapshot holding them, would grow with every process that ever sent a batch.
 /// </remarks>
-internal sealed class ProducerSequences
+public sealed class ProducerSequences : IProducerLedger
 {
     private readonly Dictionary<string, ProducerMark> _marks = new(StringComparer.Ordinal);
     private readonly object _gate = new();
 
-    /// <summary>Producers with a mark.</summary>
+    /// <inheritdoc/>
     public int Count
     {
         get
@@ -27,7 +27,7 @@ internal sealed class ProducerSequences
         }
     }
 
-    /// <summary>True when the batch is new; it is then recorded as applied. Either way the producer was heard from at <paramref name="nowMs"/>.</summary>
+    /// <inheritdoc/>
     public bool TryClaim(string producer, ulong sequence, long nowMs)
     {
         if (producer.Length == 0 || sequence == 0)
@@ -48,8 +48,8 @@ internal sealed class ProducerSequences
         }
     }
 
-    /// <summary>Copy of every producer's mark, for snapshots.</summary>
-    public Dictionary<string, ProducerMark> Export()
+    /// <inheritdoc/>
+    public IReadOnlyDictionary<string, ProducerMark> Export()
     {
         lock (_gate)
         {
@@ -57,7 +57,7 @@ internal sealed class ProducerSequences
         }
     }
 
-    /// <summary>Raises marks to at least the given ones (sequence and last-seen time each), as read back from storage.</summary>
+    /// <inheritdoc/>
     public void Import(IEnumerable<KeyValuePair<string, ProducerMark>> marks)
     {
         lock (_gate)
@@ -76,7 +76,7 @@ internal sealed class ProducerSequences
         }
     }
 
-    /// <summary>Forgets the producers last heard from before <paramref name="cutoffUnixMs"/>; returns how many.</summary>
+    /// <inheritdoc/>
     public int Expire(long cutoffUnixMs)
     {
         lock (_gate)
@@ -98,4 +98,4 @@ internal sealed class ProducerSequences
 }
 
 /// <summary>A producer's highest applied sequence and when it was last heard from.</summary>
-internal readonly record struct ProducerMark(ulong Highest, long LastSeenUnixMs);
+public readonly record struct ProducerMark(ulong Highest, long LastSeenUnixMs);

@@ -40,7 +40,7 @@ internal sealed class SeriesCatalogue
     }
 
     /// <summary>The selected series' timelines in series-key order (ordinal), copied so the caller reads them without this lock.</summary>
-    public List<SeriesTimeline> Select(Selector selector)
+    public List<SeriesTimeline> Select(SeriesSelector selector)
     {
         var selected = new List<SeriesTimeline>();
         lock (_gate)

@@ -121,7 +121,7 @@ internal sealed class SeriesTimeline(SeriesKey key, StoreOptions options)
     /// bucket overlapping the result lies inside it. Tiers nest (each width a multiple of the one
     /// below), so this settles after at most one pass per tier.
     /// </summary>
-    public void WidenToBuckets(ref TimeRange range)
+    public void WidenToBuckets(ref TimeWindow range)
     {
         bool widened = true;
         while (widened)
@@ -154,7 +154,7 @@ internal sealed class SeriesTimeline(SeriesKey key, StoreOptions options)
     /// copies), and copies of the buckets left over. Blocks still open to the present are never
     /// cached, since ingest would drop them at once.
     /// </summary>
-    public void PlanParts(TimeRange range, long nowMs, List<QueryPart> into)
+    public void PlanParts(TimeWindow range, long nowMs, List<QueryPart> into)
     {
         for (int i = 0; i < _tiers.Length; i++)
         {

@@ -1,17 +1,17 @@
-using Google.Protobuf;
-using SummaryService.Contract.V1;
 using SummaryService.Sketches;
-using SummaryService.Sketches.Serialization;
 using SummaryService.Store.Persistence;
-using SummaryService.Store.Persistence.Formats;
 
 namespace SummaryService.Store;
 
-/// <summary>The hooks persistence uses: journaling accepted batches, exporting shards, loading and replaying.</summary>
+/// <summary>
+/// The hooks persistence uses: journaling accepted batches, exporting shards, loading and replaying.
+/// They speak in <see cref="LoggedWrite"/>s and <see cref="StoredBucket"/>s; how those are encoded
+/// is the business of the <see cref="IBatchLog"/> and <see cref="ISnapshotStore"/> behind them.
+/// </summary>
 public sealed partial class ShardedSeriesStore
 {
     /// <summary>Called under the shard lock for every applied batch; the returned task completes when the record is durable.</summary>
-    internal Func<LogRecord, Task>? Journal { get; set; }
+    internal Func<LoggedWrite, Task>? Journal { get; set; }
 
     /// <summary>Why writes are refused now (the data directory cannot be written), or null; asked before a batch changes anything.</summary>
     internal Func<string?>? WriteRefusal { get; set; }
@@ -44,43 +44,34 @@ public sealed partial class ShardedSeriesStore
 
     internal ulong LastLsn => (ulong)Interlocked.Read(ref _lastLsn);
 
-    /// <summary>The shard's series as snapshot records, copied under its lock.</summary>
-    internal (ulong AppliedLsn, List<byte[]> Series) ExportShard(int index)
+    /// <summary>Hands the shard's series to <paramref name="writer"/> under its lock; returns the shard's applied LSN and how many series it handed over.</summary>
+    internal (ulong AppliedLsn, int Series) ExportShard(int index, ISnapshotWriter writer)
     {
         SeriesShard shard = _shards[index];
+        var buckets = new List<StoredBucket>();
         lock (shard.Gate)
         {
-            // Each record is serialized at once: its message objects die young instead of piling up
-            // (several times the serialized size) until the whole shard is written.
-            var records = new List<byte[]>(shard.Series.Count);
             foreach (var (key, timeline) in shard.Series)
             {
-                var record = new SeriesRecord { Metric = key.Metric };
-                foreach (var (name, value) in key.Labels)
-                {
-                    record.Labels.Add(name, value);
-                }
-
+                buckets.Clear();
                 for (int tier = 0; tier < timeline.Tiers.Count; tier++)
                 {
                     foreach (var (start, sketch) in timeline.Tiers[tier])
                     {
-                        record.Buckets.Add(new BucketRecord { Tier = (uint)tier, StartUnixMs = start, Sketch = SketchCodec.ToState(sketch) });
+                        buckets.Add(new StoredBucket(tier, start, sketch));
                     }
                 }
 
-                records.Add(record.ToByteArray());
+                writer.AddSeries(key, buckets);
             }
 
-            return (shard.AppliedLsn, records);
+            return (shard.AppliedLsn, shard.Series.Count);
         }
     }
 
     /// <summary>Puts a snapshot's series back; each bucket goes where the current tier layout puts its start time.</summary>
-    internal int Load(SeriesRecord record, ulong appliedLsn, bool sameTierLayout)
+    internal int Load(SeriesKey key, IReadOnlyList<StoredBucket> buckets, ulong appliedLsn, bool sameTierLayout)
     {
-        var key = new SeriesKey(record.Metric, record.Labels);
-        var sketches = record.Buckets.Select(b => (Tier: SavedTier(b, sameTierLayout), b.StartUnixMs, Sketch: SketchCodec.FromState(b.Sketch))).ToList();
         SeriesShard shard = ShardOf(key);
         lock (shard.Gate)
         {
@@ -89,9 +80,9 @@ public sealed partial class ShardedSeriesStore
             long now = NowMs();
             lock (timeline)
             {
-                foreach (var (tier, start, sketch) in sketches)
+                foreach (StoredBucket bucket in buckets)
                 {
-                    shard.EstimatedBytes += timeline.Place(tier, start, sketch, now);
+                    shard.EstimatedBytes += timeline.Place(SavedTier(bucket, sameTierLayout), bucket.StartUnixMs, bucket.Sketch, now);
                 }
             }
 
@@ -99,13 +90,13 @@ public sealed partial class ShardedSeriesStore
             RaiseLsn(appliedLsn);
         }
 
-        return sketches.Count;
+        return buckets.Count;
     }
 
     /// <summary>Applies a logged batch unless the snapshot already holds it; values past retention are dropped and counted.</summary>
-    internal void Replay(LogRecord record, Func<SeriesKey, ulong> snapshotLsn, RecoveryReport report)
+    internal void Replay(LoggedWrite record, Func<SeriesKey, ulong> snapshotLsn, RecoveryReport report)
     {
-        var key = new SeriesKey(record.Metric, record.Labels);
+        SeriesKey key = record.Key;
         _producers.Import([new(record.Producer, new ProducerMark(record.Sequence, NowMs()))]);
         RaiseLsn(record.Lsn);
         if (record.Lsn <= snapshotLsn(key))
@@ -114,19 +105,19 @@ public sealed partial class ShardedSeriesStore
             return;
         }
 
-        if (record.Sketch is not null)
+        if (record.Sketch is { } sketch)
         {
-            ReplayUpload(record, report);
+            ReplayUpload(record, sketch, report);
             return;
         }
 
         long now = NowMs();
         long oldest = now - _options.TotalRetentionMs;
-        var values = new List<double>(record.Values.Count);
-        var times = new List<long>(record.Values.Count);
-        for (int i = 0; i < record.Values.Count; i++)
+        var values = new List<double>(record.Values.Length);
+        var times = new List<long>(record.Values.Length);
+        for (int i = 0; i < record.Values.Length; i++)
         {
-            long t = record.TimesUnixMs.Count == 1 ? record.TimesUnixMs[0] : record.TimesUnixMs[i];
+            long t = record.TimesUnixMs.Length == 1 ? record.TimesUnixMs[0] : record.TimesUnixMs[i];
             if (t < oldest || !double.IsFinite(record.Values[i]))
             {
                 report.ValuesPastRetention++;
@@ -174,39 +165,32 @@ public sealed partial class ShardedSeriesStore
     internal bool HasTierWidths(IReadOnlyList<long> widths) =>
         widths.SequenceEqual(_options.Tiers.Select(t => t.WidthMs));
 
-    private int SavedTier(BucketRecord bucket, bool sameTierLayout)
+    private int SavedTier(StoredBucket bucket, bool sameTierLayout)
     {
-        bool aligned = bucket.Tier < _options.Tiers.Count && SeriesTimeline.AlignDown(bucket.StartUnixMs, _options.Tiers[(int)bucket.Tier].WidthMs) == bucket.StartUnixMs;
-        return sameTierLayout && aligned ? (int)bucket.Tier : -1;
+        bool aligned = bucket.Tier >= 0 && bucket.Tier < _options.Tiers.Count && SeriesTimeline.AlignDown(bucket.StartUnixMs, _options.Tiers[bucket.Tier].WidthMs) == bucket.StartUnixMs;
+        return sameTierLayout && aligned ? bucket.Tier : -1;
     }
 
-    private static LogRecord LogRecordOf(ulong lsn, SeriesBatch batch, TimeRun[] times)
+    private static LoggedWrite LogRecordOf(ulong lsn, SeriesKey key, SeriesBatch batch, TimeRun[] times)
     {
-        var record = new LogRecord { Lsn = lsn, Metric = batch.Metric, Producer = batch.Producer, Sequence = batch.Sequence, FormatVersion = LogSegments.FormatVersion };
-        foreach (var (name, value) in batch.Labels)
-        {
-            record.Labels.Add(name, value);
-        }
-
-        record.Values.AddRange(batch.Values.ToArray());
-
         // The log keeps the batch's own form: one time for the batch, or one per value.
+        long[] resolved;
         if (batch.ValueTimesUnixMs.IsEmpty)
         {
-            record.TimesUnixMs.Add(times[0].TimeUnixMs);
+            resolved = [times[0].TimeUnixMs];
         }
         else
         {
+            resolved = new long[batch.Values.Length];
+            int at = 0;
             foreach (TimeRun run in times)
             {
-                for (int i = 0; i < run.Count; i++)
-                {
-                    record.TimesUnixMs.Add(run.TimeUnixMs);
-                }
+                resolved.AsSpan(at, run.Count).Fill(run.TimeUnixMs);
+                at += run.Count;
             }
         }
 
-        return record;
+        return new LoggedWrite(lsn, key, batch.Producer, batch.Sequence, batch.Values.ToArray(), resolved, Sketch: null);
     }
 
     private void RaiseLsn(ulong lsn)

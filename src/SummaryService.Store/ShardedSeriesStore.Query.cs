@@ -1,32 +1,29 @@
 using SummaryService.Contract.Readable;
 using SummaryService.Sketches;
-using SummaryService.Sketches.Summaries;
 
 namespace SummaryService.Store;
 
 /// <summary>Window queries: the selected series come from the catalogue, each read under its own lock only for a copy.</summary>
 public sealed partial class ShardedSeriesStore
 {
-    /// <summary>Most steps one <see cref="SummarizeSteps"/> call answers; the server's own limit is lower.</summary>
+    /// <summary>Most steps one <see cref="ReadStepsAsync"/> call answers; the server's own limit is lower.</summary>
     public const int MaxSteps = 1_000_000;
 
     /// <inheritdoc/>
-    public WindowSummary Summarize(Selector selector, TimeRange window, IReadOnlyList<string> groupBy, SummaryOptions options)
+    public ValueTask<WindowSketches> ReadAsync(SeriesSelector selector, TimeWindow window, IReadOnlyList<string> groupBy, CancellationToken cancellationToken = default)
     {
         ArgumentNullException.ThrowIfNull(selector);
         ArgumentNullException.ThrowIfNull(groupBy);
-        ArgumentNullException.ThrowIfNull(options);
-        CheckQuery(window, options);
-        return new StepQuery(this, selector, groupBy, options, [window]).Answer(0);
+        CheckWindow(window);
+        return ValueTask.FromResult(new StepQuery(this, selector, groupBy, [window]).Answer(0));
     }
 
     /// <inheritdoc/>
-    public IReadOnlyList<WindowSummary> SummarizeSteps(Selector selector, TimeRange window, long stepMs, IReadOnlyList<string> groupBy, SummaryOptions options)
+    public ValueTask<IReadOnlyList<WindowSketches>> ReadStepsAsync(SeriesSelector selector, TimeWindow window, long stepMs, IReadOnlyList<string> groupBy, CancellationToken cancellationToken = default)
     {
         ArgumentNullException.ThrowIfNull(selector);
         ArgumentNullException.ThrowIfNull(groupBy);
-        ArgumentNullException.ThrowIfNull(options);
-        CheckQuery(window, options);
+        CheckWindow(window);
         if (stepMs < 1)
         {
             throw new StoreRejectedException(RejectReason.InvalidQuery, "step", $"step is {DurationText.Format(TimeSpan.FromMilliseconds(stepMs))}; it must be at least 1ms.");
@@ -38,37 +35,29 @@ public sealed partial class ShardedSeriesStore
             throw new StoreRejectedException(RejectReason.InvalidQuery, "step", $"step {DurationText.Format(TimeSpan.FromMilliseconds(stepMs))} cuts the window into {count} steps; at most {MaxSteps} are answered per call.");
         }
 
-        var steps = new TimeRange[count];
+        var steps = new TimeWindow[count];
         for (int i = 0; i < steps.Length; i++)
         {
             long from = window.FromUnixMs + (i * stepMs);
-            steps[i] = new TimeRange(from, Math.Min(from + stepMs, window.ToUnixMs));
+            steps[i] = new TimeWindow(from, Math.Min(from + stepMs, window.ToUnixMs));
         }
 
-        var query = new StepQuery(this, selector, groupBy, options, steps);
-        var answers = new WindowSummary[steps.Length];
+        var query = new StepQuery(this, selector, groupBy, steps);
+        var answers = new WindowSketches[steps.Length];
         for (int i = 0; i < answers.Length; i++)
         {
+            cancellationToken.ThrowIfCancellationRequested();
             answers[i] = query.Answer(i);
         }
 
-        return answers;
+        return ValueTask.FromResult<IReadOnlyList<WindowSketches>>(answers);
     }
 
-    private static void CheckQuery(TimeRange window, SummaryOptions options)
+    private static void CheckWindow(TimeWindow window)
     {
         if (window.FromUnixMs >= window.ToUnixMs)
         {
             throw new StoreRejectedException(RejectReason.InvalidWindow, "window", $"window from {TimeText.IsoAndUnixMs(window.FromUnixMs)} is not before to {TimeText.IsoAndUnixMs(window.ToUnixMs)}; windows are half-open [from, to).");
-        }
-
-        try
-        {
-            options.Validate();
-        }
-        catch (ArgumentOutOfRangeException ex)
-        {
-            throw new StoreRejectedException(RejectReason.InvalidQuery, ex.ParamName ?? "options", ex.Message);
         }
     }
 
@@ -76,34 +65,32 @@ public sealed partial class ShardedSeriesStore
     /// One query over one or more steps. The selected series and their groups are found once; then
     /// each step is answered in turn: its covered range widened to whole buckets across every
     /// series, its parts copied series by series (one series lock at a time, for a copy only), and
-    /// merged outside any lock. A step's answer is what <see cref="Summarize"/> of that step alone gives.
+    /// merged outside any lock. A step's answer is what <see cref="ReadAsync"/> of that step alone gives.
     /// </summary>
     private sealed class StepQuery
     {
         private readonly ShardedSeriesStore _store;
-        private readonly SummaryOptions _options;
-        private readonly TimeRange[] _covered;
+        private readonly TimeWindow[] _covered;
         private readonly List<QueryGroup> _groups;
         private readonly long _nowMs;
 
-        public StepQuery(ShardedSeriesStore store, Selector selector, IReadOnlyList<string> groupBy, SummaryOptions options, TimeRange[] steps)
+        public StepQuery(ShardedSeriesStore store, SeriesSelector selector, IReadOnlyList<string> groupBy, TimeWindow[] steps)
         {
             _store = store;
-            _options = options;
             _nowMs = store.NowMs();
             _covered = steps;
             _groups = GroupsOf(store._catalogue.Select(selector), groupBy);
             WidenAll();
         }
 
-        public WindowSummary Answer(int step)
+        public WindowSketches Answer(int step)
         {
             var parts = new SeriesCopy[_groups.Count][];
             while (true)
             {
                 // A series may have opened a straddling bucket since the widening: then the step
                 // widens again and its copies are taken afresh, as a single window query would.
-                TimeRange atStart = _covered[step];
+                TimeWindow atStart = _covered[step];
                 for (int g = 0; g < _groups.Count; g++)
                 {
                     parts[g] = CopyParts(_groups[g].Series, step);
@@ -115,13 +102,13 @@ public sealed partial class ShardedSeriesStore
                 }
             }
 
-            var results = new GroupSummary[_groups.Count];
+            var results = new GroupSketch[_groups.Count];
             for (int g = 0; g < _groups.Count; g++)
             {
                 results[g] = Merge(_groups[g], parts[g]);
             }
 
-            return new WindowSummary(results, _covered[step]);
+            return new WindowSketches(results, _covered[step]);
         }
 
         // Widening needs no copies, so every step settles first with one short lock per series;
@@ -140,7 +127,7 @@ public sealed partial class ShardedSeriesStore
                         {
                             for (int i = 0; i < _covered.Length; i++)
                             {
-                                TimeRange before = _covered[i];
+                                TimeWindow before = _covered[i];
                                 timeline.WidenToBuckets(ref _covered[i]);
                                 changed |= before != _covered[i];
                             }
@@ -170,7 +157,7 @@ public sealed partial class ShardedSeriesStore
 
         // Merged in series-key order, each series' parts in time order, so that the same data always
         // gives the same bits whether its blocks were cached or built for this query.
-        private GroupSummary Merge(QueryGroup group, SeriesCopy[] parts)
+        private GroupSketch Merge(QueryGroup group, SeriesCopy[] parts)
         {
             SeriesSketchOptions sketchOptions = _store._options.Sketch;
             var merged = new SeriesSketch(sketchOptions, seed: 0);
@@ -193,7 +180,7 @@ public sealed partial class ShardedSeriesStore
                 }
             }
 
-            return new GroupSummary(group.Labels, merged.Summarize(_options), group.Series.Count, merged);
+            return new GroupSketch(group.Labels, merged, group.Series.Count);
         }
 
         private static List<QueryGroup> GroupsOf(List<SeriesTimeline> selected, IReadOnlyList<string> groupBy)

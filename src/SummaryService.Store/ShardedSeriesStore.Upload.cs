@@ -1,7 +1,5 @@
 using SummaryService.Sketches;
-using SummaryService.Sketches.Serialization;
 using SummaryService.Store.Persistence;
-using SummaryService.Store.Persistence.Formats;
 
 namespace SummaryService.Store;
 
@@ -12,7 +10,7 @@ public sealed partial class ShardedSeriesStore
     /// Validates the upload completely, then merges its sketch into the bucket of its timestamp, or
     /// throws <see cref="StoreRejectedException"/> and changes nothing.
     /// </summary>
-    public async ValueTask<AppendResult> MergeSketchAsync(SketchUpload upload, CancellationToken cancellationToken = default)
+    public async ValueTask<AppendResult> MergeSketchAsync(UploadedSketch upload, CancellationToken cancellationToken = default)
     {
         ArgumentNullException.ThrowIfNull(upload);
         ArgumentNullException.ThrowIfNull(upload.Sketch);
@@ -43,10 +41,10 @@ public sealed partial class ShardedSeriesStore
     }
 
     // Under the shard lock, like a batch: the next LSN, the log record, the sketch into its bucket.
-    private Task? ApplyUpload(SeriesShard shard, SeriesTimeline timeline, SketchUpload upload, long timeUnixMs, SeriesSketch sketch, long now)
+    private Task? ApplyUpload(SeriesShard shard, SeriesTimeline timeline, UploadedSketch upload, long timeUnixMs, SeriesSketch sketch, long now)
     {
         ulong lsn = (ulong)Interlocked.Increment(ref _lastLsn);
-        Task? durable = Journal?.Invoke(UploadRecordOf(lsn, upload, timeUnixMs, sketch));
+        Task? durable = Journal?.Invoke(new LoggedWrite(lsn, timeline.Key, upload.Producer, upload.Sequence, [], [timeUnixMs], sketch));
         lock (timeline)
         {
             shard.EstimatedBytes += timeline.Place(-1, timeUnixMs, sketch, now);
@@ -57,12 +55,11 @@ public sealed partial class ShardedSeriesStore
     }
 
     /// <summary>Replays a logged upload; past retention it is dropped and its values counted as such.</summary>
-    private void ReplayUpload(LogRecord record, RecoveryReport report)
+    private void ReplayUpload(LoggedWrite record, SeriesSketch sketch, RecoveryReport report)
     {
-        var key = new SeriesKey(record.Metric, record.Labels);
-        SeriesSketch sketch = SketchCodec.FromState(record.Sketch);
+        SeriesKey key = record.Key;
         long now = NowMs();
-        long t = record.TimesUnixMs.Count > 0 ? record.TimesUnixMs[0] : now;
+        long t = record.TimesUnixMs.Length > 0 ? record.TimesUnixMs[0] : now;
         report.LogRecordsReplayed++;
         if (t < now - _options.TotalRetentionMs)
         {
@@ -101,17 +98,5 @@ public sealed partial class ShardedSeriesStore
                 "sketch.modes",
                 $"sketch.modes has resolution {given.ModeResolution} and a {given.ModeWidth}x{given.ModeDepth} table; this store uses resolution {expected.ModeResolution} and {expected.ModeWidth}x{expected.ModeDepth}.");
         }
-    }
-
-    private static LogRecord UploadRecordOf(ulong lsn, SketchUpload upload, long time, SeriesSketch sketch)
-    {
-        var record = new LogRecord { Lsn = lsn, Metric = upload.Metric, Producer = upload.Producer, Sequence = upload.Sequence, Sketch = SketchCodec.ToState(sketch), FormatVersion = LogSegments.FormatVersion };
-        foreach (var (name, value) in upload.Labels)
-        {
-            record.Labels.Add(name, value);
-        }
-
-        record.TimesUnixMs.Add(time);
-        return record;
     }
 }

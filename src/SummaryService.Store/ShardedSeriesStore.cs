@@ -1,5 +1,5 @@
 using SummaryService.Sketches;
-using SummaryService.Sketches.Summaries;
+using SummaryService.Store.Persistence;
 
 namespace SummaryService.Store;
 
@@ -15,13 +15,19 @@ namespace SummaryService.Store;
 /// lock: a query waits only for a batch of its own series, ingest waits at most for a copy, and
 /// stored sketches are never mutated by a read.
 /// </remarks>
-public sealed partial class ShardedSeriesStore : ISeriesStore
+/// <para>
+/// Without persistence it is also its own <see cref="IStoreMaintenance"/> (durability None: rollup
+/// only, no snapshots). Its synchronous <see cref="ListSeries"/>, <see cref="Remove"/>,
+/// <see cref="GetStats"/> and <see cref="Roll"/> are for in-process callers of this implementation;
+/// everything else reaches it through the seam.
+/// </para>
+public sealed partial class ShardedSeriesStore : ISeriesStore, IStoreMaintenance
 {
     private readonly StoreOptions _options;
     private readonly TimeProvider _time;
     private readonly SeriesShard[] _shards;
     private readonly BatchValidator _validator;
-    private readonly ProducerSequences _producers = new();
+    private readonly IProducerLedger _producers;
     private readonly Dictionary<string, int> _tenantSeries = new(StringComparer.Ordinal);
     private readonly object _catalogueGate = new();
     private readonly SeriesCatalogue _catalogue = new();
@@ -29,7 +35,10 @@ public sealed partial class ShardedSeriesStore : ISeriesStore
     private long _lastLsn;
 
     /// <summary>Creates an empty store.</summary>
-    public ShardedSeriesStore(StoreOptions options, TimeProvider time)
+    /// <param name="options">Tiers, limits and sketch settings.</param>
+    /// <param name="time">The store's clock.</param>
+    /// <param name="producers">Where applied producer sequences are remembered; a fresh <see cref="ProducerSequences"/> when null.</param>
+    public ShardedSeriesStore(StoreOptions options, TimeProvider time, IProducerLedger? producers = null)
     {
         ArgumentNullException.ThrowIfNull(options);
         ArgumentNullException.ThrowIfNull(time);
@@ -37,6 +46,7 @@ public sealed partial class ShardedSeriesStore : ISeriesStore
         _options = options;
         _time = time;
         _validator = new BatchValidator(options);
+        _producers = producers ?? new ProducerSequences();
         _shards = new SeriesShard[options.ShardCount];
         for (int i = 0; i < _shards.Length; i++)
         {
@@ -47,7 +57,16 @@ public sealed partial class ShardedSeriesStore : ISeriesStore
     /// <summary>The options the store was built with.</summary>
     public StoreOptions Options => _options;
 
-    internal ProducerSequences Producers => _producers;
+    internal IProducerLedger Producers => _producers;
+
+    /// <inheritdoc/>
+    public DurabilityMode Durability => DurabilityMode.None;
+
+    /// <inheritdoc/>
+    public string? WriteTrouble => WriteRefusal?.Invoke();
+
+    /// <inheritdoc/>
+    public string? SnapshotTrouble => null;
 
     /// <inheritdoc/>
     public async ValueTask<AppendResult> AppendAsync(SeriesBatch batch, CancellationToken cancellationToken = default)
@@ -86,7 +105,7 @@ public sealed partial class ShardedSeriesStore : ISeriesStore
 
         ulong lsn = (ulong)Interlocked.Increment(ref _lastLsn);
         shard.AppliedLsn = lsn;
-        return Journal?.Invoke(LogRecordOf(lsn, batch, times));
+        return Journal?.Invoke(LogRecordOf(lsn, timeline.Key, batch, times));
     }
 
     /// <summary>
@@ -128,6 +147,10 @@ public sealed partial class ShardedSeriesStore : ISeriesStore
     }
 
     /// <inheritdoc/>
+    public ValueTask<IReadOnlyList<SeriesInfo>> ListSeriesAsync(string? metric = null, CancellationToken cancellationToken = default) =>
+        ValueTask.FromResult(ListSeries(metric));
+
+    /// <summary>Series of a metric (or of every metric when null), with their extent.</summary>
     public IReadOnlyList<SeriesInfo> ListSeries(string? metric = null)
     {
         var list = new List<SeriesInfo>();
@@ -142,21 +165,7 @@ public sealed partial class ShardedSeriesStore : ISeriesStore
                         continue;
                     }
 
-                    long count = 0;
-                    long from = long.MaxValue;
-                    long to = long.MinValue;
-                    for (int i = 0; i < timeline.Tiers.Count; i++)
-                    {
-                        long width = _options.Tiers[i].WidthMs;
-                        foreach (var (start, sketch) in timeline.Tiers[i])
-                        {
-                            count += sketch.Count;
-                            from = Math.Min(from, start);
-                            to = Math.Max(to, start + width);
-                        }
-                    }
-
-                    list.Add(new SeriesInfo(key, count, from <= to ? new TimeRange(from, to) : default, timeline.BucketCount));
+                    list.Add(InfoOf(timeline));
                 }
             }
         }
@@ -165,7 +174,10 @@ public sealed partial class ShardedSeriesStore : ISeriesStore
     }
 
     /// <inheritdoc/>
-    public bool Delete(SeriesKey key)
+    public ValueTask<SeriesInfo?> RemoveAsync(SeriesKey key, CancellationToken cancellationToken = default) => ValueTask.FromResult(Remove(key));
+
+    /// <summary>Removes one series and all its buckets under its shard lock; returns what it held, or null when it did not exist.</summary>
+    public SeriesInfo? Remove(SeriesKey key)
     {
         ArgumentNullException.ThrowIfNull(key);
         SeriesShard shard = ShardOf(key);
@@ -173,21 +185,44 @@ public sealed partial class ShardedSeriesStore : ISeriesStore
         {
             if (!shard.Series.Remove(key, out var timeline))
             {
-                return false;
+                return null;
             }
 
             shard.EstimatedBytes -= timeline.EstimatedBytes;
             ReleaseSeries(key);
-            return true;
+            return InfoOf(timeline);
         }
     }
 
+    // The series' count and extent from its own buckets; call under its shard lock.
+    private SeriesInfo InfoOf(SeriesTimeline timeline)
+    {
+        long count = 0;
+        long from = long.MaxValue;
+        long to = long.MinValue;
+        for (int i = 0; i < timeline.Tiers.Count; i++)
+        {
+            long width = _options.Tiers[i].WidthMs;
+            foreach (var (start, sketch) in timeline.Tiers[i])
+            {
+                count += sketch.Count;
+                from = Math.Min(from, start);
+                to = Math.Max(to, start + width);
+            }
+        }
+
+        return new SeriesInfo(timeline.Key, count, from <= to ? new TimeWindow(from, to) : default, timeline.BucketCount);
+    }
+
     /// <inheritdoc/>
+    public ValueTask<StoreStats> GetStatsAsync(CancellationToken cancellationToken = default) => ValueTask.FromResult(GetStats());
+
+    /// <summary>Counts and estimated memory, per tier and per shard.</summary>
     public StoreStats GetStats()
     {
         var tierBuckets = new long[_options.Tiers.Count];
         var tierBytes = new long[_options.Tiers.Count];
-        var shards = new ShardStats[_shards.Length];
+        var shards = new PartitionStats[_shards.Length];
         int series = 0;
         for (int s = 0; s < _shards.Length; s++)
         {
@@ -207,7 +242,7 @@ public sealed partial class ShardedSeriesStore : ISeriesStore
                 }
 
                 series += shard.Series.Count;
-                shards[s] = new ShardStats(s, shard.Series.Count, buckets, shard.EstimatedBytes);
+                shards[s] = new PartitionStats(s, shard.Series.Count, buckets, shard.EstimatedBytes);
             }
         }
 
@@ -216,6 +251,16 @@ public sealed partial class ShardedSeriesStore : ISeriesStore
     }
 
     /// <inheritdoc/>
+    public ValueTask RollAsync(CancellationToken cancellationToken = default)
+    {
+        Roll();
+        return ValueTask.CompletedTask;
+    }
+
+    /// <inheritdoc/>
+    public Task<SnapshotInfo?> WriteSnapshotAsync(CancellationToken cancellationToken = default) => Task.FromResult<SnapshotInfo?>(null);
+
+    /// <summary>Rolls aged buckets into coarser tiers and drops those past retention, at the store clock's time.</summary>
     public void Roll()
     {
         long now = NowMs();

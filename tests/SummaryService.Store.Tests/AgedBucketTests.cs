@@ -58,7 +58,7 @@ public class AgedBucketTests
         fixture.Append(StoreFixture.Batch("queue.wait", Enumerable.Range(0, 1000).Select(_ => rng.NextDouble() * 100).ToArray(), old));
         var upload = new SeriesSketch();
         upload.Add(Enumerable.Range(0, 5000).Select(_ => rng.NextDouble() * 100).ToArray());
-        await fixture.Store.MergeSketchAsync(new SketchUpload { Metric = "queue.wait", Sketch = upload, TimeUnixMs = old + 10 });
+        await fixture.Store.MergeSketchAsync(new UploadedSketch { Metric = "queue.wait", Sketch = upload, TimeUnixMs = old + 10 });
         Assert.NotNull(upload.Quantiles);
 
         var summary = fixture.Query("queue.wait", old - 10_000, old + 10_000).Groups[0].Summary;

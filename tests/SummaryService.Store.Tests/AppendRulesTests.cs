@@ -115,8 +115,8 @@ public class AppendRulesTests
     {
         var fixture = new StoreFixture(new StoreOptions { Tiers = StoreFixture.SmallTiers, MaxSeries = 1 });
         fixture.Append(StoreFixture.Batch("a.x", [1]));
-        Assert.True(fixture.Store.Delete(new SeriesKey("a.x")));
-        Assert.False(fixture.Store.Delete(new SeriesKey("a.x")));
+        Assert.NotNull(fixture.Store.Remove(new SeriesKey("a.x")));
+        Assert.Null(fixture.Store.Remove(new SeriesKey("a.x")));
         fixture.Append(StoreFixture.Batch("b.x", [1]));
         Assert.Equal("b.x", Assert.Single(fixture.Store.ListSeries()).Key.Metric);
     }
@@ -127,7 +127,7 @@ public class AppendRulesTests
         var fixture = new StoreFixture();
         var error = Assert.Throws<StoreRejectedException>(() => fixture.Query("a.x", 10, 10));
         Assert.Equal(RejectReason.InvalidWindow, error.Reason);
-        var bad = Assert.Throws<StoreRejectedException>(() => fixture.Store.Summarize(new Selector("a.x"), new TimeRange(0, 10), [], new SummaryOptions { Quantiles = [1.5] }));
+        var bad = Assert.Throws<StoreRejectedException>(() => fixture.Store.Summarize(new SeriesSelector("a.x"), new TimeWindow(0, 10), [], new SummaryOptions { Quantiles = [1.5] }));
         Assert.Equal(RejectReason.InvalidQuery, bad.Reason);
     }
 

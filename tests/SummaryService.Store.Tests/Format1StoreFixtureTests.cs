@@ -59,8 +59,8 @@ public class Format1StoreFixtureTests
         foreach (string line in File.ReadLines(Path.Combine(Folder, "store-answers.jsonl")))
         {
             JsonElement recorded = JsonDocument.Parse(line).RootElement;
-            var window = new TimeRange(recorded.GetProperty("FromUnixMs").GetInt64(), recorded.GetProperty("ToUnixMs").GetInt64());
-            var answer = store.Summarize(new Selector(recorded.GetProperty("Metric").GetString()!), window, ["route"], Format1Options.Recorded);
+            var window = new TimeWindow(recorded.GetProperty("FromUnixMs").GetInt64(), recorded.GetProperty("ToUnixMs").GetInt64());
+            var answer = store.Summarize(new SeriesSelector(recorded.GetProperty("Metric").GetString()!), window, ["route"], Format1Options.Recorded);
 
             JsonElement now = JsonSerializer.SerializeToElement(new
             {
@@ -87,7 +87,7 @@ public class Format1StoreFixtureTests
         ["Quantiles", "FiveNumber", "Ranks", "Histogram", "Iqr", "IqrLow", "IqrHigh", "Mad", "MadLow", "MadHigh", "QuartileSkewness", "Modes", "ModesOmitted", "Exact"];
 
     // Every interval lies inside the recorded one, with its estimate inside the recorded interval too.
-    private static void AssertWithinRecorded(JsonElement recorded, Store.GroupSummary group)
+    private static void AssertWithinRecorded(JsonElement recorded, SummarizedGroup group)
     {
         var quantiles = recorded.GetProperty("Quantiles").EnumerateArray().ToArray();
         for (int i = 0; i < quantiles.Length; i++)

@@ -147,8 +147,8 @@ public class PersistenceTests
     internal static string Answers(ISeriesStore store, FakeTimeProvider clock)
     {
         long now = clock.GetUtcNow().ToUnixTimeMilliseconds();
-        var windows = new[] { new TimeRange(now - 600_000, now + 1), new TimeRange(now - 30_000, now - 10_000), new TimeRange(now - 5_000, now + 1) };
-        var answers = windows.Select(w => store.Summarize(new Selector("svc.latency"), w, ["route"], Everything))
+        var windows = new[] { new TimeWindow(now - 600_000, now + 1), new TimeWindow(now - 30_000, now - 10_000), new TimeWindow(now - 5_000, now + 1) };
+        var answers = windows.Select(w => store.Summarize(new SeriesSelector("svc.latency"), w, ["route"], Everything))
             .Select(a => new { a.Covered, Groups = a.Groups.Select(g => new { g.Labels, g.Summary, g.SeriesMerged }) });
         return JsonSerializer.Serialize(new { answers, Series = store.ListSeries() });
     }

@@ -22,7 +22,7 @@ public class StepQueryTests
             long to = rng.NextInt64(from + 1, fixture.NowMs + 1);
             long step = stepsMs[q % stepsMs.Length];
             string[] groupBy = q % 2 == 0 ? [] : ByRegion;
-            var window = new TimeRange(from, to);
+            var window = new TimeWindow(from, to);
 
             // Odd rounds answer the steps first, so their blocks are built by the step call and then
             // read from the cache by the single queries; even rounds the other way round.
@@ -30,13 +30,13 @@ public class StepQueryTests
             IReadOnlyList<WindowSummary> steps;
             if (q % 2 == 1)
             {
-                steps = fixture.Store.SummarizeSteps(new Selector("parcel.scan_ms"), window, step, groupBy, new SummaryOptions());
+                steps = fixture.Store.SummarizeSteps(new SeriesSelector("parcel.scan_ms"), window, step, groupBy, new SummaryOptions());
                 single.AddRange(EachStep(fixture, window, step, groupBy));
             }
             else
             {
                 single.AddRange(EachStep(fixture, window, step, groupBy));
-                steps = fixture.Store.SummarizeSteps(new Selector("parcel.scan_ms"), window, step, groupBy, new SummaryOptions());
+                steps = fixture.Store.SummarizeSteps(new SeriesSelector("parcel.scan_ms"), window, step, groupBy, new SummaryOptions());
             }
 
             Assert.Equal(single.Count, steps.Count);
@@ -46,8 +46,8 @@ public class StepQueryTests
                 Assert.Equal(single[i].Groups.Count, steps[i].Groups.Count);
                 for (int g = 0; g < steps[i].Groups.Count; g++)
                 {
-                    GroupSummary expected = single[i].Groups[g];
-                    GroupSummary actual = steps[i].Groups[g];
+                    SummarizedGroup expected = single[i].Groups[g];
+                    SummarizedGroup actual = steps[i].Groups[g];
                     Assert.Equal(expected.Labels, actual.Labels);
                     Assert.Equal(expected.SeriesMerged, actual.SeriesMerged);
                     Assert.Equal(SketchCodec.ToState(expected.Sketch).ToByteArray(), SketchCodec.ToState(actual.Sketch).ToByteArray());
@@ -66,12 +66,12 @@ public class StepQueryTests
     {
         var (fixture, kept) = Filled(seed: 71);
         long horizon = fixture.NowMs - StoreFixture.SmallTiers[^1].RetentionMs;
-        var window = new TimeRange(fixture.NowMs - 700_000, fixture.NowMs);
-        var steps = fixture.Store.SummarizeSteps(new Selector("parcel.scan_ms"), window, 45_000, ByRegion, new SummaryOptions());
+        var window = new TimeWindow(fixture.NowMs - 700_000, fixture.NowMs);
+        var steps = fixture.Store.SummarizeSteps(new SeriesSelector("parcel.scan_ms"), window, 45_000, ByRegion, new SummaryOptions());
         Assert.Equal(16, steps.Count);
         foreach (WindowSummary step in steps)
         {
-            foreach (GroupSummary group in step.Groups)
+            foreach (SummarizedGroup group in step.Groups)
             {
                 string region = group.Labels["region"];
                 var expected = kept
@@ -97,23 +97,23 @@ public class StepQueryTests
     public void A_step_under_one_millisecond_or_too_many_steps_is_refused_naming_the_step()
     {
         var (fixture, _) = Filled(seed: 81, seconds: 5);
-        var window = new TimeRange(fixture.NowMs - 5_000, fixture.NowMs);
-        var zero = Assert.Throws<StoreRejectedException>(() => fixture.Store.SummarizeSteps(new Selector("parcel.scan_ms"), window, 0, [], new SummaryOptions()));
+        var window = new TimeWindow(fixture.NowMs - 5_000, fixture.NowMs);
+        var zero = Assert.Throws<StoreRejectedException>(() => fixture.Store.SummarizeSteps(new SeriesSelector("parcel.scan_ms"), window, 0, [], new SummaryOptions()));
         Assert.Equal(RejectReason.InvalidQuery, zero.Reason);
         Assert.Equal("step", zero.Field);
 
-        var wide = new TimeRange(0, (long)ShardedSeriesStore.MaxSteps + 1);
-        var many = Assert.Throws<StoreRejectedException>(() => fixture.Store.SummarizeSteps(new Selector("parcel.scan_ms"), wide, 1, [], new SummaryOptions()));
+        var wide = new TimeWindow(0, (long)ShardedSeriesStore.MaxSteps + 1);
+        var many = Assert.Throws<StoreRejectedException>(() => fixture.Store.SummarizeSteps(new SeriesSelector("parcel.scan_ms"), wide, 1, [], new SummaryOptions()));
         Assert.Equal("step", many.Field);
         Assert.Contains((ShardedSeriesStore.MaxSteps + 1).ToString(System.Globalization.CultureInfo.InvariantCulture), many.Message, StringComparison.Ordinal);
     }
 
-    private static IEnumerable<WindowSummary> EachStep(StoreFixture fixture, TimeRange window, long step, string[] groupBy)
+    private static IEnumerable<WindowSummary> EachStep(StoreFixture fixture, TimeWindow window, long step, string[] groupBy)
     {
         for (long from = window.FromUnixMs; from < window.ToUnixMs; from += step)
         {
-            var range = new TimeRange(from, Math.Min(from + step, window.ToUnixMs));
-            yield return fixture.Store.Summarize(new Selector("parcel.scan_ms"), range, groupBy, new SummaryOptions());
+            var range = new TimeWindow(from, Math.Min(from + step, window.ToUnixMs));
+            yield return fixture.Store.Summarize(new SeriesSelector("parcel.scan_ms"), range, groupBy, new SummaryOptions());
         }
     }
 

@@ -37,5 +37,21 @@ internal sealed class StoreFixture
     };
 
     public WindowSummary Query(string metric, long fromMs, long toMs, params string[] groupBy) =>
-        Store.Summarize(new Selector(metric), new TimeRange(fromMs, toMs), groupBy, new SummaryOptions());
+        Store.Summarize(new SeriesSelector(metric), new TimeWindow(fromMs, toMs), groupBy, new SummaryOptions());
+}
+
+/// <summary>
+/// The window queries the tests ask, in their synchronous form: the local store's reads complete
+/// before they return, so waiting on them here blocks on nothing.
+/// </summary>
+internal static class SyncReads
+{
+    public static WindowSummary Summarize(this ISeriesStore store, SeriesSelector selector, TimeWindow window, IReadOnlyList<string> groupBy, SummaryOptions options) =>
+        store.SummarizeAsync(selector, window, groupBy, options).AsTask().GetAwaiter().GetResult();
+
+    public static IReadOnlyList<WindowSummary> SummarizeSteps(this ISeriesStore store, SeriesSelector selector, TimeWindow window, long stepMs, IReadOnlyList<string> groupBy, SummaryOptions options) =>
+        store.SummarizeStepsAsync(selector, window, stepMs, groupBy, options).AsTask().GetAwaiter().GetResult();
+
+    public static IReadOnlyList<SeriesInfo> ListSeries(this ISeriesStore store, string? metric = null) =>
+        store.ListSeriesAsync(metric).AsTask().GetAwaiter().GetResult();
 }

@@ -81,7 +81,7 @@ public class WindowQueryTests
         fixture.Append(StoreFixture.Batch("queue.depth", [10], bucket + 900));
 
         var answer = fixture.Query("queue.depth", bucket + 200, bucket + 300);
-        Assert.Equal(new TimeRange(bucket, bucket + 1000), answer.Covered);
+        Assert.Equal(new TimeWindow(bucket, bucket + 1000), answer.Covered);
         Assert.Equal(4, answer.Groups[0].Summary.Count);
     }
 
@@ -101,8 +101,8 @@ public class WindowQueryTests
         Assert.Equal([1, 2, 1], answer.Groups.Select(g => g.SeriesMerged));
 
         var matched = fixture.Store.Summarize(
-            new Selector("api.latency", new Dictionary<string, string> { ["route"] = "/a" }),
-            new TimeRange(now - 1000, now + 1000),
+            new SeriesSelector("api.latency", new Dictionary<string, string> { ["route"] = "/a" }),
+            new TimeWindow(now - 1000, now + 1000),
             [],
             new SummaryOptions());
         Assert.Equal(6, Assert.Single(matched.Groups).Summary.Count);

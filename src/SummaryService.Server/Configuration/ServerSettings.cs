@@ -18,6 +18,12 @@ public sealed class ServerSettings
     /// </summary>
     public DurationSetting WatchMaxLag { get; set; } = TimeSpan.FromSeconds(30);
 
+    /// <summary>Time between a watch's updates when the request gives none.</summary>
+    public DurationSetting WatchInterval { get; set; } = TimeSpan.FromSeconds(5);
+
+    /// <summary>Shortest time between a watch's updates a request may ask for: each update is a full window query.</summary>
+    public DurationSetting WatchMinInterval { get; set; } = TimeSpan.FromMilliseconds(100);
+
     /// <summary>Bytes of batches held across all callers between reading and answering them; see <see cref="Services.IngestBudget"/>.</summary>
     public long MaxIngestBytesHeld { get; set; } = 256L << 20;
 

@@ -106,6 +106,11 @@ internal sealed class SettingsValidator :
             return Fail($"Server:WatchMaxLag is {options.WatchMaxLag}; it must be at least 1s.");
         }
 
+        if (options.WatchMinInterval < TimeSpan.FromMilliseconds(1) || options.WatchInterval.Value < options.WatchMinInterval.Value)
+        {
+            return Fail($"Server:WatchMinInterval is {options.WatchMinInterval} and Server:WatchInterval {options.WatchInterval}; the minimum must be at least 1ms and the default at least the minimum.");
+        }
+
         if (options.RefusalLogInterval < TimeSpan.FromSeconds(1))
         {
             return Fail($"Server:RefusalLogInterval is {options.RefusalLogInterval}; it must be at least 1s.");

@@ -10,6 +10,7 @@ using SummaryService.Server.Diagnostics;
 using SummaryService.Server.Services;
 using SummaryService.Server.Telemetry;
 using SummaryService.Server.Validation;
+using SummaryService.Store;
 using SummaryService.Store.Persistence;
 
 namespace SummaryService.Server.Hosting;
@@ -31,7 +32,10 @@ public static class ServiceRegistration
         services.AddSingleton(TimeProvider.System);
         services.AddSingleton<ServerMetrics>();
         services.TryAddSingleton<IDataFiles, LocalDataFiles>();
+        services.TryAddSingleton<IProducerLedger, ProducerSequences>();
         services.AddSingleton<StoreHost>();
+        services.AddSingleton(provider => provider.GetRequiredService<StoreHost>().Store);
+        services.AddSingleton(provider => provider.GetRequiredService<StoreHost>().Maintenance);
         services.AddSingleton<ApiKeyRegistry>();
         services.AddSingleton<RefusalLog>();
         services.AddSingleton<IngestBudget>();
@@ -48,6 +52,7 @@ public static class ServiceRegistration
             // Outermost first: every status, the key check's included, leaves through the error mapping.
             options.Interceptors.Add<ErrorMappingInterceptor>();
             options.Interceptors.Add<ApiKeyInterceptor>();
+            options.Interceptors.Add<QueryTimingInterceptor>();
         }).AddJsonTranscoding(); // the google.api.http routes of the contract: JSON over HTTP/1.1 through the same interceptors
         services.AddGrpcReflection();
         services.AddGrpcHealthChecks().AddCheck<StoreHealthCheck>("store");

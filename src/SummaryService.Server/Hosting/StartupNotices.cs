@@ -1,9 +1,10 @@
 using SummaryService.Server.Auth;
+using SummaryService.Store;
 
 namespace SummaryService.Server.Hosting;
 
 /// <summary>Opens the store before the first call (so recovery happens at start-up) and warns when authentication is off.</summary>
-public sealed class StartupNotices(StoreHost store, ApiKeyRegistry keys, ILogger<StartupNotices> logger) : IHostedService
+public sealed class StartupNotices(IStoreMaintenance store, ApiKeyRegistry keys, ILogger<StartupNotices> logger) : IHostedService
 {
     /// <inheritdoc/>
     public Task StartAsync(CancellationToken cancellationToken)

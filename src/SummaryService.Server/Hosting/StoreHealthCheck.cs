@@ -1,4 +1,5 @@
 using Microsoft.Extensions.Diagnostics.HealthChecks;
+using SummaryService.Store;
 
 namespace SummaryService.Server.Hosting;
 
@@ -8,22 +9,22 @@ namespace SummaryService.Server.Hosting;
 /// and degraded while snapshots fail but a log still makes writes durable. Reported through the
 /// standard gRPC health service.
 /// </summary>
-public sealed class StoreHealthCheck(StoreHost host) : IHealthCheck
+public sealed class StoreHealthCheck(ISeriesStore store, IStoreMaintenance upkeep) : IHealthCheck
 {
     /// <inheritdoc/>
-    public Task<HealthCheckResult> CheckHealthAsync(HealthCheckContext context, CancellationToken cancellationToken = default)
+    public async Task<HealthCheckResult> CheckHealthAsync(HealthCheckContext context, CancellationToken cancellationToken = default)
     {
-        if (host.WriteTrouble is { } trouble)
+        if (upkeep.WriteTrouble is { } trouble)
         {
-            return Task.FromResult(HealthCheckResult.Unhealthy($"writes are refused: {trouble}"));
+            return HealthCheckResult.Unhealthy($"writes are refused: {trouble}");
         }
 
-        if (host.SnapshotTrouble is { } snapshots)
+        if (upkeep.SnapshotTrouble is { } snapshots)
         {
-            return Task.FromResult(HealthCheckResult.Degraded(snapshots));
+            return HealthCheckResult.Degraded(snapshots);
         }
 
-        var stats = host.Store.GetStats();
-        return Task.FromResult(HealthCheckResult.Healthy($"{stats.Series} series, {stats.Buckets} buckets."));
+        StoreStats stats = await store.GetStatsAsync(cancellationToken).ConfigureAwait(false);
+        return HealthCheckResult.Healthy($"{stats.Series} series, {stats.Buckets} buckets.");
     }
 }

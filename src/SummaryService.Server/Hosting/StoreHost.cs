@@ -7,16 +7,18 @@ using SummaryService.Store.Persistence;
 namespace SummaryService.Server.Hosting;
 
 /// <summary>
-/// Owns the store for the life of the host: opens (and recovers) it on first use, and disposes it
-/// when the host is disposed — after the server has stopped taking calls — which writes the final
-/// snapshot. With durability <c>None</c> the store lives in memory and nothing touches the disk.
+/// The single-node composition root of the store: opens (and recovers) it on first use, hands it
+/// out as <see cref="ISeriesStore"/> and <see cref="IStoreMaintenance"/>, and disposes it when the
+/// host is disposed — after the server has stopped taking calls — which writes the final snapshot.
+/// With durability <c>None</c> the store lives in memory and nothing touches the disk. Only the
+/// registration knows this type: services and background work take the two interfaces.
 /// </summary>
 public sealed class StoreHost : IAsyncDisposable
 {
     private readonly PersistentSeriesStore? _persistent;
 
     /// <summary>Opens the configured store.</summary>
-    public StoreHost(IOptions<StoreSettings> store, IOptions<PersistenceSettings> persistence, IOptions<AuthSettings> auth, IDataFiles files, TimeProvider time, ServerMetrics metrics, ILogger<StoreHost> logger)
+    public StoreHost(IOptions<StoreSettings> store, IOptions<PersistenceSettings> persistence, IOptions<AuthSettings> auth, IDataFiles files, IProducerLedger producers, TimeProvider time, ServerMetrics metrics, ILogger<StoreHost> logger)
     {
         ArgumentNullException.ThrowIfNull(store);
         ArgumentNullException.ThrowIfNull(persistence);
@@ -28,43 +30,33 @@ public sealed class StoreHost : IAsyncDisposable
         {
             TenantPrefixes = auth.Value.Enabled ? auth.Value.Keys.SelectMany(k => k.Prefixes).Where(p => p.Length > 0).Distinct(StringComparer.Ordinal).ToArray() : [],
         };
-        Durability = persistence.Value.Durability;
-        if (Durability == DurabilityMode.None)
+        Func<StoreStats> stats;
+        if (persistence.Value.Durability == DurabilityMode.None)
         {
-            Store = new ShardedSeriesStore(options, time);
+            var memory = new ShardedSeriesStore(options, time, producers);
+            (Store, Maintenance, stats) = (memory, memory, memory.GetStats);
             logger.LogWarning("Durability is None: data lives in memory only and is lost when the server stops.");
         }
         else
         {
-            _persistent = PersistentSeriesStore.Open(options, persistence.Value.ToPersistenceOptions(), time, logger, metrics.LogSynced, files);
+            _persistent = PersistentSeriesStore.Open(options, persistence.Value.ToPersistenceOptions(), time, logger, metrics.LogSynced, files, producers);
             _persistent.SnapshotObserved = metrics.SnapshotTaken;
-            Store = _persistent;
+            (Store, Maintenance, stats) = (_persistent, _persistent, _persistent.GetStats);
         }
 
+        // The gauges read the local store directly: an observable instrument's callback is synchronous.
         metrics.ObserveStore(() =>
         {
-            StoreStats stats = Store.GetStats();
-            return (stats.Series, stats.Buckets);
+            StoreStats figures = stats();
+            return (figures.Series, figures.Buckets);
         });
     }
 
     /// <summary>The store every service uses.</summary>
     public ISeriesStore Store { get; }
 
-    /// <summary>Why writes are refused now (the data directory cannot be written), or null; while set, health reports not serving.</summary>
-    public string? WriteTrouble => _persistent?.WriteTrouble;
-
-    /// <summary>Why the last snapshot failed, or null; health then reports degraded.</summary>
-    public string? SnapshotTrouble => _persistent?.SnapshotTrouble;
-
-    /// <summary>Durability mode in force.</summary>
-    public DurabilityMode Durability { get; }
-
-    /// <summary>Writes a snapshot now; null when durability is None.</summary>
-    public async Task<SnapshotInfo?> TakeSnapshotAsync(CancellationToken cancellationToken)
-    {
-        return _persistent is null ? null : await _persistent.TakeSnapshotAsync(cancellationToken).ConfigureAwait(false);
-    }
+    /// <summary>Its upkeep: rollup, snapshots, persistence health.</summary>
+    public IStoreMaintenance Maintenance { get; }
 
     /// <inheritdoc/>
     public async ValueTask DisposeAsync()

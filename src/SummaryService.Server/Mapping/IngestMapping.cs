@@ -9,7 +9,7 @@ namespace SummaryService.Server.Mapping;
 public static class IngestMapping
 {
     /// <summary>The store upload of a wire upload; a missing or malformed sketch is InvalidArgument naming the field at fault.</summary>
-    public static Store.SketchUpload ToStore(Contract.V1.SketchUpload upload)
+    public static UploadedSketch ToStore(SketchUpload upload)
     {
         ArgumentNullException.ThrowIfNull(upload);
         if (upload.Sketch is null)
@@ -17,7 +17,7 @@ public static class IngestMapping
             throw RpcErrors.Invalid("sketch", "sketch is missing; upload a SeriesSketchState.");
         }
 
-        return new Store.SketchUpload
+        return new UploadedSketch
         {
             Metric = upload.Metric,
             Labels = new Dictionary<string, string>(upload.Labels, StringComparer.Ordinal),

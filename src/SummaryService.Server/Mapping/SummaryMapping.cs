@@ -1,7 +1,7 @@
 using SummaryService.Contract.V1;
+using SummaryService.Store;
 using Domain = SummaryService.Sketches.Summaries;
 using DomainModes = SummaryService.Sketches.Modes;
-using StoreTimeRange = SummaryService.Store.TimeRange;
 
 namespace SummaryService.Server.Mapping;
 
@@ -125,14 +125,14 @@ public static class SummaryMapping
     public static SketchForm ToProto(Domain.SketchForm form) => (SketchForm)((int)form + 1);
 
     /// <summary>The wire form of a time range.</summary>
-    public static TimeRange ToProto(StoreTimeRange range) => new() { FromUnixMs = range.FromUnixMs, ToUnixMs = range.ToUnixMs };
+    public static TimeRange ToProto(TimeWindow range) => new() { FromUnixMs = range.FromUnixMs, ToUnixMs = range.ToUnixMs };
 
     /// <summary>The wire form of a window query's answer.</summary>
-    public static SummarizeReply ToProto(Store.WindowSummary window)
+    public static SummarizeReply ToProto(WindowSummary window)
     {
         ArgumentNullException.ThrowIfNull(window);
         var reply = new SummarizeReply { Covered = ToProto(window.Covered) };
-        foreach (Store.GroupSummary group in window.Groups)
+        foreach (SummarizedGroup group in window.Groups)
         {
             reply.Groups.Add(ToProto(group));
         }
@@ -140,7 +140,7 @@ public static class SummaryMapping
     }
 
     /// <summary>The wire form of one group.</summary>
-    public static GroupSummary ToProto(Store.GroupSummary group)
+    public static GroupSummary ToProto(SummarizedGroup group)
     {
         ArgumentNullException.ThrowIfNull(group);
         var proto = new GroupSummary { Summary = ToProto(group.Summary), SeriesMerged = (uint)group.SeriesMerged };

@@ -2,7 +2,6 @@ using Google.Protobuf.WellKnownTypes;
 using Grpc.Core;
 using SummaryService.Contract.V1;
 using SummaryService.Server.Auth;
-using SummaryService.Server.Hosting;
 using SummaryService.Server.Validation;
 using SummaryService.Store;
 
@@ -13,10 +12,10 @@ namespace SummaryService.Server.Services;
 /// removes only its own series, and cannot run store-wide operations.
 /// </summary>
 [BindServiceMethod(typeof(DecodeCheckedBinding<Admin.AdminBase>), nameof(DecodeCheckedBinding<Admin.AdminBase>.BindService))]
-public sealed class AdminService(StoreHost host) : Admin.AdminBase
+public sealed class AdminService(ISeriesStore store, IStoreMaintenance upkeep) : Admin.AdminBase
 {
     /// <inheritdoc/>
-    public override Task<RemoveSeriesReply> RemoveSeries(RemoveSeriesRequest request, ServerCallContext context)
+    public override async Task<RemoveSeriesReply> RemoveSeries(RemoveSeriesRequest request, ServerCallContext context)
     {
         ArgumentNullException.ThrowIfNull(request);
         if (string.IsNullOrEmpty(request.Metric))
@@ -26,13 +25,9 @@ public sealed class AdminService(StoreHost host) : Admin.AdminBase
 
         CallerAccess.Of(context).Require(Scope.Admin, request.Metric, "metric");
         var key = new SeriesKey(request.Metric, request.Labels);
-        long count = host.Store.ListSeries(request.Metric).FirstOrDefault(s => s.Key.Equals(key))?.Count ?? 0;
-        if (!host.Store.Delete(key))
-        {
-            throw RpcErrors.NotFound("metric", $"no series {key}; give the metric and its full label set.");
-        }
-
-        return Task.FromResult(new RemoveSeriesReply { Count = (ulong)count });
+        SeriesInfo removed = await store.RemoveAsync(key, context.CancellationToken).ConfigureAwait(false)
+            ?? throw RpcErrors.NotFound("metric", $"no series {key}; give the metric and its full label set.");
+        return new RemoveSeriesReply { Count = (ulong)removed.Count };
     }
 
     /// <inheritdoc/>
@@ -40,20 +35,20 @@ public sealed class AdminService(StoreHost host) : Admin.AdminBase
     {
         ArgumentNullException.ThrowIfNull(context);
         CallerAccess.Of(context).RequireAllMetrics(Scope.Admin, nameof(WriteSnapshot));
-        SnapshotInfo info = await host.TakeSnapshotAsync(context.CancellationToken).ConfigureAwait(false)
+        SnapshotInfo info = await upkeep.WriteSnapshotAsync(context.CancellationToken).ConfigureAwait(false)
             ?? throw new RpcException(new Status(StatusCode.FailedPrecondition, "Persistence:Durability is None; this server keeps no snapshots."));
         return new WriteSnapshotReply { Generation = info.Generation, Series = (uint)info.Series, Bytes = (ulong)info.Bytes, Elapsed = Duration.FromTimeSpan(info.Elapsed) };
     }
 
     /// <inheritdoc/>
-    public override Task<HoldingsReply> Holdings(HoldingsRequest request, ServerCallContext context)
+    public override async Task<HoldingsReply> Holdings(HoldingsRequest request, ServerCallContext context)
     {
         ArgumentNullException.ThrowIfNull(context);
         CallerAccess.Of(context).RequireAllMetrics(Scope.Admin, nameof(Holdings));
-        StoreStats stats = host.Store.GetStats();
-        var reply = new HoldingsReply { Series = (uint)stats.Series, Buckets = (ulong)stats.Buckets, EstimatedBytes = (ulong)stats.EstimatedBytes, Durability = host.Durability.ToString(), ProducerMarks = (uint)stats.ProducerMarks };
+        StoreStats stats = await store.GetStatsAsync(context.CancellationToken).ConfigureAwait(false);
+        var reply = new HoldingsReply { Series = (uint)stats.Series, Buckets = (ulong)stats.Buckets, EstimatedBytes = (ulong)stats.EstimatedBytes, Durability = upkeep.Durability.ToString(), ProducerMarks = (uint)stats.ProducerMarks };
         reply.Tiers.AddRange(stats.Tiers.Select(t => new TierHoldings { BucketWidth = Duration.FromTimeSpan(t.BucketWidth), Buckets = (ulong)t.Buckets, EstimatedBytes = (ulong)t.EstimatedBytes }));
-        reply.Shards.AddRange(stats.Shards.Select(s => new ShardHoldings { Shard = (uint)s.Shard, Series = (uint)s.Series, Buckets = (ulong)s.Buckets, EstimatedBytes = (ulong)Math.Max(0, s.EstimatedBytes) }));
-        return Task.FromResult(reply);
+        reply.Shards.AddRange(stats.Partitions.Select(s => new ShardHoldings { Shard = (uint)s.Partition, Series = (uint)s.Series, Buckets = (ulong)s.Buckets, EstimatedBytes = (ulong)Math.Max(0, s.EstimatedBytes) }));
+        return reply;
     }
 }

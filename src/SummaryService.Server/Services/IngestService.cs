@@ -1,8 +1,6 @@
-using System.Threading.Channels;
 using Grpc.Core;
 using SummaryService.Contract.V1;
 using SummaryService.Server.Auth;
-using SummaryService.Server.Hosting;
 using SummaryService.Server.Mapping;
 using SummaryService.Server.Telemetry;
 using SummaryService.Server.Validation;
@@ -13,17 +11,12 @@ namespace SummaryService.Server.Services;
 
 /// <summary>
 /// Ingest RPCs. Each batch is checked for access, then handed to the store, which validates it
-/// whole; so a refused batch, for whatever reason, changes nothing.
+/// whole; so a refused batch, for whatever reason, changes nothing. The producer stream's ordering
+/// and shutdown belong to <see cref="PushStreamSession"/>.
 /// </summary>
 [BindServiceMethod(typeof(DecodeCheckedBinding<Ingest.IngestBase>), nameof(DecodeCheckedBinding<Ingest.IngestBase>.BindService))]
-public sealed class IngestService(StoreHost host, ServerMetrics metrics, IHostApplicationLifetime lifetime, IngestBudget budget) : Ingest.IngestBase
+public sealed class IngestService(ISeriesStore store, ServerMetrics metrics, IHostApplicationLifetime lifetime, IngestBudget budget) : Ingest.IngestBase
 {
-    /// <summary>Applied batches a stream may hold unanswered while their log group commits.</summary>
-    internal const int MaxUnansweredBatches = 32;
-
-    /// <summary>How long a stopping server waits for a sender to complete its side of a stream.</summary>
-    internal static readonly TimeSpan StreamEndingGrace = TimeSpan.FromSeconds(2);
-
     /// <inheritdoc/>
     public override Task<PushReply> Push(Batch request, ServerCallContext context)
     {
@@ -33,105 +26,22 @@ public sealed class IngestService(StoreHost host, ServerMetrics metrics, IHostAp
         return WithinBudgetAsync(request.CalculateSize(), () => ApplyAsync(request, context.CancellationToken));
     }
 
-    /// <summary>
-    /// One reply per batch, in order. A refused batch gets an error reply and the stream goes on.
-    /// When the host stops, every batch read so far is finished and answered, then the stream ends cleanly.
-    /// </summary>
-    /// <remarks>
-    /// Batches are applied in arrival order as they are read, and each reply is sent once its batch is
-    /// durable. Reading does not wait for the log: a stream that waited for each fsync before reading
-    /// the next batch would carry one batch per group commit, however fast the store applies them.
-    /// At most <see cref="MaxUnansweredBatches"/> applied batches wait for their replies; beyond that
-    /// reading pauses, so a producer cannot run ahead of the disk without bound.
-    /// <para>
-    /// On stop the server does not simply end the call while the sender is still writing: HTTP/2
-    /// clients may then see the connection close before they have read the final status, and report
-    /// a broken stream although every reply arrived. Instead every reply from then on says
-    /// <c>stream_ending</c>, batches still arriving are answered "Unavailable" without being applied,
-    /// and the call ends once the sender has completed its side (or after <see cref="StreamEndingGrace"/>).
-    /// </para>
-    /// </remarks>
-    public override async Task PushStream(IAsyncStreamReader<Batch> requestStream, IServerStreamWriter<PushReply> responseStream, ServerCallContext context)
+    /// <inheritdoc cref="PushStreamSession"/>
+    public override Task PushStream(IAsyncStreamReader<Batch> requestStream, IServerStreamWriter<PushReply> responseStream, ServerCallContext context)
     {
         ArgumentNullException.ThrowIfNull(requestStream);
         ArgumentNullException.ThrowIfNull(responseStream);
         ArgumentNullException.ThrowIfNull(context);
-        CallerAccess access = CallerAccess.Of(context);
-        using var reading = CancellationTokenSource.CreateLinkedTokenSource(context.CancellationToken, lifetime.ApplicationStopping);
-        var unanswered = Channel.CreateBounded<Task<PushReply>>(new BoundedChannelOptions(MaxUnansweredBatches) { SingleReader = true, SingleWriter = true });
-        Task answering = AnswerInOrderAsync(unanswered, responseStream, context.CancellationToken);
-        try
-        {
-            try
-            {
-                await foreach (Batch batch in requestStream.ReadAllAsync(reading.Token).ConfigureAwait(false))
-                {
-                    int bytes = batch.CalculateSize();
-                    await budget.TakeAsync(bytes, reading.Token).ConfigureAwait(false);
-                    await unanswered.Writer.WriteAsync(HeldUntilAnsweredAsync(StartBatch(batch, access, context.CancellationToken), bytes), context.CancellationToken).ConfigureAwait(false);
-                }
-            }
-            catch (OperationCanceledException) when (lifetime.ApplicationStopping.IsCancellationRequested && !context.CancellationToken.IsCancellationRequested)
-            {
-                await RefuseUntilSenderCompletesAsync(requestStream, unanswered.Writer, context.CancellationToken).ConfigureAwait(false);
-            }
-        }
-        finally
-        {
-            unanswered.Writer.TryComplete();
-            await answering.ConfigureAwait(false);
-        }
+        return new PushStreamSession(ApplyAsync, budget, metrics, lifetime.ApplicationStopping).RunAsync(requestStream, responseStream, context);
     }
 
-    // Draining on shutdown: the batches read so far are being answered. Anything the sender wrote
-    // before it saw stream_ending is answered "Unavailable" unapplied, so it knows to send it again.
-    private async Task RefuseUntilSenderCompletesAsync(IAsyncStreamReader<Batch> requestStream, ChannelWriter<Task<PushReply>> unanswered, CancellationToken cancellationToken)
+    /// <inheritdoc/>
+    public override Task<PushReply> PushSketch(SketchUpload request, ServerCallContext context)
     {
-        using var grace = CancellationTokenSource.CreateLinkedTokenSource(cancellationToken);
-        grace.CancelAfter(StreamEndingGrace);
-        try
-        {
-            while (await requestStream.MoveNext(grace.Token).ConfigureAwait(false))
-            {
-                metrics.BatchRejected("Stopping");
-                ulong sequence = requestStream.Current.Sequence;
-                string message = $"the server is stopping: batch sequence {sequence} was not applied; send it again on a new stream";
-                await unanswered.WriteAsync(Task.FromResult(ErrorReply(sequence, StatusCode.Unavailable, message, "")), cancellationToken).ConfigureAwait(false);
-            }
-        }
-        catch (OperationCanceledException) when (!cancellationToken.IsCancellationRequested)
-        {
-            // The sender did not complete its side in time; the call ends anyway.
-        }
-    }
-
-    // Applies the batch now (the store applies synchronously and returns a task for durability);
-    // a refusal becomes the batch's error reply when its turn to be answered comes.
-    private Task<PushReply> StartBatch(Batch batch, CallerAccess access, CancellationToken cancellationToken)
-    {
-        try
-        {
-            access.Require(Scope.Write, batch.Metric, "metric");
-        }
-        catch (RpcException ex) when (ex.StatusCode == StatusCode.PermissionDenied)
-        {
-            metrics.BatchRejected("PermissionDenied");
-            return Task.FromResult(ErrorReply(batch.Sequence, ex.StatusCode, ex.Status.Detail, "metric"));
-        }
-
-        return ReplyOrErrorAsync(batch, cancellationToken);
-    }
-
-    private async Task<PushReply> HeldUntilAnsweredAsync(Task<PushReply> reply, long bytes)
-    {
-        try
-        {
-            return await reply.ConfigureAwait(false);
-        }
-        finally
-        {
-            budget.Give(bytes);
-        }
+        ArgumentNullException.ThrowIfNull(request);
+        ArgumentNullException.ThrowIfNull(context);
+        CallerAccess.Of(context).Require(Scope.Write, request.Metric, "metric");
+        return WithinBudgetAsync(request.CalculateSize(), () => MergeAsync(request, context.CancellationToken));
     }
 
     // A unary push is refused at once when the server already holds its budget of unanswered batches.
@@ -153,49 +63,9 @@ public sealed class IngestService(StoreHost host, ServerMetrics metrics, IHostAp
         }
     }
 
-    private async Task<PushReply> ReplyOrErrorAsync(Batch batch, CancellationToken cancellationToken)
+    private async Task<PushReply> MergeAsync(SketchUpload request, CancellationToken cancellationToken)
     {
-        try
-        {
-            return await ApplyAsync(batch, cancellationToken).ConfigureAwait(false);
-        }
-        catch (StoreRejectedException ex)
-        {
-            return ErrorReply(batch.Sequence, RpcErrors.CodeOf(ex), ex.Message, ex.Field);
-        }
-    }
-
-    private async Task AnswerInOrderAsync(Channel<Task<PushReply>> unanswered, IServerStreamWriter<PushReply> responseStream, CancellationToken cancellationToken)
-    {
-        try
-        {
-            await foreach (Task<PushReply> pending in unanswered.Reader.ReadAllAsync(CancellationToken.None).ConfigureAwait(false))
-            {
-                PushReply reply = await pending.ConfigureAwait(false);
-                reply.StreamEnding = lifetime.ApplicationStopping.IsCancellationRequested;
-                await responseStream.WriteAsync(reply, cancellationToken).ConfigureAwait(false);
-            }
-        }
-        catch (Exception ex)
-        {
-            // The reader must not wait on a channel nobody drains any more.
-            unanswered.Writer.TryComplete(ex);
-            throw;
-        }
-    }
-
-    /// <inheritdoc/>
-    public override Task<PushReply> PushSketch(Contract.V1.SketchUpload request, ServerCallContext context)
-    {
-        ArgumentNullException.ThrowIfNull(request);
-        ArgumentNullException.ThrowIfNull(context);
-        CallerAccess.Of(context).Require(Scope.Write, request.Metric, "metric");
-        return WithinBudgetAsync(request.CalculateSize(), () => MergeAsync(request, context.CancellationToken));
-    }
-
-    private async Task<PushReply> MergeAsync(Contract.V1.SketchUpload request, CancellationToken cancellationToken)
-    {
-        Store.SketchUpload upload;
+        UploadedSketch upload;
         try
         {
             upload = IngestMapping.ToStore(request);
@@ -208,7 +78,7 @@ public sealed class IngestService(StoreHost host, ServerMetrics metrics, IHostAp
 
         try
         {
-            AppendResult result = await host.Store.MergeSketchAsync(upload, cancellationToken).ConfigureAwait(false);
+            AppendResult result = await store.MergeSketchAsync(upload, cancellationToken).ConfigureAwait(false);
             metrics.ValuesIngested(result.Accepted);
             return new PushReply { Sequence = request.Sequence, Accepted = (ulong)result.Accepted, Duplicate = result.Duplicate };
         }
@@ -224,7 +94,7 @@ public sealed class IngestService(StoreHost host, ServerMetrics metrics, IHostAp
         try
         {
             using var rented = new RentedBatch(batch);
-            AppendResult result = await host.Store.AppendAsync(rented.Batch, cancellationToken).ConfigureAwait(false);
+            AppendResult result = await store.AppendAsync(rented.Batch, cancellationToken).ConfigureAwait(false);
             metrics.ValuesIngested(result.Accepted);
             return new PushReply { Sequence = batch.Sequence, Accepted = (ulong)result.Accepted, Duplicate = result.Duplicate };
         }
@@ -239,7 +109,4 @@ public sealed class IngestService(StoreHost host, ServerMetrics metrics, IHostAp
             throw;
         }
     }
-
-    private static PushReply ErrorReply(ulong sequence, StatusCode code, string message, string field) =>
-        new() { Sequence = sequence, ErrorCode = code.ToString(), Error = message, ErrorField = field };
 }

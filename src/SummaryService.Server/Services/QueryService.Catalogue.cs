@@ -13,7 +13,7 @@ public sealed partial class QueryService
     /// The series of one metric, or of every metric the caller may read. A key limited to metric
     /// prefixes sees only the series inside them; naming a metric outside them is PermissionDenied.
     /// </summary>
-    public override Task<CatalogueReply> Catalogue(CatalogueRequest request, ServerCallContext context)
+    public override async Task<CatalogueReply> Catalogue(CatalogueRequest request, ServerCallContext context)
     {
         ArgumentNullException.ThrowIfNull(request);
         CallerAccess access = CallerAccess.Of(context);
@@ -24,13 +24,13 @@ public sealed partial class QueryService
         }
 
         var reply = new CatalogueReply();
-        foreach (SeriesInfo info in host.Store.ListSeries(metric).Where(s => access.Covers(s.Key.Metric)))
+        foreach (SeriesInfo info in (await store.ListSeriesAsync(metric, context.CancellationToken).ConfigureAwait(false)).Where(s => access.Covers(s.Key.Metric)))
         {
             var entry = new CatalogueEntry { Metric = info.Key.Metric, Count = (ulong)info.Count, Extent = SummaryMapping.ToProto(info.Extent), Buckets = (uint)info.Buckets };
             entry.Labels.Add(info.Key.Labels.ToDictionary(l => l.Key, l => l.Value, StringComparer.Ordinal));
             reply.Series.Add(entry);
         }
 
-        return Task.FromResult(reply);
+        return reply;
     }
 }

@@ -1,8 +1,7 @@
 using SummaryService.Contract.Readable;
 using SummaryService.Contract.V1;
-using SummaryService.Sketches.Summaries;
-using StoreSelector = SummaryService.Store.Selector;
-using StoreTimeRange = SummaryService.Store.TimeRange;
+using SummaryService.Store;
+using Domain = SummaryService.Sketches.Summaries;
 
 namespace SummaryService.Server.Validation;
 
@@ -13,18 +12,18 @@ namespace SummaryService.Server.Validation;
 public static class QueryRequests
 {
     /// <summary>The selector, which must name a metric.</summary>
-    public static StoreSelector SelectorOf(Contract.V1.Selector? selector, string field)
+    public static SeriesSelector SelectorOf(Selector? selector, string field)
     {
         if (selector is null || string.IsNullOrEmpty(selector.Metric))
         {
             throw RpcErrors.Invalid($"{field}.metric", $"{field}.metric is empty; name the metric to read.");
         }
 
-        return new StoreSelector(selector.Metric, new Dictionary<string, string>(selector.LabelEquals, StringComparer.Ordinal));
+        return new SeriesSelector(selector.Metric, new Dictionary<string, string>(selector.LabelEquals, StringComparer.Ordinal));
     }
 
     /// <summary>The window as a half-open range, measuring <c>last</c> back from <paramref name="nowMs"/>.</summary>
-    public static StoreTimeRange WindowOf(Window? window, string field, long nowMs)
+    public static TimeWindow WindowOf(Window? window, string field, long nowMs)
     {
         switch (window?.SpanCase)
         {
@@ -35,7 +34,7 @@ public static class QueryRequests
                     throw RpcErrors.Invalid($"{field}.range", $"{field}.range from_unix_ms {TimeText.IsoAndUnixMs(range.FromUnixMs)} is not before to_unix_ms {TimeText.IsoAndUnixMs(range.ToUnixMs)}; windows are half-open [from, to).");
                 }
 
-                return new StoreTimeRange(range.FromUnixMs, range.ToUnixMs);
+                return new TimeWindow(range.FromUnixMs, range.ToUnixMs);
             case Window.SpanOneofCase.Last:
                 TimeSpan last = DurationOf(window.Last, $"{field}.last");
                 if (last <= TimeSpan.Zero)
@@ -43,7 +42,7 @@ public static class QueryRequests
                     throw RpcErrors.Invalid($"{field}.last", $"{field}.last is {DurationText.Format(last)}; it must be positive.");
                 }
 
-                return new StoreTimeRange(nowMs - (long)last.TotalMilliseconds, nowMs);
+                return new TimeWindow(nowMs - (long)last.TotalMilliseconds, nowMs);
             default:
                 throw RpcErrors.Invalid(field, $"{field} is missing; give a range or a trailing duration (last).");
         }
@@ -69,7 +68,7 @@ public static class QueryRequests
     }
 
     /// <summary>Summary options with the request's quantiles, confidence, thresholds, modes and histogram.</summary>
-    public static SummaryOptions OptionsOf(IReadOnlyList<double> quantiles, double confidence, IReadOnlyList<double> rankOf, uint maxModes, Contract.V1.HistogramSpec? histogram, IReadOnlyList<double>? defaultQuantiles = null)
+    public static Domain.SummaryOptions OptionsOf(IReadOnlyList<double> quantiles, double confidence, IReadOnlyList<double> rankOf, uint maxModes, HistogramSpec? histogram, IReadOnlyList<double>? defaultQuantiles = null)
     {
         ArgumentNullException.ThrowIfNull(quantiles);
         ArgumentNullException.ThrowIfNull(rankOf);
@@ -83,7 +82,7 @@ public static class QueryRequests
 
         if (confidence != 0 && !(confidence > 0 && confidence < 1))
         {
-            throw RpcErrors.Invalid("confidence", $"confidence is {confidence}; it must lie strictly between 0 and 1 (0 means {SummaryOptions.DefaultConfidence}).");
+            throw RpcErrors.Invalid("confidence", $"confidence is {confidence}; it must lie strictly between 0 and 1 (0 means {Domain.SummaryOptions.DefaultConfidence}).");
         }
 
         for (int i = 0; i < rankOf.Count; i++)
@@ -94,22 +93,22 @@ public static class QueryRequests
             }
         }
 
-        if (maxModes > 1000)
+        if (maxModes > QueryDefaults.MaxModes)
         {
-            throw RpcErrors.Invalid("max_modes", $"max_modes is {maxModes}; at most 1000 modes are listed.");
+            throw RpcErrors.Invalid("max_modes", $"max_modes is {maxModes}; at most {QueryDefaults.MaxModes} modes are listed.");
         }
 
-        return new SummaryOptions
+        return new Domain.SummaryOptions
         {
-            Quantiles = quantiles.Count == 0 ? defaultQuantiles ?? SummaryOptions.DefaultQuantiles : quantiles.ToArray(),
-            Confidence = confidence == 0 ? SummaryOptions.DefaultConfidence : confidence,
+            Quantiles = quantiles.Count == 0 ? defaultQuantiles ?? Domain.SummaryOptions.DefaultQuantiles : quantiles.ToArray(),
+            Confidence = confidence == 0 ? Domain.SummaryOptions.DefaultConfidence : confidence,
             RankOf = rankOf.ToArray(),
-            MaxModes = maxModes == 0 ? SummaryOptions.DefaultMaxModes : (int)maxModes,
+            MaxModes = maxModes == 0 ? Domain.SummaryOptions.DefaultMaxModes : (int)maxModes,
             Histogram = histogram is null ? null : HistogramOf(histogram),
         };
     }
 
-    private static Sketches.Summaries.HistogramSpec HistogramOf(Contract.V1.HistogramSpec spec)
+    private static Domain.HistogramSpec HistogramOf(HistogramSpec spec)
     {
         for (int i = 0; i < spec.Edges.Count; i++)
         {
@@ -124,9 +123,9 @@ public static class QueryRequests
             throw RpcErrors.Invalid("histogram.edges", "histogram.edges has one edge; give at least two, or none for equal-width bins.");
         }
 
-        if (spec.BinCount > 10_000)
+        if (spec.BinCount > QueryDefaults.MaxHistogramBins)
         {
-            throw RpcErrors.Invalid("histogram.bin_count", $"histogram.bin_count is {spec.BinCount}; at most 10000 bins.");
+            throw RpcErrors.Invalid("histogram.bin_count", $"histogram.bin_count is {spec.BinCount}; at most {QueryDefaults.MaxHistogramBins} bins.");
         }
 
         if (spec.LogBuckets && spec.Edges.Count > 0)
@@ -134,9 +133,9 @@ public static class QueryRequests
             throw RpcErrors.Invalid("histogram.log_buckets", $"histogram.log_buckets is set with {spec.Edges.Count} edges; bins that follow the log buckets take no edges.");
         }
 
-        int bins = spec.BinCount == 0 ? Sketches.Summaries.HistogramSpec.DefaultBinCount : (int)spec.BinCount;
-        return spec.Edges.Count > 0 ? Sketches.Summaries.HistogramSpec.WithEdges(spec.Edges.ToArray())
-            : spec.LogBuckets ? Sketches.Summaries.HistogramSpec.LogScaled(bins)
-            : Sketches.Summaries.HistogramSpec.Automatic(bins);
+        int bins = spec.BinCount == 0 ? Domain.HistogramSpec.DefaultBinCount : (int)spec.BinCount;
+        return spec.Edges.Count > 0 ? Domain.HistogramSpec.WithEdges(spec.Edges.ToArray())
+            : spec.LogBuckets ? Domain.HistogramSpec.LogScaled(bins)
+            : Domain.HistogramSpec.Automatic(bins);
     }
 }

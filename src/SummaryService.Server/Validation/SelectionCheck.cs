@@ -16,7 +16,7 @@ namespace SummaryService.Server.Validation;
 public static class SelectionCheck
 {
     /// <summary>Throws unless the answer merged a series and every group-by label is carried by one of them (label values are never empty).</summary>
-    public static void Require(WindowSummary answer, Selector selector, IReadOnlyList<string> groupBy, string field)
+    public static void Require(WindowSketches answer, SeriesSelector selector, IReadOnlyList<string> groupBy, string field)
     {
         ArgumentNullException.ThrowIfNull(answer);
         ArgumentNullException.ThrowIfNull(selector);
@@ -31,7 +31,7 @@ public static class SelectionCheck
             string name = groupBy[i];
             bool carried = false;
             int matched = 0;
-            foreach (GroupSummary group in answer.Groups)
+            foreach (GroupSketch group in answer.Groups)
             {
                 carried |= group.Labels.TryGetValue(name, out string? value) && value.Length > 0;
                 matched += group.SeriesMerged;

@@ -1,3 +1,6 @@
+using Microsoft.Extensions.Logging;
+using SummaryService.Sketches.Serialization;
+
 namespace SummaryService.Store.Persistence;
 
 /// <summary>What start-up recovered from disk and what it had to drop.</summary>
@@ -38,6 +41,19 @@ public sealed class RecoveryReport
 
     /// <summary>Everything worth a warning, one line each.</summary>
     public List<string> Warnings { get; } = [];
+
+    /// <summary>True for what a log record whose frame checks out can still hold: content that cannot be decoded or applied.</summary>
+    public static bool IsUnusableContent(Exception exception) =>
+        exception is SketchFormatException or ArgumentException or InvalidOperationException or IndexOutOfRangeException or OverflowException;
+
+    /// <summary>Counts and tells one log record skipped for its content.</summary>
+    public void SkipRecord(ulong lsn, string metric, string reason, ILogger logger)
+    {
+        ArgumentNullException.ThrowIfNull(logger);
+        LogRecordsUnusable++;
+        Warnings.Add($"log record {lsn} of {metric} skipped: {reason}");
+        logger.LogWarning("Write-ahead log record {Lsn} skipped: {Reason}", lsn, reason);
+    }
 
     /// <inheritdoc/>
     public override string ToString() =>

@@ -182,7 +182,7 @@ public static class StoreBench
     {
         var (store, range) = FilledStore(window);
         var options = new SummaryOptions();
-        return Timed(quick ? 10 : 60, () => store.Summarize(new Selector("bench.q"), range, [], options));
+        return Timed(quick ? 10 : 60, () => store.SummarizeAsync(new SeriesSelector("bench.q"), range, [], options).AsTask().GetAwaiter().GetResult());
     }
 
     // The load generator's Series query: 6 h at 1 min steps, its window not aligned to the buckets,
@@ -192,10 +192,10 @@ public static class StoreBench
         var window = TimeSpan.FromHours(6);
         var options = new SummaryOptions();
         int runs = quick ? 5 : 20;
-        (double, double, double) Measure(Action<ShardedSeriesStore, TimeRange> query)
+        (double, double, double) Measure(Action<ShardedSeriesStore, TimeWindow> query)
         {
             var (store, range) = FilledStore(window);
-            range = new TimeRange(range.FromUnixMs - 4_321, range.ToUnixMs - 4_321);
+            range = new TimeWindow(range.FromUnixMs - 4_321, range.ToUnixMs - 4_321);
             return Timed(runs, () => query(store, range));
         }
 
@@ -203,16 +203,16 @@ public static class StoreBench
         {
             for (long from = range.FromUnixMs; from < range.ToUnixMs; from += 60_000)
             {
-                store.Summarize(new Selector("bench.q"), new TimeRange(from, Math.Min(from + 60_000, range.ToUnixMs)), [], options);
+                store.SummarizeAsync(new SeriesSelector("bench.q"), new TimeWindow(from, Math.Min(from + 60_000, range.ToUnixMs)), [], options).AsTask().GetAwaiter().GetResult();
             }
         });
-        var oneCall = Measure((store, range) => store.SummarizeSteps(new Selector("bench.q"), range, 60_000, [], options));
+        var oneCall = Measure((store, range) => store.SummarizeStepsAsync(new SeriesSelector("bench.q"), range, 60_000, [], options).AsTask().GetAwaiter().GetResult());
         return (perStep, oneCall);
     }
 
     // One series with a bucket at every 10 s for the last 6 h and every minute before that, each of
     // two thousand values: past k = 200, so every bucket is a full, compacted sketch.
-    private static (ShardedSeriesStore Store, TimeRange Range) FilledStore(TimeSpan window)
+    private static (ShardedSeriesStore Store, TimeWindow Range) FilledStore(TimeSpan window)
     {
         var clock = new FakeTimeProvider(DateTimeOffset.FromUnixTimeMilliseconds(1_800_000_000_000));
         var store = new ShardedSeriesStore(new StoreOptions(), clock);
@@ -224,7 +224,7 @@ public static class StoreBench
             store.AppendAsync(new SeriesBatch { Metric = "bench.q", Values = batches[1], TimeUnixMs = t }).AsTask().Wait();
         }
 
-        return (store, new TimeRange(now - (long)window.TotalMilliseconds, now));
+        return (store, new TimeWindow(now - (long)window.TotalMilliseconds, now));
     }
 
     private static (double FirstMs, double MedianMs, double P99Ms) Timed(int runs, Action query)

@@ -7,7 +7,7 @@ namespace SummaryService.Store;
 /// bucket holding <see cref="TimeUnixMs"/>, so pre-aggregation upstream costs no accuracy beyond
 /// the sketch's own bound.
 /// </summary>
-public sealed record SketchUpload
+public sealed record UploadedSketch
 {
     /// <summary>Metric name.</summary>
     public required string Metric { get; init; }

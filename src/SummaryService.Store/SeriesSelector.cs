@@ -3,10 +3,10 @@ using SummaryService.Contract.Readable;
 namespace SummaryService.Store;
 
 /// <summary>Which series a query reads: one metric, and labels every selected series must carry with these exact values.</summary>
-public sealed record Selector(string Metric, IReadOnlyDictionary<string, string> LabelEquals)
+public sealed record SeriesSelector(string Metric, IReadOnlyDictionary<string, string> LabelEquals)
 {
     /// <summary>Every series of a metric.</summary>
-    public Selector(string metric)
+    public SeriesSelector(string metric)
         : this(metric, new Dictionary<string, string>())
     {
     }
