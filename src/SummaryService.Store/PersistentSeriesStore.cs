@@ -1,10 +1,10 @@
 using System.Diagnostics;
 using Microsoft.Extensions.Logging;
-using SummaryService.Contract.Readable;
+using SummaryService.Readable;
 using SummaryService.Sketches.Serialization;
 using SummaryService.Sketches.Summaries;
 using SummaryService.Store.Persistence;
-using SummaryService.Store.Persistence.Formats;
+using SummaryService.Formats.Store;
 
 namespace SummaryService.Store;
 

@@ -1,9 +1,9 @@
 using Google.Protobuf;
-using SummaryService.Contract.V1;
+using SummaryService.Formats.V1;
 using SummaryService.Sketches;
 using SummaryService.Sketches.Serialization;
 using SummaryService.Store.Persistence;
-using SummaryService.Store.Persistence.Formats;
+using SummaryService.Formats.Store;
 
 namespace SummaryService.Store;
 

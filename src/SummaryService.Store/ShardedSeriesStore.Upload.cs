@@ -1,7 +1,7 @@
 using SummaryService.Sketches;
 using SummaryService.Sketches.Serialization;
 using SummaryService.Store.Persistence;
-using SummaryService.Store.Persistence.Formats;
+using SummaryService.Formats.Store;
 
 namespace SummaryService.Store;
 

@@ -1,4 +1,4 @@
-using SummaryService.Contract.Readable;
+using SummaryService.Readable;
 using SummaryService.Contract.V1;
 using SummaryService.Sketches.Summaries;
 using StoreSelector = SummaryService.Store.Selector;
