@@ -21,27 +21,13 @@ public class CellHashingTests
 
     [Theory]
     [MemberData(nameof(Shapes))]
-    public void Batched_scalar_cells_are_the_reference_cells(int width, int depth)
-    {
-        foreach (long[] keys in Batches(width + depth))
-        {
-            var cells = new int[keys.Length * depth];
-            new CountMinTable(width, depth).FillCells(keys, cells, vectorized: false);
-            Assert.Equal(ReferenceCells(keys, width, depth), cells);
-        }
-    }
+    public void Batched_scalar_cells_are_the_reference_cells(int width, int depth) =>
+        AssertBatchPathGivesReferenceCells(width, depth, vectorized: false);
 
     [Avx2Theory]
     [MemberData(nameof(Shapes))]
-    public void Vector_cells_are_the_reference_cells(int width, int depth)
-    {
-        foreach (long[] keys in Batches(width + depth))
-        {
-            var cells = new int[keys.Length * depth];
-            new CountMinTable(width, depth).FillCells(keys, cells, vectorized: true);
-            Assert.Equal(ReferenceCells(keys, width, depth), cells);
-        }
-    }
+    public void Vector_cells_are_the_reference_cells(int width, int depth) =>
+        AssertBatchPathGivesReferenceCells(width, depth, vectorized: true);
 
     [Theory]
     [MemberData(nameof(Shapes))]
@@ -78,6 +64,16 @@ public class CellHashingTests
         var cells = new int[4];
         CountMinHashing.Cells(hash, Width, cells);
         Assert.Equal(expected, cells);
+    }
+
+    private static void AssertBatchPathGivesReferenceCells(int width, int depth, bool vectorized)
+    {
+        foreach (long[] keys in Batches(width + depth))
+        {
+            var cells = new int[keys.Length * depth];
+            new CountMinTable(width, depth).FillCells(keys, cells, vectorized);
+            Assert.Equal(ReferenceCells(keys, width, depth), cells);
+        }
     }
 
     /// <summary>The cells row by row, key by key, from the plain reference form.</summary>
