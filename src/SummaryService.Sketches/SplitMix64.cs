@@ -7,11 +7,20 @@ namespace SummaryService.Sketches;
 /// </summary>
 internal struct SplitMix64(ulong state)
 {
+    /// <summary>The increment of the state per output, γ = 2^64 / φ rounded to odd.</summary>
+    public const ulong Gamma = 0x9E3779B97F4A7C15UL;
+
+    /// <summary>The first multiplier of <see cref="Mix"/>.</summary>
+    public const ulong FirstMultiplier = 0xBF58476D1CE4E5B9UL;
+
+    /// <summary>The second multiplier of <see cref="Mix"/>.</summary>
+    public const ulong SecondMultiplier = 0x94D049BB133111EBUL;
+
     public ulong State { readonly get; private set; } = state;
 
     public ulong Next()
     {
-        State += 0x9E3779B97F4A7C15UL;
+        State += Gamma;
         return Mix(State);
     }
 
@@ -21,8 +30,8 @@ internal struct SplitMix64(ulong state)
     /// <summary>The SplitMix64 finalizer: a strong 64-bit mixing function, also used as a hash.</summary>
     public static ulong Mix(ulong z)
     {
-        z = (z ^ (z >> 30)) * 0xBF58476D1CE4E5B9UL;
-        z = (z ^ (z >> 27)) * 0x94D049BB133111EBUL;
+        z = (z ^ (z >> 30)) * FirstMultiplier;
+        z = (z ^ (z >> 27)) * SecondMultiplier;
         return z ^ (z >> 31);
     }
 }

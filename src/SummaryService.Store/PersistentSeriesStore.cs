@@ -1,6 +1,6 @@
 using System.Diagnostics;
 using Microsoft.Extensions.Logging;
-using SummaryService.Contract.Readable;
+using SummaryService.Readable;
 using SummaryService.Sketches.Serialization;
 using SummaryService.Store.Persistence;
 

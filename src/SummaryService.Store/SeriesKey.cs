@@ -1,6 +1,6 @@
 using System.IO.Hashing;
 using System.Text;
-using SummaryService.Contract.Readable;
+using SummaryService.Readable;
 
 namespace SummaryService.Store;
 

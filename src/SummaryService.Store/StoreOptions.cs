@@ -1,4 +1,4 @@
-using SummaryService.Contract.Readable;
+using SummaryService.Readable;
 using SummaryService.Sketches;
 
 namespace SummaryService.Store;

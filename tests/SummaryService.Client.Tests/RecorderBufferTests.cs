@@ -47,7 +47,8 @@ public sealed class RecorderBufferTests
         }
 
         Task blocked = Task.Factory.StartNew(() => recorder.Record("tallowbrook.queue.depth", Capacity), CancellationToken.None, TaskCreationOptions.LongRunning, TaskScheduler.Default);
-        await Task.Delay(TimeSpan.FromMilliseconds(500));
+        // Once the call waits for room it cannot finish: nothing can free room while the server is down.
+        await Condition.WaitUntilAsync(() => recorder.CallersWaitingForRoom == 1, TimeSpan.FromSeconds(20));
         Assert.False(blocked.IsCompleted);
 
         await using LiveServer server = await LiveServer.StartAsync(port: port);

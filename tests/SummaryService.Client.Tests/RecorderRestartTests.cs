@@ -34,7 +34,7 @@ public sealed class RecorderRestartTests
             }
 
             // Let the recorder seal batches and fail to deliver them at least once.
-            await WaitUntilAsync(() => recorder.Statistics.Reconnects >= 2, TimeSpan.FromSeconds(20));
+            await Condition.WaitUntilAsync(() => recorder.Statistics.Reconnects >= 2, TimeSpan.FromSeconds(20));
             Assert.Equal(during.Length, recorder.Statistics.ValuesHeld);
 
             await server.RestartAsync();
@@ -129,7 +129,7 @@ public sealed class RecorderRestartTests
             }
 
             // The server applies the batches (asked directly, not through the proxy) while the recorder hears nothing.
-            await WaitUntilAsync(async () => (await server.Client.SummaryOfAsync("tallowbrook.cart.size")).Count == 2000, TimeSpan.FromSeconds(20));
+            await Condition.WaitUntilAsync(async () => (await server.Client.SummaryOfAsync("tallowbrook.cart.size")).Count == 2000, TimeSpan.FromSeconds(20));
             Assert.Equal(unheard.Length, recorder.Statistics.ValuesHeld);
 
             proxy.CutAndHeal();
@@ -144,23 +144,5 @@ public sealed class RecorderRestartTests
         Summary summary = await server.Client.SummaryOfAsync("tallowbrook.cart.size");
         Assert.Equal(2000ul, summary.Count);
         Assert.Equal(all.Sum(), summary.Sum); // plain arithmetic; eighths add exactly
-    }
-
-    private static async Task WaitUntilAsync(Func<Task<bool>> condition, TimeSpan limit)
-    {
-        using var timeout = new CancellationTokenSource(limit);
-        while (!await condition())
-        {
-            await Task.Delay(20, timeout.Token);
-        }
-    }
-
-    private static async Task WaitUntilAsync(Func<bool> condition, TimeSpan limit)
-    {
-        using var timeout = new CancellationTokenSource(limit);
-        while (!condition())
-        {
-            await Task.Delay(20, timeout.Token);
-        }
     }
 }

@@ -3,7 +3,7 @@ using Microsoft.Extensions.Logging.Abstractions;
 using Microsoft.Extensions.Time.Testing;
 using SummaryService.Sketches.Serialization;
 using SummaryService.Store.Persistence;
-using SummaryService.Store.Persistence.Formats;
+using SummaryService.Formats.Store;
 using SummaryService.TestSupport;
 
 namespace SummaryService.Store.Tests;

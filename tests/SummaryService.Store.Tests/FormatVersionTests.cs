@@ -2,7 +2,7 @@ using Google.Protobuf;
 using Microsoft.Extensions.Logging.Abstractions;
 using Microsoft.Extensions.Time.Testing;
 using SummaryService.Store.Persistence;
-using SummaryService.Store.Persistence.Formats;
+using SummaryService.Formats.Store;
 using SummaryService.TestSupport;
 
 namespace SummaryService.Store.Tests;

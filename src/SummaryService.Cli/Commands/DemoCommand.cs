@@ -2,7 +2,7 @@ using System.CommandLine;
 using Spectre.Console;
 using SummaryService.Cli.Demo;
 using SummaryService.Cli.Parsing;
-using SummaryService.Contract.Readable;
+using SummaryService.Readable;
 
 namespace SummaryService.Cli.Commands;
 

@@ -6,7 +6,7 @@ using Spectre.Console.Rendering;
 using SummaryService.Cli.Parsing;
 using SummaryService.Cli.Connection;
 using SummaryService.Cli.Rendering;
-using SummaryService.Contract.Readable;
+using SummaryService.Readable;
 using SummaryService.Contract.V1;
 
 namespace SummaryService.Cli.Commands;

@@ -2,7 +2,7 @@ using System.CommandLine;
 using Spectre.Console;
 using SummaryService.Cli.Connection;
 using SummaryService.Cli.Rendering;
-using SummaryService.Contract.Readable;
+using SummaryService.Readable;
 using SummaryService.Contract.V1;
 
 namespace SummaryService.Cli.Commands;

@@ -4,7 +4,7 @@ using Spectre.Console;
 using SummaryService.Cli.Connection;
 using SummaryService.Cli.Parsing;
 using SummaryService.Cli.Rendering;
-using SummaryService.Contract.Readable;
+using SummaryService.Readable;
 using SummaryService.Contract.V1;
 
 namespace SummaryService.Cli.Commands;

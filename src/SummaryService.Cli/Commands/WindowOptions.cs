@@ -1,6 +1,6 @@
 using System.CommandLine;
 using SummaryService.Cli.Parsing;
-using SummaryService.Contract.Readable;
+using SummaryService.Readable;
 using SummaryService.Contract.V1;
 
 namespace SummaryService.Cli.Commands;

@@ -1,7 +1,7 @@
 using System.Net.Sockets;
 using Grpc.Core;
 using SummaryService.Cli.Commands;
-using SummaryService.Contract.Readable;
+using SummaryService.Readable;
 
 namespace SummaryService.Cli.Connection;
 

@@ -1,5 +1,5 @@
 using System.Globalization;
-using SummaryService.Contract.Readable;
+using SummaryService.Readable;
 
 namespace SummaryService.Cli.Parsing;
 

@@ -79,6 +79,9 @@ public sealed partial class MeasurementRecorder : IAsyncDisposable
         _ledger.BatchesRejected,
         _ledger.Reconnects);
 
+    /// <summary>Recording calls blocked right now waiting for room in a full buffer (<see cref="FullBufferPolicy.Block"/>); a signal for tests.</summary>
+    internal int CallersWaitingForRoom => _budget.Waiters;
+
     /// <summary>Records one value of the series <paramref name="metric"/> with <paramref name="labels"/> (in any order).</summary>
     /// <exception cref="ArgumentOutOfRangeException">The value is NaN or infinite.</exception>
     /// <exception cref="ArgumentException">A label name is empty or given twice (checked when a series is first seen).</exception>

@@ -1,4 +1,4 @@
-using SummaryService.Contract.Readable;
+using SummaryService.Readable;
 
 namespace SummaryService.Client.Recording;
 

@@ -1,5 +1,5 @@
 using Microsoft.Extensions.Logging;
-using SummaryService.Contract.Readable;
+using SummaryService.Readable;
 
 namespace SummaryService.Client.Recording;
 

@@ -20,6 +20,9 @@ internal sealed class ValueBudget(long capacity, TimeProvider time)
 
     public long Held => Volatile.Read(ref _held);
 
+    /// <summary>Callers inside <see cref="WaitAndTake"/>: they found the budget spent and wait for room.</summary>
+    public int Waiters => Volatile.Read(ref _waiters);
+
     /// <summary>Takes one unit if there is room.</summary>
     public bool TryTake()
     {

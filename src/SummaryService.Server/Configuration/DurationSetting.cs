@@ -1,6 +1,6 @@
 using System.ComponentModel;
 using System.Globalization;
-using SummaryService.Contract.Readable;
+using SummaryService.Readable;
 
 namespace SummaryService.Server.Configuration;
 

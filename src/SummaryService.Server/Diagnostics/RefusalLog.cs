@@ -1,7 +1,7 @@
 using System.Globalization;
 using System.Text;
 using Microsoft.Extensions.Options;
-using SummaryService.Contract.Readable;
+using SummaryService.Readable;
 using SummaryService.Server.Configuration;
 using SummaryService.Server.Validation;
 

@@ -1,4 +1,4 @@
-using SummaryService.Contract.Readable;
+using SummaryService.Readable;
 using SummaryService.Store;
 
 namespace SummaryService.Server.Hosting;

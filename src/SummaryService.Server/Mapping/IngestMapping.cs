@@ -1,4 +1,5 @@
 using SummaryService.Contract.V1;
+using SummaryService.Formats.V1;
 using SummaryService.Sketches.Serialization;
 using SummaryService.Server.Validation;
 using SummaryService.Store;

@@ -1,5 +1,6 @@
 using Grpc.Core;
 using Microsoft.Extensions.Options;
+using SummaryService.Readable;
 using SummaryService.Contract.V1;
 using SummaryService.Server.Auth;
 using SummaryService.Server.Configuration;

@@ -1,5 +1,5 @@
 using Grpc.Core;
-using SummaryService.Contract.Readable;
+using SummaryService.Readable;
 
 namespace SummaryService.Server.Services;
 

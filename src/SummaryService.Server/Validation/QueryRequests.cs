@@ -1,4 +1,4 @@
-using SummaryService.Contract.Readable;
+using SummaryService.Readable;
 using SummaryService.Contract.V1;
 using SummaryService.Store;
 using Domain = SummaryService.Sketches.Summaries;

@@ -1,5 +1,5 @@
 using Google.Protobuf.WellKnownTypes;
-using SummaryService.Contract.Readable;
+using SummaryService.Readable;
 using SummaryService.Contract.V1;
 using SummaryService.Server.Configuration;
 using SummaryService.Sketches.Summaries;

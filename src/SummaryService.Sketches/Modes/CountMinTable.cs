@@ -1,3 +1,5 @@
+using System.Runtime.CompilerServices;
+
 namespace SummaryService.Sketches.Modes;
 
 /// <summary>
@@ -8,10 +10,8 @@ namespace SummaryService.Sketches.Modes;
 /// </summary>
 /// <remarks>
 /// With width w = ⌈e/ε⌉ and depth d = ⌈ln(1/δ)⌉ an estimate exceeds the true count by more than
-/// εN with probability at most δ. The guarantee needs the rows to hash independently, so each row
-/// takes its own 32 bits of mixed hash output (two rows per 64-bit word), mapped onto the width by
-/// multiply-shift. Double hashing h1 + i·h2 is not used: with multiply-shift it only looks at the
-/// top bits of h1 and h2, so two keys that collide in two rows would collide in all of them.
+/// εN with probability at most δ. Which counters a key owns is <see cref="CountMinHashing"/>'s one
+/// definition; how they are raised is <see cref="Raise"/>'s, for one key and for a batch alike.
 /// </remarks>
 internal sealed class CountMinTable
 {
@@ -45,107 +45,60 @@ internal sealed class CountMinTable
     public long Add(long key, long count)
     {
         Span<int> cells = stackalloc int[Depth];
-        FillCells(ModeKey.Hash(key), cells);
-        long[] counters = _counters;
-        long estimate = counters[cells[0]];
-        foreach (int cell in cells)
-        {
-            estimate = MinOf(estimate, counters[cell]);
-        }
-
-        long raised = estimate + count;
-        foreach (int cell in cells)
-        {
-            counters[cell] = MaxOf(counters[cell], raised);
-        }
-
-        return raised;
+        CountMinHashing.Cells(ModeKey.Hash(key), Width, cells);
+        return Raise(_counters, cells, 0, 1, count);
     }
 
     public long Estimate(long key)
     {
         Span<int> cells = stackalloc int[Depth];
-        FillCells(ModeKey.Hash(key), cells);
-        long estimate = _counters[cells[0]];
-        foreach (int cell in cells)
-        {
-            estimate = MinOf(estimate, _counters[cell]);
-        }
-
-        return estimate;
+        CountMinHashing.Cells(ModeKey.Hash(key), Width, cells);
+        return Lowest(_counters, cells, 0, 1);
     }
 
     /// <summary>
-    /// Hashes a batch of keys up front, row by row: <paramref name="cells"/>[row · n + i] is key i's
-    /// cell in that row, exactly as <see cref="Add"/> picks it. The mixes are independent per key, so
-    /// done this way they pipeline instead of sitting on the chain of table updates.
+    /// The cells of a batch of keys, row by row: <paramref name="cells"/>[row · n + i] is key i's cell
+    /// in that row, exactly as <see cref="CountMinHashing.Cells"/> gives it. Hashed up front, the
+    /// mixes are independent per key, so they pipeline (eight keys at a time in vector registers
+    /// where the processor has AVX2) instead of sitting on the chain of table updates.
     /// </summary>
     /// <param name="keys">The batch's keys, n of them.</param>
-    /// <param name="hashes">Scratch of at least n entries.</param>
     /// <param name="cells">Receives n · <see cref="Depth"/> cell indices.</param>
-    public void FillCells(ReadOnlySpan<long> keys, Span<ulong> hashes, Span<int> cells) => FillCells(keys, hashes, cells, vectorized: true);
+    public void FillCells(ReadOnlySpan<long> keys, Span<int> cells) => FillCells(keys, cells, vectorized: true);
 
-    /// <summary>As <see cref="FillCells(ReadOnlySpan{long}, Span{ulong}, Span{int})"/>, choosing the path, so tests can show both give the same cells.</summary>
-    internal void FillCells(ReadOnlySpan<long> keys, Span<ulong> hashes, Span<int> cells, bool vectorized)
+    /// <summary>As <see cref="FillCells(ReadOnlySpan{long}, Span{int})"/>, choosing the path, so tests can hold each to the reference.</summary>
+    internal void FillCells(ReadOnlySpan<long> keys, Span<int> cells, bool vectorized)
     {
         int n = keys.Length;
         int done = vectorized ? VectorCells.Fill(keys, cells, Width, Depth) : 0;
+        Span<int> one = stackalloc int[Depth];
         for (int i = done; i < n; i++)
         {
-            hashes[i] = ModeKey.Hash(keys[i]);
-        }
-
-        ulong width = (ulong)Width;
-        for (int row = 0; row < Depth; row += 2)
-        {
-            Span<int> low = cells.Slice(row * n, n);
-            int lowBase = row * Width;
-            ulong step = (ulong)(row >> 1) * 0x9E3779B97F4A7C15UL;
-            bool pair = row + 1 < Depth;
-            Span<int> high = pair ? cells.Slice((row + 1) * n, n) : default;
-            int highBase = lowBase + Width;
-            for (int i = done; i < n; i++)
+            CountMinHashing.Cells(ModeKey.Hash(keys[i]), Width, one);
+            for (int row = 0; row < one.Length; row++)
             {
-                ulong word = row == 0 ? hashes[i] : SplitMix64.Mix(hashes[i] + step);
-                low[i] = lowBase + (int)(((word & 0xFFFF_FFFFUL) * width) >> 32);
-                if (pair)
-                {
-                    high[i] = highBase + (int)(((word >> 32) * width) >> 32);
-                }
+                cells[(row * n) + i] = one[row];
             }
         }
     }
 
     /// <summary>
-    /// Adds one occurrence of each key of a batch whose cells <see cref="FillCells(ReadOnlySpan{long}, Span{ulong}, Span{int})"/>
+    /// Adds one occurrence of each key of a batch whose cells <see cref="FillCells(ReadOnlySpan{long}, Span{int})"/>
     /// gave, from key <paramref name="from"/> on, exactly as <see cref="Add"/> would one by one, and
     /// stops after the first key whose new estimate exceeds <paramref name="threshold"/>.
     /// </summary>
     /// <returns>That key's index, with its estimate; or n when no key got past the threshold.</returns>
     /// <remarks>
-    /// A leaf with no calls, so its loop keeps every index in a register; with the candidate check
-    /// in the same loop, the call it sometimes makes forced the loop's state onto the stack, and
-    /// every counter write reloaded it (about 187 instructions a key against about 156 here).
+    /// A leaf with no calls (<see cref="Raise"/> is inlined), so its loop keeps every index in a
+    /// register; with the candidate check in the same loop, the call it sometimes makes forced the
+    /// loop's state onto the stack, and every counter write reloaded it.
     /// </remarks>
     public int AddUntilAbove(ReadOnlySpan<int> cells, int from, int n, long threshold, out long estimate)
     {
         long[] counters = _counters;
-        int length = cells.Length;
         for (int i = from; i < n; i++)
         {
-            long lowest = counters[cells[i]];
-            for (int at = i + n; at < length; at += n)
-            {
-                lowest = MinOf(lowest, counters[cells[at]]);
-            }
-
-            long raised = lowest + 1;
-            for (int at = i; at < length; at += n)
-            {
-                int cell = cells[at];
-                counters[cell] = MaxOf(counters[cell], raised);
-            }
-
+            long raised = Raise(counters, cells, i, n, 1);
             if (raised > threshold)
             {
                 estimate = raised;
@@ -167,6 +120,39 @@ internal sealed class CountMinTable
         }
     }
 
+    /// <summary>
+    /// The update rule, conservative update: a key's estimate is its lowest counter; adding
+    /// <paramref name="count"/> raises each of its counters to at most that estimate plus the count
+    /// (never lowering one), which keeps every estimate an over-count while shrinking the over-count.
+    /// The key's counters are <paramref name="cells"/>[first], [first + stride], … to the span's end.
+    /// </summary>
+    /// <returns>The key's new estimate.</returns>
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    private static long Raise(long[] counters, ReadOnlySpan<int> cells, int first, int stride, long count)
+    {
+        long raised = Lowest(counters, cells, first, stride) + count;
+        for (int at = first; at < cells.Length; at += stride)
+        {
+            int cell = cells[at];
+            counters[cell] = MaxOf(counters[cell], raised);
+        }
+
+        return raised;
+    }
+
+    /// <summary>A key's estimate: the lowest of its counters, laid out as for <see cref="Raise"/>.</summary>
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    private static long Lowest(long[] counters, ReadOnlySpan<int> cells, int first, int stride)
+    {
+        long lowest = counters[cells[first]];
+        for (int at = first + stride; at < cells.Length; at += stride)
+        {
+            lowest = MinOf(lowest, counters[cells[at]]);
+        }
+
+        return lowest;
+    }
+
     // Min and max by arithmetic: which cell is lowest is a coin toss on every update, and the JIT
     // turns Math.Min/Max on longs into branches that mispredict about half the time. Exact for
     // counters, which are never negative, so a − b cannot overflow.
@@ -183,20 +169,4 @@ internal sealed class CountMinTable
     }
 
     public CountMinTable Clone() => new(Width, Depth, (long[])_counters.Clone());
-
-    // Row r takes 32 bits of word r/2: the hash itself, then SplitMix64 steps from it, each mixed once.
-    private void FillCells(ulong hash, Span<int> cells)
-    {
-        ulong word = hash;
-        for (int row = 0; row < cells.Length; row++)
-        {
-            if (row > 1 && (row & 1) == 0)
-            {
-                word = SplitMix64.Mix(hash + ((ulong)(row >> 1) * 0x9E3779B97F4A7C15UL));
-            }
-
-            uint bits = (row & 1) == 0 ? (uint)word : (uint)(word >> 32);
-            cells[row] = (row * Width) + (int)(((ulong)bits * (ulong)Width) >> 32);
-        }
-    }
 }

@@ -50,5 +50,11 @@ internal static class ModeKey
 
     public static double ValueOf(long key) => BitConverter.Int64BitsToDouble(key);
 
-    public static ulong Hash(long key) => SplitMix64.Mix((ulong)key ^ 0x243F6A8885A308D3UL);
+    /// <summary>Mixed into a key before it is hashed: the first hexadecimal digits of π's fraction, a
+    /// constant chosen for having no structure of its own (common practice).</summary>
+    public const ulong HashSalt = 0x243F6A8885A308D3UL;
+
+    /// <summary>The key's 64-bit hash: where it goes in the exact counter's table and, through
+    /// <see cref="CountMinHashing"/>, in the count-min rows.</summary>
+    public static ulong Hash(long key) => SplitMix64.Mix((ulong)key ^ HashSalt);
 }

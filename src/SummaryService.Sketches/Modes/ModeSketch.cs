@@ -152,7 +152,6 @@ public sealed class ModeSketch
         double resolution = Resolution;
         CountMinTable table = _table!;
         Span<long> keys = stackalloc long[Chunk];
-        Span<ulong> hashes = stackalloc ulong[Chunk];
         Span<int> cells = stackalloc int[Chunk * depth];
         for (int start = 0; start < values.Length; start += Chunk)
         {
@@ -161,7 +160,7 @@ public sealed class ModeSketch
             ModeKey.Of(chunk, resolution, keys[..n]);
 
             ReadOnlySpan<int> chunkCells = cells[..(n * depth)];
-            table.FillCells(keys[..n], hashes, cells);
+            table.FillCells(keys[..n], cells);
             int stopped = -1;
             while ((stopped = table.AddUntilAbove(chunkCells, stopped + 1, n, _candidates.Threshold, out long estimate)) < n)
             {

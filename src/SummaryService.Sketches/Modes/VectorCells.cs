@@ -6,8 +6,9 @@ using System.Runtime.Intrinsics.X86;
 namespace SummaryService.Sketches.Modes;
 
 /// <summary>
-/// The count-min cells of eight keys at a time in 256-bit registers: the same SplitMix64 mixes and
-/// multiply-shift maps as <see cref="CountMinTable"/>'s scalar path, so the same cells, bit for bit.
+/// The count-min cells of eight keys at a time in 256-bit registers: a fast form of
+/// <see cref="CountMinHashing.Cells"/> (the same hash, words and multiply-shift maps, with its
+/// constants), tested against it bit for bit.
 /// </summary>
 /// <remarks>
 /// Hashing was about a quarter of a mode update. AVX2 has no 64-bit multiply, so each one is put
@@ -15,9 +16,6 @@ namespace SummaryService.Sketches.Modes;
 /// </remarks>
 internal static class VectorCells
 {
-    private const ulong First = 0xBF58476D1CE4E5B9UL;
-    private const ulong Second = 0x94D049BB133111EBUL;
-
     /// <summary>
     /// Fills <paramref name="cells"/>[row · n + i] for the leading multiple of eight of the n keys and
     /// returns how many keys that is (0 without AVX2); the caller does the rest.
@@ -33,7 +31,7 @@ internal static class VectorCells
             Vector256<ulong> highHash = HashOf(Vector256.Create(keys.Slice(i + 4, 4)).AsUInt64());
             for (int row = 0; row < depth; row += 2)
             {
-                var step = Vector256.Create((ulong)(row >> 1) * 0x9E3779B97F4A7C15UL);
+                var step = Vector256.Create((ulong)(row >> 1) * SplitMix64.Gamma);
                 Vector256<ulong> lowWord = row == 0 ? lowHash : Mix(lowHash + step);
                 Vector256<ulong> highWord = row == 0 ? highHash : Mix(highHash + step);
                 Store(cells, (row * n) + i, row * width, lowWord, highWord, widths);
@@ -58,13 +56,13 @@ internal static class VectorCells
     }
 
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
-    private static Vector256<ulong> HashOf(Vector256<ulong> keys) => Mix(keys ^ Vector256.Create(0x243F6A8885A308D3UL));
+    private static Vector256<ulong> HashOf(Vector256<ulong> keys) => Mix(keys ^ Vector256.Create(ModeKey.HashSalt));
 
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
     private static Vector256<ulong> Mix(Vector256<ulong> z)
     {
-        z = Multiply(z ^ (z >>> 30), First);
-        z = Multiply(z ^ (z >>> 27), Second);
+        z = Multiply(z ^ (z >>> 30), SplitMix64.FirstMultiplier);
+        z = Multiply(z ^ (z >>> 27), SplitMix64.SecondMultiplier);
         return z ^ (z >>> 31);
     }
 

@@ -13,7 +13,7 @@ namespace SummaryService.Sketches.Moments;
 /// summarised on its own with a shifted two-pass computation, which is exact enough and much
 /// faster than the per-value update, then merged in.
 /// </remarks>
-public sealed class MomentSketch
+public sealed partial class MomentSketch
 {
     private double _sum;
     private double _sumCompensation;
@@ -27,7 +27,7 @@ public sealed class MomentSketch
     /// <summary>Largest value; <see cref="double.NaN"/> while empty.</summary>
     public double Max { get; private set; } = double.NaN;
 
-    /// <summary>Arithmetic mean; <see cref="double.NaN"/> while empty.</summary>
+    /// <summary>Arithmetic mean Σx / n (normalizer n, unbiased); <see cref="double.NaN"/> while empty, when it is undefined.</summary>
     public double Mean { get; private set; } = double.NaN;
 
     /// <summary>Σ(x − mean)².</summary>
@@ -146,7 +146,7 @@ public sealed class MomentSketch
         double m2 = s2 - (count * c2);
         double m3 = s3 - (3.0 * c * s2) + (2.0 * count * c2 * c);
         double m4 = s4 - (4.0 * c * s3) + (6.0 * c2 * s2) - (3.0 * count * c2 * c2);
-        Combine(count, min, max, shift + c, Math.Max(m2, 0.0), m3, Math.Max(m4, 0.0));
+        CombineWith(count, min, max, shift + c, Math.Max(m2, 0.0), m3, Math.Max(m4, 0.0));
     }
 
     /// <summary>Merges another sketch into this one; the result is the sketch of both streams.</summary>
@@ -160,7 +160,7 @@ public sealed class MomentSketch
 
         double otherSum = other._sum;
         double otherCompensation = other._sumCompensation;
-        Combine(other.Count, other.Min, other.Max, other.Mean, other.M2, other.M3, other.M4);
+        CombineWith(other.Count, other.Min, other.Max, other.Mean, other.M2, other.M3, other.M4);
         AddToSum(otherSum);
         AddToSum(otherCompensation);
     }
@@ -188,7 +188,7 @@ public sealed class MomentSketch
 
     // Pairwise update of Pébay (2008), eqs. 1.1–1.3 with p = 4; the moment sums are combined
     // before the mean moves so each formula sees the "a" side as it was.
-    private void Combine(long nb, double minB, double maxB, double meanB, double m2B, double m3B, double m4B)
+    private void CombineWith(long nb, double minB, double maxB, double meanB, double m2B, double m3B, double m4B)
     {
         long na = Count;
         if (na == 0)

@@ -1,5 +1,5 @@
 using Google.Protobuf;
-using SummaryService.Contract.V1;
+using SummaryService.Formats.V1;
 using SummaryService.Sketches.Buckets;
 using SummaryService.Sketches.Modes;
 using SummaryService.Sketches.Moments;

@@ -102,27 +102,9 @@ internal static class SummaryBuilder
     {
         long n = m.Count;
         double nd = n;
-        double? variance = n >= 2 ? m.M2 / (nd - 1) : null;
-        double? sd = variance is { } v ? Math.Sqrt(v) : null;
+        double? sd = m.StandardDeviation;
         double? se = sd is { } s ? s / Math.Sqrt(nd) : null;
         double? halfWidth = se is { } e ? e * StudentT.InvCDF(0, 1, nd - 1, 1 - ((1 - confidence) / 2)) : null;
-        bool spread = m.M2 > 0;
-        double? skewness = null;
-        double? kurtosis = null;
-        if (spread && n >= 3)
-        {
-            // Adjusted Fisher–Pearson G1 = sqrt(n(n−1))/(n−2) · g1 with g1 = sqrt(n)·M3/M2^1.5.
-            double g1 = Math.Sqrt(nd) * m.M3 / Math.Pow(m.M2, 1.5);
-            skewness = Math.Sqrt(nd * (nd - 1)) / (nd - 2) * g1;
-        }
-
-        if (spread && n >= 4)
-        {
-            // Bias-corrected excess kurtosis G2 = (n−1)/((n−2)(n−3)) · ((n+1)·g2 + 6), g2 = n·M4/M2² − 3.
-            double g2 = (nd * m.M4 / (m.M2 * m.M2)) - 3;
-            kurtosis = (nd - 1) / ((nd - 2) * (nd - 3)) * (((nd + 1) * g2) + 6);
-        }
-
         return new Summary
         {
             Count = n,
@@ -131,11 +113,11 @@ internal static class SummaryBuilder
             MeanLow = halfWidth is { } lo ? m.Mean - lo : null,
             MeanHigh = halfWidth is { } hi ? m.Mean + hi : null,
             StandardError = se,
-            Variance = variance,
-            PopulationVariance = m.M2 / nd,
+            Variance = m.Variance,
+            PopulationVariance = m.PopulationVariance,
             StandardDeviation = sd,
-            Skewness = skewness,
-            Kurtosis = kurtosis,
+            Skewness = m.Skewness,
+            Kurtosis = m.ExcessKurtosis,
             Min = m.Min,
             Max = m.Max,
             Range = m.Max - m.Min,

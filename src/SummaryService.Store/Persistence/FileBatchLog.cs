@@ -1,6 +1,6 @@
 using Microsoft.Extensions.Logging;
 using SummaryService.Sketches.Serialization;
-using SummaryService.Store.Persistence.Formats;
+using SummaryService.Formats.Store;
 
 namespace SummaryService.Store.Persistence;
 

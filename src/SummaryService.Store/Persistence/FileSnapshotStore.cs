@@ -1,7 +1,7 @@
 using Google.Protobuf;
 using Microsoft.Extensions.Logging;
 using SummaryService.Sketches.Serialization;
-using SummaryService.Store.Persistence.Formats;
+using SummaryService.Formats.Store;
 
 namespace SummaryService.Store.Persistence;
 

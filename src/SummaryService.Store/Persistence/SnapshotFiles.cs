@@ -1,6 +1,6 @@
 using Google.Protobuf;
 using Microsoft.Extensions.Logging;
-using SummaryService.Store.Persistence.Formats;
+using SummaryService.Formats.Store;
 
 namespace SummaryService.Store.Persistence;
 

@@ -1,5 +1,5 @@
 using Google.Protobuf;
-using SummaryService.Store.Persistence.Formats;
+using SummaryService.Formats.Store;
 
 namespace SummaryService.Store.Persistence;
 

@@ -1,6 +1,6 @@
 using Microsoft.Extensions.Logging;
-using SummaryService.Contract.Readable;
-using SummaryService.Store.Persistence.Formats;
+using SummaryService.Readable;
+using SummaryService.Formats.Store;
 
 namespace SummaryService.Store.Persistence;
 

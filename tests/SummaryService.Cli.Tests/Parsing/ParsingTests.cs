@@ -1,5 +1,5 @@
 using SummaryService.Cli.Parsing;
-using SummaryService.Contract.Readable;
+using SummaryService.Readable;
 using SummaryService.Contract.V1;
 
 namespace SummaryService.Cli.Tests.Parsing;

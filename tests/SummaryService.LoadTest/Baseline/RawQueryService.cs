@@ -1,5 +1,5 @@
 using Grpc.Core;
-using SummaryService.Contract.Readable;
+using SummaryService.Readable;
 using SummaryService.Contract.V1;
 
 namespace SummaryService.LoadTest.Baseline;

@@ -3,6 +3,7 @@ using Google.Protobuf;
 using Google.Protobuf.Reflection;
 using Google.Protobuf.WellKnownTypes;
 using SummaryService.Contract.V1;
+using SummaryService.Formats.V1;
 using SummaryService.Sketches;
 using SummaryService.Sketches.Serialization;
 

@@ -1,5 +1,5 @@
 using MathNet.Numerics.Distributions;
-using SummaryService.Contract.V1;
+using SummaryService.Formats.V1;
 using SummaryService.Sketches.Modes;
 using SummaryService.Sketches.Serialization;
 using SummaryService.Sketches.Summaries;

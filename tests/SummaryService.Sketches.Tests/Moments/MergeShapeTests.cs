@@ -94,7 +94,7 @@ public class MergeShapeTests
 
         sketch.Merge(new MomentSketch());
 
-        AssertIdentical(before, sketch);
+        MomentStates.AssertIdentical(before, sketch);
     }
 
     [Fact]
@@ -106,7 +106,7 @@ public class MergeShapeTests
         var empty = new MomentSketch();
         empty.Merge(other);
 
-        AssertIdentical(other, empty);
+        MomentStates.AssertIdentical(other, empty);
     }
 
     [Fact]
@@ -209,18 +209,6 @@ public class MergeShapeTests
         Tolerance.Close(expected.M2 / (n - 1), actual.M2 / (n - 1), Tight, $"{label}: variance");
         Tolerance.Close(Math.Sqrt(n) * expected.M3 / Math.Pow(expected.M2, 1.5), Math.Sqrt(n) * actual.M3 / Math.Pow(actual.M2, 1.5), Tight, $"{label}: g1");
         Tolerance.Close(n * expected.M4 / (expected.M2 * expected.M2), n * actual.M4 / (actual.M2 * actual.M2), Tight, $"{label}: b2");
-    }
-
-    private static void AssertIdentical(MomentSketch expected, MomentSketch actual)
-    {
-        Assert.Equal(expected.Count, actual.Count);
-        Assert.Equal(expected.Min, actual.Min);
-        Assert.Equal(expected.Max, actual.Max);
-        Assert.Equal(expected.Mean, actual.Mean);
-        Assert.Equal(expected.M2, actual.M2);
-        Assert.Equal(expected.M3, actual.M3);
-        Assert.Equal(expected.M4, actual.M4);
-        Assert.Equal(expected.Sum, actual.Sum);
     }
 
     private static double[] Draw(int seed, Func<Random, double> sample)

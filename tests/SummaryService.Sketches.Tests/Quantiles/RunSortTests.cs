@@ -1,5 +1,5 @@
-using System.Runtime.Intrinsics.X86;
 using SummaryService.Sketches.Quantiles;
+using SummaryService.Sketches.Tests.Support;
 
 namespace SummaryService.Sketches.Tests.Quantiles;
 
@@ -32,13 +32,9 @@ public class RunSortTests
     // input if and only if it sorts every input of zeros and ones. The register block is checked in
     // its two stages. First the column network: a block is eight rows of four columns, and giving
     // each column its own rotation of one 0/1 pattern checks it on all 2^8 patterns.
-    [Fact]
+    [Avx2Fact]
     public void Column_network_sorts_every_zero_one_input()
     {
-        if (!Avx2.IsSupported)
-        {
-            return; // the register block runs only with AVX2; without it the portable path is the one checked
-        }
         for (int pattern = 0; pattern < 1 << 8; pattern++)
         {
             var block = new long[RunSort.Block];
@@ -63,13 +59,9 @@ public class RunSortTests
     // Then the transposes and merges, which only ever see sorted columns: a sorted 0/1 column is
     // fixed by its number of ones, so the 9^4 choices of four counts are every input they can get.
     // With the column check above this covers all 2^32 zero-one inputs of the block.
-    [Fact]
+    [Avx2Fact]
     public void Merge_stages_sort_every_zero_one_block_with_sorted_columns()
     {
-        if (!Avx2.IsSupported)
-        {
-            return; // the register block runs only with AVX2; without it the portable path is the one checked
-        }
         for (int counts = 0; counts < 9 * 9 * 9 * 9; counts++)
         {
             var block = new long[RunSort.Block];
@@ -89,7 +81,7 @@ public class RunSortTests
         }
     }
 
-    [Fact]
+    [Avx2Fact]
     public void Vector_and_portable_paths_give_the_same_bits()
     {
         var rng = new Random(72);

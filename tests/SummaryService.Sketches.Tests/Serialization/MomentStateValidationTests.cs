@@ -1,4 +1,4 @@
-using SummaryService.Contract.V1;
+using SummaryService.Formats.V1;
 using SummaryService.Sketches.Serialization;
 
 namespace SummaryService.Sketches.Tests.SerializationTests;

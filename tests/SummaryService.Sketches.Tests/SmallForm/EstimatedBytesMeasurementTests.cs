@@ -48,9 +48,10 @@ public class EstimatedBytesMeasurementTests
         sketch.Add(values);
         long measured = GC.GetAllocatedBytesForCurrentThread() - before;
 
-        // Nothing is discarded on the way, so the bytes allocated are the bytes held.
+        // Nothing is discarded on the way, so the bytes allocated are the bytes held; the runtime's
+        // count of them (object headers, padding) is its own business, so it is a bound, as above.
         Assert.True(sketch.IsSmall);
-        Assert.Equal(measured, sketch.EstimatedBytes);
+        Assert.InRange(sketch.EstimatedBytes, measured * 0.9, (measured * 1.1) + 16);
     }
 
     [Fact]

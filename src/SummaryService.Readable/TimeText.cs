@@ -1,6 +1,6 @@
 using System.Globalization;
 
-namespace SummaryService.Contract.Readable;
+namespace SummaryService.Readable;
 
 /// <summary>
 /// Instants as people read them: ISO 8601 in UTC, and in error messages and logs the Unix milliseconds

@@ -1,7 +1,7 @@
 using System.Globalization;
 using System.Text;
 
-namespace SummaryService.Contract.Readable;
+namespace SummaryService.Readable;
 
 /// <summary>
 /// The one duration syntax people read and write everywhere — command line, configuration, error

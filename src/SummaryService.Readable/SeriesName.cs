@@ -1,4 +1,4 @@
-namespace SummaryService.Contract.Readable;
+namespace SummaryService.Readable;
 
 /// <summary>
 /// How a series (a metric with one label set), or a selection of series, is written for people:
