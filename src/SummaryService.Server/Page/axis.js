@@ -3,11 +3,11 @@
 import { el, text } from "./svg.js";
 import { formatNumber } from "./format.js";
 
-/** Round tick values for [lo, hi]: steps of 1, 2 or 5 times a power of ten, about `count` of them. */
+/** Round tick values for [lo, hi]: steps of 1, 2 or 5 times a power of ten, at least `count` of them. */
 function linearTicks(lo, hi, count) {
   if (!(hi > lo)) return [lo];
   const raw = (hi - lo) / count, power = Math.pow(10, Math.floor(Math.log10(raw)));
-  const step = [1, 2, 5, 10].map((m) => m * power).find((s) => s >= raw);
+  const step = [10, 5, 2, 1].map((m) => m * power).find((s) => s <= raw);
   const ticks = [];
   for (let v = Math.ceil(lo / step) * step; v <= hi + step * 1e-9; v += step) ticks.push(Number(v.toPrecision(12)));
   return ticks;
@@ -38,7 +38,7 @@ export function valueScale(kind, lo, hi, r0, r1) {
   }
   const span = hi - lo;
   const map = span === 0 ? () => (r0 + r1) / 2 : (v) => r0 + ((v - lo) / span) * (r1 - r0);
-  return { kind: "linear", lo, hi, map, ticks: () => linearTicks(lo, hi, 5) };
+  return { kind: "linear", lo, hi, map, ticks: () => linearTicks(lo, hi, 4) };
 }
 
 /** A domain with a little room: for a log scale a factor on each side, for a linear one a share of the span. */
@@ -56,7 +56,7 @@ export function drawValueAxis(svg, scale, area) {
   for (const v of scale.ticks()) {
     const y = scale.map(v);
     el("line", { class: "grid", x1: area.left, x2: area.right, y1: y, y2: y }, svg);
-    text(formatNumber(v), { class: "tick value-tick", x: area.left - 6, y: y + 4, "text-anchor": "end", "data-tick": v, "data-scale": scale.kind }, svg);
+    text(formatNumber(v), { class: "tick value-tick", x: area.left - 6, y: y + 4, "text-anchor": "end", "data-axis": "y", "data-tick": v, "data-scale": scale.kind }, svg);
   }
 }
 
@@ -66,6 +66,6 @@ export function drawBottomValueAxis(svg, scale, area) {
   for (const v of scale.ticks()) {
     const x = scale.map(v);
     el("line", { class: "grid", x1: x, x2: x, y1: area.top, y2: area.bottom }, svg);
-    text(formatNumber(v), { class: "tick value-tick", x, y: area.bottom + 16, "text-anchor": "middle", "data-tick": v, "data-scale": scale.kind }, svg);
+    text(formatNumber(v), { class: "tick value-tick", x, y: area.bottom + 16, "text-anchor": "middle", "data-axis": "x", "data-tick": v, "data-scale": scale.kind }, svg);
   }
 }

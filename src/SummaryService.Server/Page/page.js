@@ -71,7 +71,7 @@ async function draw() {
   }
   if (!state.metric) {
     setStatus("No metrics stored yet: push some values first, then press Draw.", "nodata");
-    document.body.dataset.state = "empty";
+    finished("empty");
     return;
   }
   document.body.dataset.state = "loading";
@@ -81,13 +81,19 @@ async function draw() {
     const status = await view.draw(root, ctx);
     if (mine.signal.aborted) return;
     setStatus(status);
-    document.body.dataset.state = "drawn";
+    finished("drawn");
   } catch (e) {
     if (mine.signal.aborted || e.name === "AbortError") return;
     const problem = e instanceof PageError ? e : new PageError("server", "the page failed: " + e.message);
     setStatus(problem.message, problem.kind);
-    document.body.dataset.state = problem.kind === "nodata" ? "empty" : "error";
+    finished(problem.kind === "nodata" ? "empty" : "error");
   }
+}
+
+/** Marks the end of a draw on the page (a state and a running count), so scripts and tests can wait for it. */
+function finished(outcome) {
+  document.body.dataset.state = outcome;
+  document.body.dataset.draws = String(Number(document.body.dataset.draws || 0) + 1);
 }
 
 /** Reads the catalogue (what this key may see), then draws. */
@@ -101,7 +107,7 @@ async function start() {
   } catch (e) {
     const problem = e instanceof PageError ? e : new PageError("server", e.message);
     setStatus(problem.message, problem.kind);
-    document.body.dataset.state = "error";
+    finished("error");
   }
 }
 
