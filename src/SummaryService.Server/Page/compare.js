@@ -85,7 +85,7 @@ export const compareView = {
     const { state, span, signal, labels } = ctx;
     root.querySelector("#cmp-" + (state.cmp === "labels" ? "labels" : "time")).checked = true;
     root.querySelector("#at").value = state.at;
-    root.querySelector("#at-field").hidden = state.cmp === "labels";
+    root.querySelector("#at-field").hidden = root.querySelector("#at-hint").hidden = state.cmp === "labels";
     root.querySelector("#sets").hidden = state.cmp !== "labels";
     for (const side of ["a", "b"]) labelChoosers(root.querySelector("#set-" + side), side, labels, state[side], (name, value) => ctx.set({ [side]: { ...state[side], [name]: value } }));
 

@@ -91,6 +91,6 @@ export const shapeView = {
     root.querySelector("#box").replaceChildren(summary.fiveNumber ? drawBox(summary.fiveNumber, state.axis, "five-number summary with quartile intervals") : document.createTextNode("—"));
     const scaleNote = log.scale.kind === "log" ? "" : " (values reach 0 or below: linear axis)";
     return state.metric + ": " + Number(summary.count) + " values in " + logBins.length + " log-bucket bin(s)" + scaleNote + " and " + userBins.length + " chosen bin(s); " +
-      (summary.modes || []).length + " density mode(s).";
+      (summary.modes || []).length + " density mode(s)" + (state.group ? "; every group merged (group-by splits the percentile view)." : ".");
   },
 };
