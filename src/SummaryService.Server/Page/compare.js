@@ -63,6 +63,7 @@ function fillShifts(tbody, shifts) {
 export const compareView = {
   id: "compare",
   title: "Compare",
+  settings: { cmp: "time", at: "" },
   mount(root, ctx) {
     root.innerHTML = `
       <fieldset class="compare-choice"><legend>Compare</legend>
@@ -87,7 +88,7 @@ export const compareView = {
     root.querySelector("#at").value = state.at;
     root.querySelector("#at-field").hidden = root.querySelector("#at-hint").hidden = state.cmp === "labels";
     root.querySelector("#sets").hidden = state.cmp !== "labels";
-    for (const side of ["a", "b"]) labelChoosers(root.querySelector("#set-" + side), side, labels, state[side], (name, value) => ctx.set({ [side]: { ...state[side], [name]: value } }));
+    for (const side of ["a", "b"]) labelChoosers(root.querySelector("#set-" + side), side, labels, state[side], (name, value) => ctx.set((current) => ({ [side]: { ...current[side], [name]: value } })));
 
     const sides = sidesOf(state, span, Date.now());
     const reply = await compare({ a: { selector: sides.a.selector, window: sides.a.window }, b: { selector: sides.b.selector, window: sides.b.window }, quantiles: quantilesOf(state) }, signal);

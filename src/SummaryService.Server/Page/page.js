@@ -8,7 +8,9 @@ import { LiveRefresh } from "./live.js";
 import { VIEWS } from "./views.js";
 
 const $ = (id) => document.getElementById(id);
-let state = readState(location.search);
+// Settings views declare for themselves go into the address like the shared ones.
+const VIEW_SETTINGS = Object.assign({}, ...VIEWS.map((v) => v.settings || {}));
+let state = readState(location.search, VIEW_SETTINGS);
 let held = { series: [] }; // the catalogue as last read
 let labels = new Map();
 let controller = null;
@@ -31,7 +33,7 @@ function showState() {
   fillSelect($("metric"), state.metric && !metrics.includes(state.metric) ? [...metrics, state.metric] : metrics, state.metric);
   labels = labelsOf(held, state.metric);
   fillSelect($("group"), [...labels.keys()], state.group, { value: "", text: "nothing" });
-  labelChoosers($("filters"), "filter", labels, state.filters, (name, value) => change({ filters: { ...state.filters, [name]: value } }));
+  labelChoosers($("filters"), "filter", labels, state.filters, (name, value) => change((current) => ({ filters: { ...current.filters, [name]: value } })));
   for (const [id, key] of [["window", "window"], ["from", "from"], ["to", "to"], ["step", "step"], ["percentiles", "q"], ["axis", "axis"], ["zone", "zone"], ["live", "live"]]) {
     const control = $(id);
     if (control.tagName === "SELECT" && ![...control.options].some((o) => o.value === state[key])) control.add(new Option(state[key], state[key]));
@@ -46,12 +48,16 @@ function showState() {
   }
 }
 
-/** A new state from a change: the address follows, then the drawing. A new metric starts its label choices afresh. */
-function change(patch) {
+/**
+ * A new state from a change (an object of new settings, or a function of the current state giving
+ * one): the address follows, then the drawing. A new metric starts its label choices afresh.
+ */
+function change(update) {
+  const patch = typeof update === "function" ? update(state) : update;
   const next = { ...state, ...patch };
   if (patch.metric !== undefined && patch.metric !== state.metric) Object.assign(next, { filters: {}, group: "", a: {}, b: {} });
   state = next;
-  history.replaceState(null, "", location.pathname + writeState(state));
+  history.replaceState(null, "", location.pathname + writeState(state, VIEW_SETTINGS));
   showState();
   live.follow(state);
   draw();

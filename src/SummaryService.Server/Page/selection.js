@@ -33,8 +33,15 @@ export function fillSelect(select, values, chosen, first) {
  * address never silently widens its selection. `onChange(label, value)` reports each choice.
  */
 export function labelChoosers(container, prefix, labels, chosen, onChange) {
-  container.replaceChildren();
   const names = new Set([...labels.keys(), ...Object.keys(chosen)]);
+  // Rebuilt only when the choices change, so a chooser keeps keyboard focus across the redraw it starts.
+  const signature = JSON.stringify([...names].sort().map((name) => [name, labels.get(name) || [], chosen[name] || ""]).map(([n, v, c]) => [n, v.includes(c) || c === "" ? v : [...v, c]]));
+  if (container.dataset.signature === signature) {
+    for (const select of container.querySelectorAll("select")) select.value = chosen[select.dataset.label] || "";
+    return;
+  }
+  container.dataset.signature = signature;
+  container.replaceChildren();
   for (const name of [...names].sort()) {
     const values = labels.get(name) || [];
     const wanted = chosen[name] || "";

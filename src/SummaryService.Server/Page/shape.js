@@ -45,6 +45,7 @@ function markerList(list, markers, summary) {
 export const shapeView = {
   id: "shape",
   title: "Shape of the window",
+  settings: { bins: "16" },
   mount(root, ctx) {
     root.innerHTML = `
       <h3>Log buckets</h3>

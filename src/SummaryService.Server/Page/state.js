@@ -15,22 +15,22 @@ export const DEFAULTS = Object.freeze({
   axis: "log",
   zone: "utc",
   live: "0",
-  bins: "16",
-  cmp: "time",
-  at: "",
   a: {},
   b: {},
 });
 
 // Plain settings and their address parameters; label sets go in as `f.label`, `a.label`, `b.label`.
-const PLAIN = ["view", "metric", "group", "window", "from", "to", "step", "q", "axis", "zone", "live", "bins", "cmp", "at"];
+const PLAIN = ["view", "metric", "group", "window", "from", "to", "step", "q", "axis", "zone", "live"];
 const LABEL_SETS = { filters: "f.", a: "a.", b: "b." };
 
-/** The state an address describes, defaults filling what it leaves out. */
-export function readState(search) {
+/**
+ * The state an address describes, defaults filling what it leaves out. `extra` holds the plain
+ * settings views declare for themselves (`settings` on a view: name → default text).
+ */
+export function readState(search, extra = {}) {
   const params = new URLSearchParams(search);
-  const state = { ...DEFAULTS, filters: {}, a: {}, b: {} };
-  for (const name of PLAIN) if (params.has(name)) state[name] = params.get(name);
+  const state = { ...extra, ...DEFAULTS, filters: {}, a: {}, b: {} };
+  for (const name of [...PLAIN, ...Object.keys(extra)]) if (params.has(name)) state[name] = params.get(name);
   for (const [key, value] of params) {
     for (const [set, prefix] of Object.entries(LABEL_SETS)) if (key.startsWith(prefix) && key.length > prefix.length) state[set][key.slice(prefix.length)] = value;
   }
@@ -38,9 +38,10 @@ export function readState(search) {
 }
 
 /** The address query for a state: only what differs from the defaults, in a stable order. */
-export function writeState(state) {
+export function writeState(state, extra = {}) {
   const params = new URLSearchParams();
-  for (const name of PLAIN) if (state[name] !== DEFAULTS[name] && state[name] !== "") params.set(name, state[name]);
+  const defaults = { ...extra, ...DEFAULTS };
+  for (const name of [...PLAIN, ...Object.keys(extra)]) if (state[name] !== defaults[name] && state[name] !== "" && state[name] !== undefined) params.set(name, state[name]);
   for (const [set, prefix] of Object.entries(LABEL_SETS)) {
     for (const key of Object.keys(state[set]).sort()) if (state[set][key] !== "") params.set(prefix + key, state[set][key]);
   }
