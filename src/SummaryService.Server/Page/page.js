@@ -1,84 +1,157 @@
-// Wires the controls to the JSON routes and the three drawings.
-"use strict";
-const HISTOGRAM_BINS = 16;
+// Wires the controls, the address and the views together: every change becomes a new state, the
+// state goes into the address, and the chosen view draws it.
+import { readState, writeState } from "./state.js";
+import { setZone } from "./clock.js";
+import { catalogue, setKey, spanOf, PageError } from "./api.js";
+import { metricsOf, labelsOf, fillSelect, labelChoosers } from "./selection.js";
+import { LiveRefresh } from "./live.js";
+import { VIEWS } from "./views.js";
 
-// The percentiles drawn, from the control: "0.5,0.9,0.99" and the like.
-function percentiles() {
-  return document.getElementById("percentiles").value.split(",").map(Number);
+const $ = (id) => document.getElementById(id);
+// Settings views declare for themselves go into the address like the shared ones.
+const VIEW_SETTINGS = Object.assign({}, ...VIEWS.map((v) => v.settings || {}));
+let state = readState(location.search, VIEW_SETTINGS);
+let held = { series: [] }; // the catalogue as last read
+let labels = new Map();
+let controller = null;
+const mounted = new Set();
+
+// What each kind of failure is called on the status line.
+const PROBLEMS = { unreachable: "Server unreachable", auth: "Key needed", input: "Bad input", nodata: "No data", server: "Server error" };
+
+function setStatus(textValue, kind) {
+  const s = $("status");
+  s.textContent = kind ? PROBLEMS[kind] + ": " + textValue : textValue;
+  s.className = kind ? (kind === "nodata" ? "empty" : "error") : "";
+  s.dataset.kind = kind || "";
 }
 
-function setStatus(text, isError) {
-  const s = document.getElementById("status");
-  s.textContent = text;
-  s.className = isError ? "error" : "";
-}
-
-// One entry per percentile, and the confidence the bands are drawn at, stated beside them.
-function drawLegend(quantiles, confidence) {
-  const legend = document.getElementById("legend");
-  legend.replaceChildren();
-  quantiles.forEach((q, qi) => {
-    const span = document.createElement("span");
-    span.className = "q-" + qi;
-    span.dataset.q = q;
-    span.textContent = percentileName(q);
-    legend.appendChild(span);
-  });
-  const note = document.getElementById("confidence");
-  note.textContent = confidence ? "Shaded bands: each estimate's value interval at " + Number((confidence * 100).toFixed(4)) + "% confidence." : "";
-}
-
-async function loadMetrics() {
-  const reply = await Api.catalogue();
-  const names = [...new Set((reply.series || []).map((s) => s.metric))].sort();
-  const select = document.getElementById("metric");
-  select.replaceChildren(...names.map((n) => new Option(n, n)));
-  setStatus(names.length ? names.length + " metric(s) stored." : "No metrics stored yet: push some values first.");
-}
-
-// Changing several controls quickly starts several draws; only the latest one may paint.
-let drawGeneration = 0;
-
-async function draw() {
-  const generation = ++drawGeneration;
-  const metric = document.getElementById("metric").value;
-  if (!metric) return;
-  const windowSeconds = Number(document.getElementById("window").value);
-  const stepSeconds = Number(document.getElementById("step").value);
-  const quantiles = percentiles();
-  setStatus("Loading " + metric + "…");
-  document.body.dataset.state = "loading";
-  try {
-    const [timeline, summary] = await Promise.all([
-      Api.timeline(metric, windowSeconds, stepSeconds, quantiles),
-      Api.summarize(metric, windowSeconds, quantiles, HISTOGRAM_BINS),
-    ]);
-    if (generation !== drawGeneration) return;
-    const whole = summary.groups && summary.groups[0] ? summary.groups[0].summary : { count: 0 };
-    drawLegend(quantiles, whole.confidence);
-    const points = drawBands(document.getElementById("bands"), timeline, quantiles);
-    const bars = drawHistogram(document.getElementById("histogram"), whole);
-    fillFigures(document.querySelector("#figures tbody"), whole);
-    const covered = summary.covered ? " covering " + Clock.instant(Number(summary.covered.fromUnixMs)) + " → " + Clock.instant(Number(summary.covered.toUnixMs)) : "";
-    setStatus(metric + ": " + Number(whole.count || 0) + " values" + covered + ", " + points + " step(s) with data, " + bars + " bin(s)" + (whole.exact ? "; every figure exact." : "; figures are estimates with intervals."));
-    document.body.dataset.state = "drawn";
-  } catch (e) {
-    if (generation !== drawGeneration) return;
-    setStatus(e.message, true);
-    document.body.dataset.state = "error";
+/** Puts the state into every shared control (the views put it into their own). */
+function showState() {
+  setZone(state.zone);
+  const metrics = metricsOf(held);
+  fillSelect($("metric"), state.metric && !metrics.includes(state.metric) ? [...metrics, state.metric] : metrics, state.metric);
+  labels = labelsOf(held, state.metric);
+  fillSelect($("group"), [...labels.keys()], state.group, { value: "", text: "nothing" });
+  labelChoosers($("filters"), "filter", labels, state.filters, (name, value) => change((current) => ({ filters: { ...current.filters, [name]: value } })));
+  for (const [id, key] of [["window", "window"], ["from", "from"], ["to", "to"], ["step", "step"], ["percentiles", "q"], ["axis", "axis"], ["zone", "zone"], ["live", "live"]]) {
+    const control = $(id);
+    if (control.tagName === "SELECT" && ![...control.options].some((o) => o.value === state[key])) control.add(new Option(state[key], state[key]));
+    control.value = state[key];
+  }
+  $("from-field").hidden = $("to-field").hidden = state.window !== "custom";
+  for (const view of VIEWS) {
+    const tab = $("tab-" + view.id), selected = view.id === state.view;
+    tab.setAttribute("aria-selected", String(selected));
+    tab.tabIndex = selected ? 0 : -1;
+    $("view-" + view.id).hidden = !selected;
   }
 }
 
-document.getElementById("controls").addEventListener("submit", (e) => { e.preventDefault(); draw(); });
-for (const id of ["metric", "window", "step", "percentiles", "zone"]) document.getElementById(id).addEventListener("change", draw);
-// With authentication on, nothing can be listed before a key is given: each new key reads the
-// catalogue again, since what a key may see depends on its metric prefixes.
-function start() {
-  loadMetrics().then(draw).catch((e) => {
-    setStatus(e.message, true);
-    document.body.dataset.state = "error";
-  });
+/**
+ * A new state from a change (an object of new settings, or a function of the current state giving
+ * one): the address follows, then the drawing. A new metric starts its label choices afresh.
+ */
+function change(update) {
+  const patch = typeof update === "function" ? update(state) : update;
+  const next = { ...state, ...patch };
+  if (patch.metric !== undefined && patch.metric !== state.metric) Object.assign(next, { filters: {}, group: "", a: {}, b: {} });
+  state = next;
+  history.replaceState(null, "", location.pathname + writeState(state, VIEW_SETTINGS));
+  showState();
+  live.follow(state);
+  draw();
 }
-document.getElementById("key").addEventListener("change", start);
-drawLegend(percentiles(), 0);
+
+/** Draws the chosen view; a newer draw cancels an older one, so only the latest state paints. */
+async function draw() {
+  controller?.abort();
+  const mine = new AbortController();
+  controller = mine;
+  const view = VIEWS.find((v) => v.id === state.view) || VIEWS[0];
+  const root = $("view-" + view.id);
+  const ctx = { state, labels, set: change, signal: mine.signal };
+  if (!mounted.has(view.id)) {
+    view.mount(root, ctx);
+    mounted.add(view.id);
+  }
+  if (!state.metric) {
+    setStatus("No metrics stored yet: push some values first, then press Draw.", "nodata");
+    finished("empty");
+    return;
+  }
+  document.body.dataset.state = "loading";
+  setStatus("Loading " + state.metric + "…");
+  try {
+    ctx.span = spanOf(state, Date.now());
+    const status = await view.draw(root, ctx);
+    if (mine.signal.aborted) return;
+    setStatus(status);
+    finished("drawn");
+  } catch (e) {
+    if (mine.signal.aborted || e.name === "AbortError") return;
+    const problem = e instanceof PageError ? e : new PageError("server", "the page failed: " + e.message);
+    setStatus(problem.message, problem.kind);
+    finished(problem.kind === "nodata" ? "empty" : "error");
+  }
+}
+
+/** Marks the end of a draw on the page (a state and a running count), so scripts and tests can wait for it. */
+function finished(outcome) {
+  document.body.dataset.state = outcome;
+  document.body.dataset.draws = String(Number(document.body.dataset.draws || 0) + 1);
+}
+
+/** Reads the catalogue (what this key may see), then draws. */
+async function start() {
+  try {
+    held = await catalogue();
+    if (!state.metric) state.metric = metricsOf(held)[0] || "";
+    showState();
+    live.follow(state);
+    await draw();
+  } catch (e) {
+    const problem = e instanceof PageError ? e : new PageError("server", e.message);
+    setStatus(problem.message, problem.kind);
+    finished("error");
+  }
+}
+
+/** One tab per view; ← and → move between tabs, as in any tab list. */
+function buildTabs() {
+  for (const [i, view] of VIEWS.entries()) {
+    const tab = document.createElement("button");
+    Object.assign(tab, { id: "tab-" + view.id, type: "button", textContent: view.title });
+    tab.setAttribute("role", "tab");
+    tab.setAttribute("aria-controls", "view-" + view.id);
+    tab.addEventListener("click", () => change({ view: view.id }));
+    tab.addEventListener("keydown", (e) => {
+      if (e.key !== "ArrowLeft" && e.key !== "ArrowRight") return;
+      const next = VIEWS[(i + (e.key === "ArrowRight" ? 1 : VIEWS.length - 1)) % VIEWS.length];
+      change({ view: next.id });
+      $("tab-" + next.id).focus();
+    });
+    $("tabs").appendChild(tab);
+    const panel = document.createElement("section");
+    Object.assign(panel, { id: "view-" + view.id, hidden: true });
+    panel.setAttribute("role", "tabpanel");
+    panel.setAttribute("aria-labelledby", "tab-" + view.id);
+    $("views").appendChild(panel);
+  }
+}
+
+const live = new LiveRefresh(() => { if (document.body.dataset.state !== "loading") draw(); }, (textValue, isError) => {
+  $("live-status").textContent = textValue;
+  $("live-status").className = isError ? "hint error" : "hint";
+});
+
+buildTabs();
+$("controls").addEventListener("submit", (e) => { e.preventDefault(); start(); });
+for (const [id, key] of [["metric", "metric"], ["group", "group"], ["window", "window"], ["from", "from"], ["to", "to"], ["step", "step"], ["percentiles", "q"], ["axis", "axis"], ["zone", "zone"], ["live", "live"]]) {
+  $(id).addEventListener("change", () => change({ [key]: $(id).value.trim() }));
+}
+// With authentication on nothing can be listed before a key is given: each new key reads the
+// catalogue again, since what a key may see depends on its metric prefixes.
+$("key").addEventListener("change", () => { setKey($("key").value); start(); });
+showState();
 start();

@@ -62,7 +62,7 @@ public sealed class PageBrowserTests
             ["PAGE_URL"] = server.HttpAddress.ToString(),
             ["METRIC"] = Metric,
             ["EXPECT_POINTS"] = "4",
-            ["EXPECT_BARS"] = "16", // HISTOGRAM_BINS in Page/page.js
+            ["EXPECT_BARS"] = "16", // the default bins of the shape view (shapeView.settings in Page/shape.js)
             ["SCREENSHOT"] = screenshot,
         };
         if (readerKey is not null)
