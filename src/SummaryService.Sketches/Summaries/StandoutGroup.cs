@@ -6,6 +6,15 @@ namespace SummaryService.Sketches.Summaries;
 /// <param name="Series">Series merged into it.</param>
 public sealed record StandoutInput(string Value, SeriesSketch Sketch, int Series);
 
+/// <summary>
+/// The same groups in an earlier window, for ranking by how much each moved. Groups are matched by
+/// value; a value missing on one side counts as an empty group there.
+/// </summary>
+/// <param name="Groups">The groups in the earlier window.</param>
+/// <param name="Shared">Values of the earlier window in every rest and no group (series without the split label).</param>
+/// <param name="SharedSeries">Series merged into <paramref name="Shared"/>.</param>
+public sealed record StandoutBaseline(IReadOnlyList<StandoutInput> Groups, SeriesSketch? Shared, int SharedSeries);
+
 /// <summary>Where a group stands after the split.</summary>
 public enum StandoutStanding
 {
@@ -66,7 +75,8 @@ public readonly record struct DistanceVerdict(double Distance, double Low, doubl
 /// <param name="Mean">Welch's interval for group mean − rest mean; null when a side has fewer than two values.</param>
 /// <param name="Standing">Ranked, or why not.</param>
 /// <param name="Strength">The measure's size the ranking sorts by (distance, |shift| or |ln ratio|); 0 unless ranked.</param>
-/// <param name="Significant">The measure's own verdict holds: the distance verdict, or the ranked quantile's shift verdict.</param>
+/// <param name="Significant">The measure's own verdict holds: the distance verdict, or the ranked quantile's shift verdict (with an earlier window: the move's verdict).</param>
+/// <param name="Move">With an earlier window, how the group and its rest moved between the two; the ranking then follows it.</param>
 public sealed record StandoutGroup(
     string Value,
     long Count,
@@ -78,7 +88,8 @@ public sealed record StandoutGroup(
     MeanDifference? Mean,
     StandoutStanding Standing,
     double Strength,
-    bool Significant);
+    bool Significant,
+    StandoutMove? Move = null);
 
 /// <summary>A split's answer.</summary>
 /// <param name="Ranked">Groups whose measure could be judged, strongest first (ties by value).</param>
