@@ -4,10 +4,7 @@
 // first and the only one standing out, its figures as the server gave them.
 // Input (environment): PAGE_URL, METRIC, LABEL, EXPECT_FIRST, SCREENSHOT.
 // Output: one JSON line of what was seen; exit code 0 only when every check held.
-import { mkdtempSync, rmSync } from "node:fs";
-import { tmpdir } from "node:os";
-import { join } from "node:path";
-import { chromium } from "playwright-core";
+import { openPage } from "./browser.mjs";
 
 const env = (name) => {
   const value = process.env[name];
@@ -26,26 +23,10 @@ const watchdog = setTimeout(() => { console.error("standout page test took longe
 
 const failures = [];
 const check = (ok, what) => { if (!ok) failures.push(what); };
-const profile = mkdtempSync(join(tmpdir(), "summary-standout-profile-"));
-let context;
+let browser;
 try {
-  context = await chromium.launchPersistentContext(profile, {
-    executablePath: process.env.CHROMIUM || "/usr/bin/chromium",
-    headless: true,
-    args: ["--headless", "--no-sandbox", "--disable-gpu", "--disable-background-networking", "--disable-component-update", "--disable-sync", "--no-first-run"],
-    viewport: { width: 1200, height: 1400 },
-    timeout: 30_000,
-  });
-  const page = context.pages()[0] ?? (await context.newPage());
-  page.setDefaultTimeout(20_000);
-  const foreign = [];
-  await page.route("**/*", (route) => {
-    const url = new URL(route.request().url());
-    if (url.host !== pageUrl.host) { foreign.push(url.href); return route.abort(); }
-    return route.continue();
-  });
-  const pageErrors = [];
-  page.on("pageerror", (e) => pageErrors.push(String(e)));
+  browser = await openPage(pageUrl, { viewport: { width: 1200, height: 1400 } });
+  const { page, foreign, pageErrors } = browser;
 
   await page.goto(pageUrl.href);
   await page.waitForSelector(`#standout-metric option[value="${metric}"]`, { state: "attached" });
@@ -97,8 +78,7 @@ try {
   failures.push(String(e && e.stack ? e.stack : e));
   console.log(JSON.stringify({ failures }));
 } finally {
-  if (context) await context.close().catch(() => {});
-  rmSync(profile, { recursive: true, force: true });
+  if (browser) await browser.close();
   clearTimeout(watchdog);
 }
 process.exit(failures.length === 0 ? 0 : 1);
