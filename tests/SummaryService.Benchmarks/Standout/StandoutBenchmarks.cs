@@ -1,5 +1,6 @@
 using BenchmarkDotNet.Attributes;
 using Microsoft.Extensions.Time.Testing;
+using SummaryService.Sketches;
 using SummaryService.Sketches.Summaries;
 using SummaryService.Store;
 
@@ -54,6 +55,16 @@ public class StandoutBenchmarks
         _window = new TimeRange(now - (60 * Minute), now);
         _before = new TimeRange(now - (120 * Minute), now - (60 * Minute));
         _groups = Split(_window);
+    }
+
+    /// <summary>The prefix/suffix rests alone, from groups already merged: the ranking's merging share.</summary>
+    [Benchmark]
+    public long RestsOnly()
+    {
+        long total = 0;
+        SeriesSketch[] sketches = [.. _groups.Select(g => g.Sketch)];
+        RestMerges.ForEach(sketches, [.. _groups.Select(g => RestMerges.KeyOf(g.Value))], null, (_, rest) => total += rest.Count);
+        return total;
     }
 
     /// <summary>The ranking alone, from groups already merged.</summary>
