@@ -44,6 +44,7 @@ public static class CliApp
         root.Add(TrendCommand.Create(runner));
         root.Add(FollowCommand.Create(runner));
         root.Add(ShiftCommand.Create(runner));
+        root.Add(StandoutCommand.Create(runner));
         root.Add(SendCommand.Create(runner));
         root.Add(CatalogueCommand.Create(runner));
         root.Add(HoldingsCommand.Create(runner));

@@ -93,6 +93,13 @@ public sealed class QueryHelperTests
         Assert.Equal(R7(south, 0.9) - R7(north, 0.9), compared.Shifts[1].Delta, 1e-9); // MathNet.Numerics, Hyndman & Fan definition 7
         Assert.Equal(KolmogorovSmirnov(north, south), compared.KsDistance, 1e-12);
 
+        // Split by region, south's rest is north alone: the same shifts Compare gave, south's p90 ratio first.
+        StandoutReply split = await client.StandoutAsync(Selection.Of(Latency), "region", window, new StandoutOptions { Quantiles = [0.5, 0.9], Measure = StandoutMeasure.QuantileRatio });
+        StandoutGroup southward = split.Ranked.Single(g => g.Value == "south");
+        Assert.Equal(compared.Shifts, southward.Quantiles.Select(q => q.Shift));
+        Assert.Equal(R7(south, 0.9) / R7(north, 0.9), southward.Quantiles[1].Ratio, 1e-9); // MathNet.Numerics, Hyndman & Fan definition 7
+        Assert.Equal((150ul, 1u, 150ul, 1u), (southward.Count, southward.SeriesMerged, southward.RestCount, southward.RestSeriesMerged));
+
         IReadOnlyList<CatalogueEntry> listed = await client.CatalogueAsync(Latency);
         Assert.Equal([150ul, 150ul], listed.Select(s => s.Count));
         Assert.Equal(2, (await client.CatalogueAsync()).Count(s => s.Metric == Latency));

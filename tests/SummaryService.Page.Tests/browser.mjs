@@ -110,3 +110,37 @@ export async function afterDraw(page, action) {
   await page.waitForFunction((n) => Number(document.body.dataset.draws || 0) > n && document.body.dataset.state !== "loading", before);
   return page.evaluate(() => document.body.dataset.state);
 }
+
+/** Opens a page; `close()` ends the browser and removes the profile. */
+export async function openPage(pageUrl, { viewport, timezoneId } = {}) {
+  const profile = mkdtempSync(join(tmpdir(), "summary-page-profile-"));
+  let context;
+  try {
+    context = await chromium.launchPersistentContext(profile, {
+      executablePath: process.env.CHROMIUM || "/usr/bin/chromium",
+      headless: true,
+      args: ["--headless", "--no-sandbox", "--disable-gpu", "--disable-background-networking", "--disable-component-update", "--disable-sync", "--no-first-run"],
+      viewport: viewport ?? { width: 1100, height: 1000 },
+      ...(timezoneId ? { timezoneId } : {}),
+      timeout: 30_000,
+    });
+  } catch (e) {
+    rmSync(profile, { recursive: true, force: true });
+    throw e;
+  }
+  const page = context.pages()[0] ?? (await context.newPage());
+  page.setDefaultTimeout(20_000);
+  const foreign = [];
+  await page.route("**/*", (route) => {
+    const url = new URL(route.request().url());
+    if (url.host !== pageUrl.host) { foreign.push(url.href); return route.abort(); }
+    return route.continue();
+  });
+  const pageErrors = [];
+  page.on("pageerror", (e) => pageErrors.push(String(e)));
+  const close = async () => {
+    await context.close().catch(() => {});
+    rmSync(profile, { recursive: true, force: true });
+  };
+  return { page, foreign, pageErrors, close };
+}

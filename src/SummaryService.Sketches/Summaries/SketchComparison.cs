@@ -20,26 +20,76 @@ public static class SketchComparison
     /// 1 − δ/4 (MathNet.Numerics). Neither approximation nor sampling noise alone can then make
     /// two such intervals separate.
     /// </summary>
-    public static QuantileEstimate PopulationQuantile(SeriesSketch sketch, double q, double confidence)
+    public static QuantileEstimate PopulationQuantile(SeriesSketch sketch, double q, double confidence) =>
+        new PopulationSide(sketch, confidence).Quantile(q);
+
+    /// <summary>
+    /// How quantile q moved from a to b; significant when the two population intervals do not
+    /// overlap and both samples are large enough to bound it (<see cref="CanBound"/>).
+    /// </summary>
+    public static QuantileShift Shift(SeriesSketch a, SeriesSketch b, double q, double confidence) =>
+        Shifts(a, b, [q], confidence)[0];
+
+    /// <summary>
+    /// <see cref="Shift"/> for several probabilities, each side's bounds prepared once (a sorted
+    /// view of each part) rather than once per probability.
+    /// </summary>
+    public static QuantileShift[] Shifts(SeriesSketch a, SeriesSketch b, IReadOnlyList<double> probabilities, double confidence)
     {
-        ArgumentNullException.ThrowIfNull(sketch);
-        Confidence.Require(confidence);
-        var (quantiles, buckets, _) = sketch.FullParts();
-        var bounds = new SummaryBounds(sketch.Moments, quantiles, buckets, confidence);
-        double z = Normal.InvCDF(0, 1, 1 - ((1 - confidence) / 4));
-        double sampling = z * Math.Sqrt(q * (1 - q) * sketch.Count);
-        QuantileEstimate estimate = bounds.Quantile(q);
-        QuantileEstimate interval = bounds.Quantile(q, sampling);
-        return estimate with { Low = interval.Low, High = interval.High, LowSource = interval.LowSource, HighSource = interval.HighSource };
+        ArgumentNullException.ThrowIfNull(probabilities);
+        var left = new PopulationSide(a, confidence);
+        var right = new PopulationSide(b, confidence);
+        var shifts = new QuantileShift[probabilities.Count];
+        for (int i = 0; i < shifts.Length; i++)
+        {
+            double q = probabilities[i];
+            QuantileEstimate from = left.Quantile(q);
+            QuantileEstimate to = right.Quantile(q);
+            bool apart = from.High < to.Low || to.High < from.Low;
+            shifts[i] = new QuantileShift(q, from, to, apart && CanBound(a.Count, q, confidence) && CanBound(b.Count, q, confidence));
+        }
+
+        return shifts;
     }
 
-    /// <summary>How quantile q moved from a to b; significant when the two population intervals do not overlap.</summary>
-    public static QuantileShift Shift(SeriesSketch a, SeriesSketch b, double q, double confidence)
+    /// <summary>
+    /// True when n values can bound the population quantile q at the confidence: the sampling ranks
+    /// q·n ± z·sqrt(q(1−q)·n) stay at least one value inside the sample at both ends. Below that an
+    /// end of the interval would be read at a rank beyond the data and clamped to the sample's own
+    /// minimum or maximum, which holds the population quantile with far less than the confidence
+    /// (five values all lie below the population p99 with probability 0.99⁵ ≈ 95%), so no verdict
+    /// may rest on it. Quantiles 0 and 1 are never bounded: a sample's extremes say nothing certain
+    /// about the population's.
+    /// </summary>
+    public static bool CanBound(long count, double q, double confidence)
     {
-        QuantileEstimate left = PopulationQuantile(a, q, confidence);
-        QuantileEstimate right = PopulationQuantile(b, q, confidence);
-        return new QuantileShift(q, left, right, left.High < right.Low || right.High < left.Low);
+        Confidence.Require(confidence);
+        double spread = SamplingZ(confidence) * Math.Sqrt(q * (1 - q) * count);
+        return count > 0 && (q * count) - spread >= 1 && ((1 - q) * count) - spread >= 1;
     }
+
+    /// <summary>
+    /// The Kolmogorov–Smirnov distance two samples of one distribution stay within at the
+    /// confidence: ε_a + ε_b with ε = sqrt(ln(4/δ)/(2n)). By the Dvoretzky–Kiefer–Wolfowitz
+    /// inequality with Massart's constant (Massart 1990), each empirical CDF strays further than ε
+    /// from the common one with probability at most δ/2, for any sample size and any distribution,
+    /// ties included; the distance between the two is at most the sum of the two strays. A lower
+    /// bound of the distance above this limit is a verdict that the distributions differ.
+    /// </summary>
+    public static double SameDistributionLimit(long countA, long countB, double confidence)
+    {
+        Confidence.Require(confidence);
+        if (countA <= 0 || countB <= 0)
+        {
+            return 1;
+        }
+
+        double logTerm = Math.Log(4 / (1 - confidence)) / 2;
+        return Math.Sqrt(logTerm / countA) + Math.Sqrt(logTerm / countB);
+    }
+
+    // z at 1 − δ/4: each end of the sampling interval fails with probability δ/4.
+    private static double SamplingZ(double confidence) => Normal.InvCDF(0, 1, 1 - ((1 - confidence) / 4));
 
     /// <summary>
     /// D = sup_x |F_a(x) − F_b(x)| between the two samples, with an interval: the intersection of the
@@ -158,6 +208,32 @@ public static class SketchComparison
         foreach (int index in a.PositiveBuckets().Select(x => x.Index).Union(b.PositiveBuckets().Select(x => x.Index)).Order())
         {
             yield return (a.PositiveCount(index), b.PositiveCount(index));
+        }
+    }
+
+    /// <summary>One side's bounds, prepared once for any number of population quantiles.</summary>
+    private sealed class PopulationSide
+    {
+        private readonly SummaryBounds _bounds;
+        private readonly double _z;
+        private readonly long _count;
+
+        public PopulationSide(SeriesSketch sketch, double confidence)
+        {
+            ArgumentNullException.ThrowIfNull(sketch);
+            Confidence.Require(confidence);
+            var (quantiles, buckets, _) = sketch.FullParts();
+            _bounds = new SummaryBounds(sketch.Moments, quantiles, buckets, confidence);
+            _z = SamplingZ(confidence);
+            _count = sketch.Count;
+        }
+
+        public QuantileEstimate Quantile(double q)
+        {
+            double sampling = _z * Math.Sqrt(q * (1 - q) * _count);
+            QuantileEstimate estimate = _bounds.Quantile(q);
+            QuantileEstimate interval = _bounds.Quantile(q, sampling);
+            return estimate with { Low = interval.Low, High = interval.High, LowSource = interval.LowSource, HighSource = interval.HighSource };
         }
     }
 }
