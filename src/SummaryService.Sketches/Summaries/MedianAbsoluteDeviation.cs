@@ -20,11 +20,14 @@ namespace SummaryService.Sketches.Summaries;
 /// </remarks>
 internal static class MedianAbsoluteDeviation
 {
-    // 2^−60 of the data's range: finer than any retained item can resolve. Where log buckets take
-    // part the interval is at least a bucket wide, so 2^−32 of the range is ample and the end is
-    // found in about half the steps; each step reads both parts' counts.
+    // Without log buckets: bisection over the data's range down to adjacent doubles (60 halvings of
+    // the range), finer than any retained item can resolve.
     private const int BisectionSteps = 60;
-    private const int BisectionStepsWithBuckets = 32;
+
+    // With log buckets the interval is at least a bucket wide (≈1% of the MAD), so each end is found
+    // to 2^−20 of the MAD (~1e-6) by a search that starts at the estimate: both ends lie within a
+    // few buckets of it, and every step reads both parts' counts. Each end is rounded outward.
+    private const double BucketResolution = 1.0 / (1 << 20);
 
     /// <summary>
     /// The MAD and its interval, with the source of each end: the weaker of the sources of the two
@@ -56,14 +59,31 @@ internal static class MedianAbsoluteDeviation
         double LowerCountWithin(double a) =>
             bounds.CountBelow(medianLow + a, strict: false, rankError).Low - bounds.CountBelow(medianHigh - a, strict: true, rankError).High;
 
-        int steps = bounds.Buckets is null ? BisectionSteps : BisectionStepsWithBuckets;
-        double LowerEnd(double j) => LargestWhere(a => UpperCountCloserThan(a) < j, span, steps);
-        double UpperEnd(double j) => SmallestWhere(a => LowerCountWithin(a) >= j, span, steps);
+        double low;
+        double high;
+        double low0;
+        double high0;
+        if (bounds.Buckets is null)
+        {
+            double LowerEnd(double j) => LargestWhere(a => UpperCountCloserThan(a) < j, span, BisectionSteps);
+            double UpperEnd(double j) => SmallestWhere(a => LowerCountWithin(a) >= j, span, BisectionSteps);
+            low0 = LowerEnd(j0);
+            high0 = UpperEnd(j0);
+            low = f == 0 ? low0 : low0 + (f * (LowerEnd(j1) - low0));
+            high = f == 0 ? high0 : high0 + (f * (UpperEnd(j1) - high0));
+        }
+        else
+        {
+            // The lower ends are searched below the estimate and the upper ends above it (the final
+            // interval is widened to hold the estimate anyway), and the second order statistic's
+            // ends from the first's, which they can only exceed.
+            double step = (mad > 0 ? mad : span) * BucketResolution;
+            low0 = MonotoneBoundary.Near(a => UpperCountCloserThan(a) < j0, 0, mad, mad, step).LastTrue;
+            high0 = MonotoneBoundary.Near(a => LowerCountWithin(a) < j0, mad, span, mad, step).FirstFalse;
+            low = f == 0 ? low0 : low0 + (f * (MonotoneBoundary.Near(a => UpperCountCloserThan(a) < j1, low0, mad, low0, step).LastTrue - low0));
+            high = f == 0 ? high0 : high0 + (f * (MonotoneBoundary.Near(a => LowerCountWithin(a) < j1, high0, span, high0, step).FirstFalse - high0));
+        }
 
-        double low0 = LowerEnd(j0);
-        double high0 = UpperEnd(j0);
-        double low = f == 0 ? low0 : low0 + (f * (LowerEnd(j1) - low0));
-        double high = f == 0 ? high0 : high0 + (f * (UpperEnd(j1) - high0));
         BoundSource lowSource = Bounded.Weaker(
             Bounded.Weaker(bounds.CountBelow(medianHigh + low0, strict: true, rankError).HighSource, bounds.CountBelow(medianLow - low0, strict: false, rankError).LowSource),
             Bounded.Weaker(medianInterval.LowSource, medianInterval.HighSource));
@@ -100,7 +120,7 @@ internal static class MedianAbsoluteDeviation
         return new KllSortedView(deviations, weights, view.Count, deviations[0], deviations[^1]);
     }
 
-    // Bisection on a monotone predicate over [0, limit]; stops when no double lies strictly between.
+    // Bisection on a monotone predicate over [0, limit], down to adjacent doubles.
     private static double LargestWhere(Func<double, bool> holds, double limit, int steps)
     {
         if (!holds(0))
@@ -108,32 +128,7 @@ internal static class MedianAbsoluteDeviation
             return 0;
         }
 
-        if (holds(limit))
-        {
-            return limit;
-        }
-
-        double lo = 0;
-        double hi = limit;
-        for (int step = 0; step < steps; step++)
-        {
-            double mid = lo + ((hi - lo) / 2);
-            if (mid <= lo || mid >= hi)
-            {
-                break;
-            }
-
-            if (holds(mid))
-            {
-                lo = mid;
-            }
-            else
-            {
-                hi = mid;
-            }
-        }
-
-        return lo;
+        return holds(limit) ? limit : MonotoneBoundary.Bisect(holds, 0, limit, 0, steps).LastTrue;
     }
 
     private static double SmallestWhere(Func<double, bool> holds, double limit, int steps)
@@ -143,31 +138,6 @@ internal static class MedianAbsoluteDeviation
             return 0;
         }
 
-        if (!holds(limit))
-        {
-            return limit;
-        }
-
-        double lo = 0;
-        double hi = limit;
-        for (int step = 0; step < steps; step++)
-        {
-            double mid = lo + ((hi - lo) / 2);
-            if (mid <= lo || mid >= hi)
-            {
-                break;
-            }
-
-            if (holds(mid))
-            {
-                hi = mid;
-            }
-            else
-            {
-                lo = mid;
-            }
-        }
-
-        return hi;
+        return !holds(limit) ? limit : MonotoneBoundary.Bisect(a => !holds(a), 0, limit, 0, steps).FirstFalse;
     }
 }

@@ -1,4 +1,3 @@
-using MathNet.Numerics.Distributions;
 using SummaryService.Sketches.Buckets;
 using SummaryService.Sketches.Modes;
 using SummaryService.Sketches.Moments;
@@ -105,7 +104,7 @@ internal static class SummaryBuilder
         double? variance = n >= 2 ? m.M2 / (nd - 1) : null;
         double? sd = variance is { } v ? Math.Sqrt(v) : null;
         double? se = sd is { } s ? s / Math.Sqrt(nd) : null;
-        double? halfWidth = se is { } e ? e * StudentT.InvCDF(0, 1, nd - 1, 1 - ((1 - confidence) / 2)) : null;
+        double? halfWidth = se is { } e ? e * StudentTCritical.TwoSided(nd - 1, confidence) : null;
         bool spread = m.M2 > 0;
         double? skewness = null;
         double? kurtosis = null;
