@@ -72,8 +72,9 @@ internal static class DensityPeaks
             counts[indices[j] - first] = occupied[j];
         }
 
-        var smoothed = new double[length];
-        var scratch = new double[length];
+        // Smooth writes every cell of its output, and the density loop every cell of its array.
+        double[] smoothed = GC.AllocateUninitializedArray<double>(length);
+        double[] scratch = GC.AllocateUninitializedArray<double>(length);
         Smooth(counts, smoothed, radius);
         Smooth(smoothed, scratch, radius);
         Smooth(scratch, smoothed, radius);
@@ -81,7 +82,7 @@ internal static class DensityPeaks
         // Density S/width with width = base^k·(base − 1), scaled so that the highest is 1. Each bucket
         // is 1/base as wide as the next, so the density is carried by one multiply per bucket; the
         // logarithm of the scale (top) keeps the two ranges comparable whatever their magnitudes.
-        var density = new double[length];
+        double[] density = GC.AllocateUninitializedArray<double>(length);
         double stepDown = 1 / mapping.Base;
         double factor = 1;
         double logFactor = 0;

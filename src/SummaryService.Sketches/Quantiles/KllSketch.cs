@@ -337,10 +337,12 @@ public sealed class KllSketch
     /// <summary>Builds the sorted, weighted view that answers rank and quantile queries.</summary>
     public KllSortedView CreateView()
     {
-        var keys = new long[_retained];
-        var weights = new long[_retained];
-        var scratchKeys = new long[_retained];
-        var scratchWeights = new long[_retained];
+        // Every cell is written by the merges below (the levels hold _retained items in all), so
+        // the arrays are not zeroed first.
+        long[] keys = GC.AllocateUninitializedArray<long>(_retained);
+        long[] weights = GC.AllocateUninitializedArray<long>(_retained);
+        long[] scratchKeys = GC.AllocateUninitializedArray<long>(_retained);
+        long[] scratchWeights = GC.AllocateUninitializedArray<long>(_retained);
 
         // Level 0 is the only unsorted level; every level above is kept sorted, so the view is a
         // sequence of linear merges rather than a sort of everything.

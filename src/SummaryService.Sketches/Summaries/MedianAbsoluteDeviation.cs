@@ -104,8 +104,8 @@ internal static class MedianAbsoluteDeviation
             split++;
         }
 
-        var deviations = new double[values.Length];
-        var weights = new long[values.Length];
+        double[] deviations = GC.AllocateUninitializedArray<double>(values.Length);
+        long[] weights = GC.AllocateUninitializedArray<long>(values.Length);
         int left = split - 1;
         int right = split;
         for (int write = 0; write < deviations.Length; write++)
