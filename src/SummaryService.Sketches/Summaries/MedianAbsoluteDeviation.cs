@@ -37,7 +37,7 @@ internal static class MedianAbsoluteDeviation
     {
         KllSortedView view = bounds.EstimateView!;
         double median = view.Quantile(0.5);
-        double mad = Deviations(view, median).Quantile(0.5);
+        double mad = MedianOfDeviations(view, median);
         if (bounds.Exact)
         {
             return (mad, mad, mad, BoundSource.Exact, BoundSource.Exact);
@@ -93,31 +93,72 @@ internal static class MedianAbsoluteDeviation
         return (mad, Math.Min(low, mad), Math.Max(high, mad), lowSource, highSource);
     }
 
-    /// <summary>Deviations of the weighted values from <paramref name="centre"/>, ascending, with their weights.</summary>
-    private static KllSortedView Deviations(KllSortedView view, double centre)
+    /// <summary>
+    /// The definition-7 median of the weighted values' deviations from <paramref name="centre"/>,
+    /// read as <see cref="KllSortedView.Quantile"/> would read it from the sorted deviations.
+    /// </summary>
+    /// <remarks>
+    /// The deviations come out in ascending order by walking outward from the centre on both sides
+    /// (the values are sorted), so the walk stops at the two order statistics the median needs —
+    /// half the values — without building the deviations' view.
+    /// </remarks>
+    private static double MedianOfDeviations(KllSortedView view, double centre)
     {
         ReadOnlySpan<double> values = view.Values;
         ReadOnlySpan<long> cumulative = view.CumulativeWeights;
-        int split = 0;
-        while (split < values.Length && values[split] <= centre)
-        {
-            split++;
-        }
+        long n = view.Count;
+        double h = ((n - 1) * 0.5) + 1d;
+        double floor = Math.Floor(h);
 
-        double[] deviations = GC.AllocateUninitializedArray<double>(values.Length);
-        long[] weights = GC.AllocateUninitializedArray<long>(values.Length);
-        int left = split - 1;
-        int right = split;
-        for (int write = 0; write < deviations.Length; write++)
+        // As ValueAtRank: a rank at or below 1 is the smallest deviation, at or above n the largest.
+        double lowerRank = Math.Clamp(floor, 1, n);
+        double upperRank = Math.Clamp(Math.Min(floor + 1, n), 1, n);
+        int left = UpperBound(values, centre) - 1;
+        int right = left + 1;
+        int last = values.Length - 1;
+        long running = 0;
+        double lower = double.NaN;
+        double upper = double.NaN;
+        for (int taken = 0; taken <= last; taken++)
         {
-            bool takeLeft = right >= values.Length || (left >= 0 && centre - values[left] <= values[right] - centre);
+            bool takeLeft = right > last || (left >= 0 && centre - values[left] <= values[right] - centre);
             int index = takeLeft ? left-- : right++;
-            deviations[write] = takeLeft ? centre - values[index] : values[index] - centre;
-            long weight = cumulative[index] - (index == 0 ? 0 : cumulative[index - 1]);
-            weights[write] = (write == 0 ? 0 : weights[write - 1]) + weight;
+            double deviation = takeLeft ? centre - values[index] : values[index] - centre;
+            running += cumulative[index] - (index == 0 ? 0 : cumulative[index - 1]);
+            if (double.IsNaN(lower) && (running >= lowerRank || taken == last))
+            {
+                lower = deviation;
+            }
+
+            if (running >= upperRank || taken == last)
+            {
+                upper = deviation;
+                break;
+            }
         }
 
-        return new KllSortedView(deviations, weights, view.Count, deviations[0], deviations[^1]);
+        return lower + ((h - floor) * (upper - lower));
+    }
+
+    // Number of leading values at or below x; the values ascend.
+    private static int UpperBound(ReadOnlySpan<double> values, double x)
+    {
+        int lo = 0;
+        int hi = values.Length;
+        while (lo < hi)
+        {
+            int mid = (lo + hi) >>> 1;
+            if (values[mid] <= x)
+            {
+                lo = mid + 1;
+            }
+            else
+            {
+                hi = mid;
+            }
+        }
+
+        return lo;
     }
 
     // Bisection on a monotone predicate over [0, limit], down to adjacent doubles.
