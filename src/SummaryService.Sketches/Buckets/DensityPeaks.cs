@@ -26,6 +26,9 @@ internal static class DensityPeaks
     /// <summary>Standard deviations a dip must exceed to separate two peaks (common practice: 3).</summary>
     public const double NoiseDeviations = 3;
 
+    // Working curves per range: counts, smoothed, scratch, density, and the two running maxima.
+    private const int Curves = 6;
+
     // 2√π, the kernel's effective width per unit of its standard deviation.
     private static readonly double EffectiveWidth = 2 * Math.Sqrt(Math.PI);
 
@@ -64,21 +67,23 @@ internal static class DensityPeaks
         int reach = (3 * radius) + 1;
         int first = indices[0] - reach;
         int length = indices[^1] - indices[0] + 1 + (2 * reach);
-        // Four working arrays of the span's length, borrowed: nothing of them outlives this call.
-        double[] rented = ArrayPool<double>.Shared.Rent(4 * length);
+        // Working arrays of the span's length, borrowed: nothing of them outlives this call.
+        double[] rented = ArrayPool<double>.Shared.Rent(Curves * length);
+        int[] rentedPositions = ArrayPool<int>.Shared.Rent(2 * length);
         try
         {
-            AddPeaks(peaks, rented.AsSpan(0, 4 * length), indices, occupied, mapping, first, radius, negative, min, max, total);
+            AddPeaks(peaks, rented.AsSpan(0, Curves * length), rentedPositions.AsSpan(0, 2 * length), indices, occupied, mapping, first, radius, negative, min, max, total);
         }
         finally
         {
             ArrayPool<double>.Shared.Return(rented);
+            ArrayPool<int>.Shared.Return(rentedPositions);
         }
     }
 
-    private static void AddPeaks(List<(double Prominence, ModeEstimate Mode)> peaks, Span<double> work, int[] indices, long[] occupied, ExponentialMapping mapping, int first, int radius, bool negative, double min, double max, long total)
+    private static void AddPeaks(List<(double Prominence, ModeEstimate Mode)> peaks, Span<double> work, Span<int> positions, int[] indices, long[] occupied, ExponentialMapping mapping, int first, int radius, bool negative, double min, double max, long total)
     {
-        int length = work.Length / 4;
+        int length = work.Length / Curves;
         Span<double> counts = work[..length];
         Span<double> smoothed = work.Slice(length, length);
         Span<double> scratch = work.Slice(2 * length, length);
@@ -135,6 +140,7 @@ internal static class DensityPeaks
 
         double perCount = EffectiveWidth * bandwidth;
 
+        var bases = new PeakBases(density, work.Slice(4 * length, length), work.Slice(5 * length, length), positions[..length], positions.Slice(length, length));
         var kept = new List<(int At, double Prominence)>();
         for (int k = 0; k < length; k++)
         {
@@ -154,7 +160,7 @@ internal static class DensityPeaks
                 continue;
             }
 
-            int baseAt = BaseOf(density, k);
+            int baseAt = bases.BaseOf(k);
             double rise = density[k] - density[baseAt];
             double baseDeviation = Deviation(density, smoothed, perCount, baseAt);
             double noise = NoiseDeviations * Math.Sqrt((peakDeviation * peakDeviation) + (baseDeviation * baseDeviation));
@@ -297,31 +303,6 @@ internal static class DensityPeaks
                 smoothed[k] = Math.Max(0, window / width);
             }
         }
-    }
-
-    // The base of the peak at k: on each side, the lowest point before higher ground (or the end);
-    // the higher of the two.
-    private static int BaseOf(ReadOnlySpan<double> density, int k)
-    {
-        int left = k;
-        for (int i = k - 1; i >= 0 && density[i] <= density[k]; i--)
-        {
-            if (density[i] < density[left])
-            {
-                left = i;
-            }
-        }
-
-        int right = k;
-        for (int i = k + 1; i < density.Length && density[i] <= density[k]; i++)
-        {
-            if (density[i] < density[right])
-            {
-                right = i;
-            }
-        }
-
-        return density[left] >= density[right] ? left : right;
     }
 
     private static int LowestBetween(ReadOnlySpan<double> density, int from, int to)
