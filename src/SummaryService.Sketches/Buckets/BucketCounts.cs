@@ -310,8 +310,8 @@ internal sealed class BucketCounts
     {
         ReadOnlySpan<T> cells = MemoryMarshal.Cast<byte, T>(_cells.AsSpan());
         int occupied = cells.Length - cells.Count(T.Zero);
-        var indices = new int[occupied];
-        var counts = new long[occupied];
+        int[] indices = GC.AllocateUninitializedArray<int>(occupied);
+        long[] counts = GC.AllocateUninitializedArray<long>(occupied);
         int next = 0;
         for (int cell = 0; cell < cells.Length && next < occupied; cell++)
         {

@@ -1,3 +1,4 @@
+using System.Buffers;
 using SummaryService.Sketches.Modes;
 
 namespace SummaryService.Sketches.Buckets;
@@ -25,6 +26,9 @@ internal static class DensityPeaks
     /// <summary>Standard deviations a dip must exceed to separate two peaks (common practice: 3).</summary>
     public const double NoiseDeviations = 3;
 
+    // Working curves per range: counts, smoothed, scratch, density, and the two running maxima.
+    private const int Curves = 6;
+
     // 2√π, the kernel's effective width per unit of its standard deviation.
     private static readonly double EffectiveWidth = 2 * Math.Sqrt(Math.PI);
 
@@ -32,18 +36,18 @@ internal static class DensityPeaks
     public static List<ModeEstimate> Find(LogBucketSketch sketch, double min, double max, long total)
     {
         var peaks = new List<(double Prominence, ModeEstimate Mode)>();
-        peaks.AddRange(OfRange(sketch.PositiveArrays(), sketch.Mapping, negative: false, min, max, total));
-        peaks.AddRange(OfRange(sketch.NegativeArrays(), sketch.Mapping, negative: true, min, max, total));
+        AddPeaksOfRange(peaks, sketch.PositiveArrays(), sketch.Mapping, negative: false, min, max, total);
+        AddPeaksOfRange(peaks, sketch.NegativeArrays(), sketch.Mapping, negative: true, min, max, total);
         return peaks.OrderByDescending(p => p.Prominence).Select(p => p.Mode).ToList();
     }
 
-    // Prominence is returned as its logarithm, so ranges of any magnitude compare without overflow.
-    private static IEnumerable<(double Prominence, ModeEstimate Mode)> OfRange((int[] Indices, long[] Counts) buckets, ExponentialMapping mapping, bool negative, double min, double max, long total)
+    // Prominence is kept as its logarithm, so ranges of any magnitude compare without overflow.
+    private static void AddPeaksOfRange(List<(double Prominence, ModeEstimate Mode)> peaks, (int[] Indices, long[] Counts) buckets, ExponentialMapping mapping, bool negative, double min, double max, long total)
     {
         (int[] indices, long[] occupied) = buckets;
         if (indices.Length == 0)
         {
-            yield break;
+            return;
         }
 
         // The smoothing blurs over h buckets anyway: read the density at the coarsest scale where the
@@ -57,23 +61,41 @@ internal static class DensityPeaks
             mapping = ExponentialMapping.ForScale(mapping.Scale - fold);
         }
 
-        double logBase = Math.Log(mapping.Base);
-
         // Three passes of a box of 2r + 1 buckets: a near-Gaussian kernel of standard deviation
         // sqrt(r(r + 1)), in time linear in the buckets spanned.
         int radius = BoxRadius(Math.Max(1, bandwidthAtScale / (1 << fold)));
-        double bandwidth = Math.Sqrt(radius * (radius + 1.0));
         int reach = (3 * radius) + 1;
         int first = indices[0] - reach;
         int length = indices[^1] - indices[0] + 1 + (2 * reach);
-        var counts = new double[length];
+        // Working arrays of the span's length, borrowed: nothing of them outlives this call.
+        double[] rented = ArrayPool<double>.Shared.Rent(Curves * length);
+        int[] rentedPositions = ArrayPool<int>.Shared.Rent(2 * length);
+        try
+        {
+            AddPeaks(peaks, rented.AsSpan(0, Curves * length), rentedPositions.AsSpan(0, 2 * length), indices, occupied, mapping, first, radius, negative, min, max, total);
+        }
+        finally
+        {
+            ArrayPool<double>.Shared.Return(rented);
+            ArrayPool<int>.Shared.Return(rentedPositions);
+        }
+    }
+
+    private static void AddPeaks(List<(double Prominence, ModeEstimate Mode)> peaks, Span<double> work, Span<int> positions, int[] indices, long[] occupied, ExponentialMapping mapping, int first, int radius, bool negative, double min, double max, long total)
+    {
+        int length = work.Length / Curves;
+        Span<double> counts = work[..length];
+        Span<double> smoothed = work.Slice(length, length);
+        Span<double> scratch = work.Slice(2 * length, length);
+        Span<double> density = work.Slice(3 * length, length);
+        counts.Clear();
         for (int j = 0; j < indices.Length; j++)
         {
             counts[indices[j] - first] = occupied[j];
         }
 
-        var smoothed = new double[length];
-        var scratch = new double[length];
+        double logBase = Math.Log(mapping.Base);
+        double bandwidth = Math.Sqrt(radius * (radius + 1.0));
         Smooth(counts, smoothed, radius);
         Smooth(smoothed, scratch, radius);
         Smooth(scratch, smoothed, radius);
@@ -81,7 +103,6 @@ internal static class DensityPeaks
         // Density S/width with width = base^k·(base − 1), scaled so that the highest is 1. Each bucket
         // is 1/base as wide as the next, so the density is carried by one multiply per bucket; the
         // logarithm of the scale (top) keeps the two ranges comparable whatever their magnitudes.
-        var density = new double[length];
         double stepDown = 1 / mapping.Base;
         double factor = 1;
         double logFactor = 0;
@@ -103,7 +124,12 @@ internal static class DensityPeaks
             factor *= stepDown;
         }
 
-        int peakAt = Array.IndexOf(density, density.Max());
+        int peakAt = 0;
+        for (int k = 1; k < length; k++)
+        {
+            peakAt = density[k] > density[peakAt] ? k : peakAt;
+        }
+
         double peakDensity = density[peakAt];
         double top = Math.Log(peakDensity) + logFactor - ((first * logBase) + Math.Log(mapping.Base - 1));
         double toUnit = 1 / peakDensity;
@@ -112,10 +138,9 @@ internal static class DensityPeaks
             density[k] *= toUnit;
         }
 
-        // Standard deviation of a density, read only where a peak is weighed.
         double perCount = EffectiveWidth * bandwidth;
-        double Deviation(int k) => smoothed[k] > 0 ? density[k] / Math.Sqrt(smoothed[k] * perCount) : 0;
 
+        var bases = new PeakBases(density, work.Slice(4 * length, length), work.Slice(5 * length, length), positions[..length], positions.Slice(length, length));
         var kept = new List<(int At, double Prominence)>();
         for (int k = 0; k < length; k++)
         {
@@ -129,15 +154,15 @@ internal static class DensityPeaks
             // Even a dip to nothing could not lift a peak this close to its own noise: skip the
             // search for its base (the sparse tail is full of such small maxima).
             bool highest = k == peakAt;
-            double peakDeviation = Deviation(k);
+            double peakDeviation = Deviation(density, smoothed, perCount, k);
             if (!highest && density[k] <= NoiseDeviations * peakDeviation)
             {
                 continue;
             }
 
-            int baseAt = BaseOf(density, k);
+            int baseAt = bases.BaseOf(k);
             double rise = density[k] - density[baseAt];
-            double baseDeviation = Deviation(baseAt);
+            double baseDeviation = Deviation(density, smoothed, perCount, baseAt);
             double noise = NoiseDeviations * Math.Sqrt((peakDeviation * peakDeviation) + (baseDeviation * baseDeviation));
             if (highest || rise > noise)
             {
@@ -157,7 +182,7 @@ internal static class DensityPeaks
             }
 
             // Where the density cannot be told from the peak's: within the noise of the top.
-            double floor = density[at] - (NoiseDeviations * Deviation(at));
+            double floor = density[at] - (NoiseDeviations * Deviation(density, smoothed, perCount, at));
             int left = at;
             while (left > from && density[left - 1] >= floor)
             {
@@ -179,15 +204,19 @@ internal static class DensityPeaks
                 : (lowMagnitude, highMagnitude, centre);
             low = Math.Clamp(low, min, max);
             high = Math.Clamp(high, min, max);
-            yield return (kept[p].Prominence, new ModeEstimate(Math.Clamp(value, low, high), hump, hump, hump)
+            peaks.Add((kept[p].Prominence, new ModeEstimate(Math.Clamp(value, low, high), hump, hump, hump)
             {
                 Kind = ModeKind.Region,
                 Low = low,
                 High = high,
                 Share = total == 0 ? 0 : (double)hump / total,
-            });
+            }));
         }
     }
+
+    // Standard deviation of a density, read only where a peak is weighed.
+    private static double Deviation(ReadOnlySpan<double> density, ReadOnlySpan<double> smoothed, double perCount, int k) =>
+        smoothed[k] > 0 ? density[k] / Math.Sqrt(smoothed[k] * perCount) : 0;
 
     // Silverman's rule on ln|x| with each bucket's values at its log-midpoint, in bucket units.
     // Buckets i → i >> by, counts of merged buckets added: the same data at a coarser scale.
@@ -260,7 +289,7 @@ internal static class DensityPeaks
         Math.Max(1, (int)Math.Round((Math.Sqrt(1 + (4 * bandwidth * bandwidth)) - 1) / 2));
 
     // Moving average over 2r + 1 buckets, zeros beyond the ends, from values into smoothed.
-    private static void Smooth(double[] values, double[] smoothed, int radius)
+    private static void Smooth(ReadOnlySpan<double> values, Span<double> smoothed, int radius)
     {
         double width = (2 * radius) + 1;
         double window = 0;
@@ -276,32 +305,7 @@ internal static class DensityPeaks
         }
     }
 
-    // The base of the peak at k: on each side, the lowest point before higher ground (or the end);
-    // the higher of the two.
-    private static int BaseOf(double[] density, int k)
-    {
-        int left = k;
-        for (int i = k - 1; i >= 0 && density[i] <= density[k]; i--)
-        {
-            if (density[i] < density[left])
-            {
-                left = i;
-            }
-        }
-
-        int right = k;
-        for (int i = k + 1; i < density.Length && density[i] <= density[k]; i++)
-        {
-            if (density[i] < density[right])
-            {
-                right = i;
-            }
-        }
-
-        return density[left] >= density[right] ? left : right;
-    }
-
-    private static int LowestBetween(double[] density, int from, int to)
+    private static int LowestBetween(ReadOnlySpan<double> density, int from, int to)
     {
         int lowest = from;
         for (int i = from; i <= to; i++)

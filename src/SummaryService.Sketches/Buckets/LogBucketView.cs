@@ -55,9 +55,9 @@ internal sealed class LogBucketView
         (int[] posIndex, long[] posCount) = sketch.PositiveArrays();
         int zeros = sketch.ZeroCount > 0 ? 1 : 0;
         int total = negIndex.Length + zeros + posIndex.Length;
-        var low = new double[total];
-        var high = new double[total];
-        var cumulative = new long[total];
+        double[] low = GC.AllocateUninitializedArray<double>(total);
+        double[] high = GC.AllocateUninitializedArray<double>(total);
+        long[] cumulative = GC.AllocateUninitializedArray<long>(total);
         long running = 0;
         int at = 0;
 
@@ -138,7 +138,7 @@ internal sealed class LogBucketView
     /// <summary>The bucket midpoints with cumulative counts, as a weighted sorted view (for the MAD estimate).</summary>
     public KllSortedView Midpoints()
     {
-        var values = new double[_cumulative.Length];
+        double[] values = GC.AllocateUninitializedArray<double>(_cumulative.Length);
         for (int i = 0; i < values.Length; i++)
         {
             values[i] = Middle(i);

@@ -1,3 +1,5 @@
+using System.Buffers;
+
 namespace SummaryService.Sketches.Quantiles;
 
 /// <summary>
@@ -337,38 +339,52 @@ public sealed class KllSketch
     /// <summary>Builds the sorted, weighted view that answers rank and quantile queries.</summary>
     public KllSortedView CreateView()
     {
-        var keys = new long[_retained];
-        var weights = new long[_retained];
-        var scratchKeys = new long[_retained];
-        var scratchWeights = new long[_retained];
-
-        // Level 0 is the only unsorted level; every level above is kept sorted, so the view is a
-        // sequence of linear merges rather than a sort of everything.
-        int filled = _sizes[0];
-        _levels[0].AsSpan(0, filled).CopyTo(keys);
-        RunSort.Sort(keys.AsSpan(0, filled));
-        weights.AsSpan(0, filled).Fill(1);
-        for (int h = 1; h < _levelCount; h++)
+        // The merges work in four borrowed arrays; only the values and the running weights outlive
+        // this call, each written once into an array of its own.
+        long[] keys = ArrayPool<long>.Shared.Rent(_retained);
+        long[] weights = ArrayPool<long>.Shared.Rent(_retained);
+        long[] scratchKeys = ArrayPool<long>.Shared.Rent(_retained);
+        long[] scratchWeights = ArrayPool<long>.Shared.Rent(_retained);
+        try
         {
-            int size = _sizes[h];
-            if (size == 0)
+            // Level 0 is the only unsorted level; every level above is kept sorted, so the view is a
+            // sequence of linear merges rather than a sort of everything.
+            int filled = _sizes[0];
+            _levels[0].AsSpan(0, filled).CopyTo(keys);
+            RunSort.Sort(keys.AsSpan(0, filled));
+            weights.AsSpan(0, filled).Fill(1);
+            for (int h = 1; h < _levelCount; h++)
             {
-                continue;
+                int size = _sizes[h];
+                if (size == 0)
+                {
+                    continue;
+                }
+
+                long weight = 1L << h;
+                MergeWeighted(keys, weights, filled, _levels[h].AsSpan(0, size), weight, scratchKeys, scratchWeights);
+                (keys, scratchKeys) = (scratchKeys, keys);
+                (weights, scratchWeights) = (scratchWeights, weights);
+                filled += size;
             }
 
-            long weight = 1L << h;
-            MergeWeighted(keys, weights, filled, _levels[h].AsSpan(0, size), weight, scratchKeys, scratchWeights);
-            (keys, scratchKeys) = (scratchKeys, keys);
-            (weights, scratchWeights) = (scratchWeights, weights);
-            filled += size;
-        }
+            long[] cumulative = GC.AllocateUninitializedArray<long>(filled);
+            long running = 0;
+            for (int i = 0; i < filled; i++)
+            {
+                running += weights[i];
+                cumulative[i] = running;
+            }
 
-        for (int i = 1; i < weights.Length; i++)
+            return new KllSortedView(OrderKeys.ToValues(keys.AsSpan(0, filled)), cumulative, Count, Min, Max);
+        }
+        finally
         {
-            weights[i] += weights[i - 1];
+            ArrayPool<long>.Shared.Return(keys);
+            ArrayPool<long>.Shared.Return(weights);
+            ArrayPool<long>.Shared.Return(scratchKeys);
+            ArrayPool<long>.Shared.Return(scratchWeights);
         }
-
-        return new KllSortedView(OrderKeys.ToValues(keys), weights, Count, Min, Max);
     }
 
     /// <summary>Capacity of level <paramref name="level"/> when <paramref name="levelCount"/> levels are in use.</summary>

@@ -60,7 +60,7 @@ internal static class OrderKeys
     /// <summary>The values of <paramref name="keys"/> as a new array.</summary>
     public static double[] ToValues(ReadOnlySpan<long> keys)
     {
-        var values = new double[keys.Length];
+        double[] values = GC.AllocateUninitializedArray<double>(keys.Length);
         ToValues(keys, values);
         return values;
     }

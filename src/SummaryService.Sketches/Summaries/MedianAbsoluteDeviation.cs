@@ -20,11 +20,14 @@ namespace SummaryService.Sketches.Summaries;
 /// </remarks>
 internal static class MedianAbsoluteDeviation
 {
-    // 2^−60 of the data's range: finer than any retained item can resolve. Where log buckets take
-    // part the interval is at least a bucket wide, so 2^−32 of the range is ample and the end is
-    // found in about half the steps; each step reads both parts' counts.
+    // Without log buckets: bisection over the data's range down to adjacent doubles (60 halvings of
+    // the range), finer than any retained item can resolve.
     private const int BisectionSteps = 60;
-    private const int BisectionStepsWithBuckets = 32;
+
+    // With log buckets the interval is at least a bucket wide (≈1% of the MAD), so each end is found
+    // to 2^−20 of the MAD (~1e-6) by a search that starts at the estimate: both ends lie within a
+    // few buckets of it, and every step reads both parts' counts. Each end is rounded outward.
+    private const double BucketResolution = 1.0 / (1 << 20);
 
     /// <summary>
     /// The MAD and its interval, with the source of each end: the weaker of the sources of the two
@@ -34,7 +37,7 @@ internal static class MedianAbsoluteDeviation
     {
         KllSortedView view = bounds.EstimateView!;
         double median = view.Quantile(0.5);
-        double mad = Deviations(view, median).Quantile(0.5);
+        double mad = MedianOfDeviations(view, median);
         if (bounds.Exact)
         {
             return (mad, mad, mad, BoundSource.Exact, BoundSource.Exact);
@@ -56,14 +59,31 @@ internal static class MedianAbsoluteDeviation
         double LowerCountWithin(double a) =>
             bounds.CountBelow(medianLow + a, strict: false, rankError).Low - bounds.CountBelow(medianHigh - a, strict: true, rankError).High;
 
-        int steps = bounds.Buckets is null ? BisectionSteps : BisectionStepsWithBuckets;
-        double LowerEnd(double j) => LargestWhere(a => UpperCountCloserThan(a) < j, span, steps);
-        double UpperEnd(double j) => SmallestWhere(a => LowerCountWithin(a) >= j, span, steps);
+        double low;
+        double high;
+        double low0;
+        double high0;
+        if (bounds.Buckets is null)
+        {
+            double LowerEnd(double j) => LargestWhere(a => UpperCountCloserThan(a) < j, span, BisectionSteps);
+            double UpperEnd(double j) => SmallestWhere(a => LowerCountWithin(a) >= j, span, BisectionSteps);
+            low0 = LowerEnd(j0);
+            high0 = UpperEnd(j0);
+            low = f == 0 ? low0 : low0 + (f * (LowerEnd(j1) - low0));
+            high = f == 0 ? high0 : high0 + (f * (UpperEnd(j1) - high0));
+        }
+        else
+        {
+            // The lower ends are searched below the estimate and the upper ends above it (the final
+            // interval is widened to hold the estimate anyway), and the second order statistic's
+            // ends from the first's, which they can only exceed.
+            double step = (mad > 0 ? mad : span) * BucketResolution;
+            low0 = MonotoneBoundary.Near(a => UpperCountCloserThan(a) < j0, 0, mad, mad, step).LastTrue;
+            high0 = MonotoneBoundary.Near(a => LowerCountWithin(a) < j0, mad, span, mad, step).FirstFalse;
+            low = f == 0 ? low0 : low0 + (f * (MonotoneBoundary.Near(a => UpperCountCloserThan(a) < j1, low0, mad, low0, step).LastTrue - low0));
+            high = f == 0 ? high0 : high0 + (f * (MonotoneBoundary.Near(a => LowerCountWithin(a) < j1, high0, span, high0, step).FirstFalse - high0));
+        }
 
-        double low0 = LowerEnd(j0);
-        double high0 = UpperEnd(j0);
-        double low = f == 0 ? low0 : low0 + (f * (LowerEnd(j1) - low0));
-        double high = f == 0 ? high0 : high0 + (f * (UpperEnd(j1) - high0));
         BoundSource lowSource = Bounded.Weaker(
             Bounded.Weaker(bounds.CountBelow(medianHigh + low0, strict: true, rankError).HighSource, bounds.CountBelow(medianLow - low0, strict: false, rankError).LowSource),
             Bounded.Weaker(medianInterval.LowSource, medianInterval.HighSource));
@@ -73,59 +93,64 @@ internal static class MedianAbsoluteDeviation
         return (mad, Math.Min(low, mad), Math.Max(high, mad), lowSource, highSource);
     }
 
-    /// <summary>Deviations of the weighted values from <paramref name="centre"/>, ascending, with their weights.</summary>
-    private static KllSortedView Deviations(KllSortedView view, double centre)
+    /// <summary>
+    /// The definition-7 median of the weighted values' deviations from <paramref name="centre"/>,
+    /// read as <see cref="KllSortedView.Quantile"/> would read it from the sorted deviations.
+    /// </summary>
+    /// <remarks>
+    /// The deviations come out in ascending order by walking outward from the centre on both sides
+    /// (the values are sorted), so the walk stops at the two order statistics the median needs —
+    /// half the values — without building the deviations' view.
+    /// </remarks>
+    private static double MedianOfDeviations(KllSortedView view, double centre)
     {
         ReadOnlySpan<double> values = view.Values;
         ReadOnlySpan<long> cumulative = view.CumulativeWeights;
-        int split = 0;
-        while (split < values.Length && values[split] <= centre)
-        {
-            split++;
-        }
+        long n = view.Count;
+        double h = ((n - 1) * 0.5) + 1d;
+        double floor = Math.Floor(h);
 
-        var deviations = new double[values.Length];
-        var weights = new long[values.Length];
-        int left = split - 1;
-        int right = split;
-        for (int write = 0; write < deviations.Length; write++)
+        // As ValueAtRank: a rank at or below 1 is the smallest deviation, at or above n the largest.
+        double lowerRank = Math.Clamp(floor, 1, n);
+        double upperRank = Math.Clamp(Math.Min(floor + 1, n), 1, n);
+        int left = UpperBound(values, centre) - 1;
+        int right = left + 1;
+        int last = values.Length - 1;
+        long running = 0;
+        double lower = double.NaN;
+        double upper = double.NaN;
+        for (int taken = 0; taken <= last; taken++)
         {
-            bool takeLeft = right >= values.Length || (left >= 0 && centre - values[left] <= values[right] - centre);
+            bool takeLeft = right > last || (left >= 0 && centre - values[left] <= values[right] - centre);
             int index = takeLeft ? left-- : right++;
-            deviations[write] = takeLeft ? centre - values[index] : values[index] - centre;
-            long weight = cumulative[index] - (index == 0 ? 0 : cumulative[index - 1]);
-            weights[write] = (write == 0 ? 0 : weights[write - 1]) + weight;
-        }
-
-        return new KllSortedView(deviations, weights, view.Count, deviations[0], deviations[^1]);
-    }
-
-    // Bisection on a monotone predicate over [0, limit]; stops when no double lies strictly between.
-    private static double LargestWhere(Func<double, bool> holds, double limit, int steps)
-    {
-        if (!holds(0))
-        {
-            return 0;
-        }
-
-        if (holds(limit))
-        {
-            return limit;
-        }
-
-        double lo = 0;
-        double hi = limit;
-        for (int step = 0; step < steps; step++)
-        {
-            double mid = lo + ((hi - lo) / 2);
-            if (mid <= lo || mid >= hi)
+            double deviation = takeLeft ? centre - values[index] : values[index] - centre;
+            running += cumulative[index] - (index == 0 ? 0 : cumulative[index - 1]);
+            if (double.IsNaN(lower) && (running >= lowerRank || taken == last))
             {
-                break;
+                lower = deviation;
             }
 
-            if (holds(mid))
+            if (running >= upperRank || taken == last)
             {
-                lo = mid;
+                upper = deviation;
+                break;
+            }
+        }
+
+        return lower + ((h - floor) * (upper - lower));
+    }
+
+    // Number of leading values at or below x; the values ascend.
+    private static int UpperBound(ReadOnlySpan<double> values, double x)
+    {
+        int lo = 0;
+        int hi = values.Length;
+        while (lo < hi)
+        {
+            int mid = (lo + hi) >>> 1;
+            if (values[mid] <= x)
+            {
+                lo = mid + 1;
             }
             else
             {
@@ -136,6 +161,17 @@ internal static class MedianAbsoluteDeviation
         return lo;
     }
 
+    // Bisection on a monotone predicate over [0, limit], down to adjacent doubles.
+    private static double LargestWhere(Func<double, bool> holds, double limit, int steps)
+    {
+        if (!holds(0))
+        {
+            return 0;
+        }
+
+        return holds(limit) ? limit : MonotoneBoundary.Bisect(holds, 0, limit, 0, steps).LastTrue;
+    }
+
     private static double SmallestWhere(Func<double, bool> holds, double limit, int steps)
     {
         if (holds(0))
@@ -143,31 +179,6 @@ internal static class MedianAbsoluteDeviation
             return 0;
         }
 
-        if (!holds(limit))
-        {
-            return limit;
-        }
-
-        double lo = 0;
-        double hi = limit;
-        for (int step = 0; step < steps; step++)
-        {
-            double mid = lo + ((hi - lo) / 2);
-            if (mid <= lo || mid >= hi)
-            {
-                break;
-            }
-
-            if (holds(mid))
-            {
-                hi = mid;
-            }
-            else
-            {
-                lo = mid;
-            }
-        }
-
-        return hi;
+        return !holds(limit) ? limit : MonotoneBoundary.Bisect(a => !holds(a), 0, limit, 0, steps).FirstFalse;
     }
 }

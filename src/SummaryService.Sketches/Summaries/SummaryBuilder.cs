@@ -1,4 +1,3 @@
-using MathNet.Numerics.Distributions;
 using SummaryService.Sketches.Buckets;
 using SummaryService.Sketches.Modes;
 using SummaryService.Sketches.Moments;
@@ -104,7 +103,7 @@ internal static class SummaryBuilder
         double nd = n;
         double? sd = m.StandardDeviation;
         double? se = sd is { } s ? s / Math.Sqrt(nd) : null;
-        double? halfWidth = se is { } e ? e * StudentT.InvCDF(0, 1, nd - 1, 1 - ((1 - confidence) / 2)) : null;
+        double? halfWidth = se is { } e ? e * StudentTCritical.TwoSided(nd - 1, confidence) : null;
         return new Summary
         {
             Count = n,

@@ -7,7 +7,7 @@ namespace SummaryService.Sketches.Tests.Buckets;
 
 /// <summary>
 /// The full form's intervals — KLL at the confidence ∩ log buckets ∩ [min, max] — hold the exact
-/// answer (MathNet R7 for quantiles, counting for shares and bins) in at least the stated share of
+/// answer (MathNet R7 for quantiles and the MAD's two medians, counting for shares and bins) in at least the stated share of
 /// independently seeded trials: the KLL part's failure probability is the only one left, and the
 /// intersection must not lose coverage by cutting the KLL interval with the certain ones.
 /// </summary>
@@ -35,6 +35,8 @@ public class IntersectedCoverageTests
         var binMisses = new int[edges.Length - 1];
         var options = new SummaryOptions { Quantiles = Probabilities, RankOf = thresholds, Histogram = HistogramSpec.WithEdges(edges), Confidence = confidence };
         int logHeld = 0;
+        int madMisses = 0;
+        double madTruth = reference.Mad();
         for (int trial = 0; trial < Trials; trial++)
         {
             var sketch = new SeriesSketch(seed: (ulong)trial + 1);
@@ -53,6 +55,7 @@ public class IntersectedCoverageTests
                 logHeld += e.LowSource == BoundSource.LogBuckets || e.HighSource == BoundSource.LogBuckets ? 1 : 0;
             }
 
+            madMisses += s.MadLow <= madTruth && madTruth <= s.MadHigh ? 0 : 1;
             for (int i = 0; i < thresholds.Length; i++)
             {
                 double truth = reference.CountAtOrBelow(thresholds[i]) / (double)values.Length;
@@ -71,6 +74,7 @@ public class IntersectedCoverageTests
         int allowed = QuantileTrialCounter.AllowedMisses(Trials, 1 - confidence);
         Assert.All(quantileMisses, m => Assert.True(m <= allowed, $"quantile intervals missed {m} of {Trials} (allowed {allowed})"));
         Assert.All(shareMisses, m => Assert.True(m <= allowed, $"share intervals missed {m} of {Trials} (allowed {allowed})"));
+        Assert.True(madMisses <= allowed, $"MAD intervals missed {madMisses} of {Trials} (allowed {allowed})");
         Assert.All(binMisses, m => Assert.True(m <= allowed, $"bin count intervals missed {m} of {Trials} (allowed {allowed})"));
 
         // The log buckets did narrow the answers: most quantile intervals have an end from them.
