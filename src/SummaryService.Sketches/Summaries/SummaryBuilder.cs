@@ -102,11 +102,13 @@ internal static class SummaryBuilder
     {
         long n = m.Count;
         double nd = n;
-        double? variance = n >= 2 ? m.M2 / (nd - 1) : null;
+        // Values that arrived as totals only leave the spread unknown: absent, never 0.
+        bool known = m.CentralMomentsKnown;
+        double? variance = n >= 2 && known ? m.M2 / (nd - 1) : null;
         double? sd = variance is { } v ? Math.Sqrt(v) : null;
         double? se = sd is { } s ? s / Math.Sqrt(nd) : null;
         double? halfWidth = se is { } e ? e * StudentT.InvCDF(0, 1, nd - 1, 1 - ((1 - confidence) / 2)) : null;
-        bool spread = m.M2 > 0;
+        bool spread = known && m.M2 > 0;
         double? skewness = null;
         double? kurtosis = null;
         if (spread && n >= 3)
@@ -132,7 +134,7 @@ internal static class SummaryBuilder
             MeanHigh = halfWidth is { } hi ? m.Mean + hi : null,
             StandardError = se,
             Variance = variance,
-            PopulationVariance = m.M2 / nd,
+            PopulationVariance = known ? m.M2 / nd : null,
             StandardDeviation = sd,
             Skewness = skewness,
             Kurtosis = kurtosis,
