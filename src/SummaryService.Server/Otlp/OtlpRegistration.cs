@@ -31,6 +31,9 @@ public static class OtlpRegistration
     public static WebApplication MapOtlpMetrics(this WebApplication app)
     {
         ArgumentNullException.ThrowIfNull(app);
+
+        // Made now, before the server listens: its clock reading decides which streams began while it listened.
+        app.Services.GetRequiredService<CumulativeStreams>();
         app.MapGrpcService<OtlpMetricsService>();
         app.MapOtlpHttp();
         return app;
