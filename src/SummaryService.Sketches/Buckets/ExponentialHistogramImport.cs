@@ -48,7 +48,12 @@ public static class ExponentialHistogramImport
     {
         ArgumentNullException.ThrowIfNull(point);
         ArgumentNullException.ThrowIfNull(options);
-        return TargetScale(point, options, out string? reason) is null ? reason : null;
+        if (TargetScale(point, options, out string? reason) is not { } scale)
+        {
+            return reason;
+        }
+
+        return ExtremeOutsideBuckets(point, scale);
     }
 
     /// <summary>The sketch of the point; the point must be representable (<see cref="Unrepresentable"/>) and consistent.</summary>
@@ -117,6 +122,28 @@ public static class ExponentialHistogramImport
             scale--;
         }
     }
+
+    // Min and max must lie where the buckets say the smallest and largest values are (the lowest
+    // and highest occupied bucket of their sign, or zero), else the range and the buckets would
+    // bound quantiles differently. One bucket of slack at the folded scale allows a producer whose
+    // index function rounds differently at a bucket's very edge.
+    private static string? ExtremeOutsideBuckets(ExponentialHistogramPoint point, int scale)
+    {
+        int shift = point.Scale - scale;
+        var mapping = ExponentialMapping.ForScale(scale);
+        (long First, long Last)? positive = Occupied(point.PositiveOffset, point.Positive);
+        (long First, long Last)? negative = Occupied(point.NegativeOffset, point.Negative);
+        bool zeros = point.ZeroCount > 0;
+        bool minFits = negative is { } n
+            ? point.Min < 0 && Near(mapping.IndexOf(-point.Min), n.Last >> shift)
+            : zeros ? point.Min == 0 : positive is { } p && point.Min > 0 && Near(mapping.IndexOf(point.Min), p.First >> shift);
+        bool maxFits = positive is { } q
+            ? point.Max > 0 && Near(mapping.IndexOf(point.Max), q.Last >> shift)
+            : zeros ? point.Max == 0 : negative is { } m && point.Max < 0 && Near(mapping.IndexOf(-point.Max), m.First >> shift);
+        return minFits && maxFits ? null : $"has min {point.Min} and max {point.Max}, which do not lie in its lowest and highest occupied buckets";
+    }
+
+    private static bool Near(int index, long expected) => Math.Abs(index - expected) <= 1;
 
     // First and last index with a non-zero count, or null when every count is zero.
     private static (long First, long Last)? Occupied(int offset, IReadOnlyList<ulong> counts)

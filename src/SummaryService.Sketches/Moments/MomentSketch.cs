@@ -82,6 +82,7 @@ public sealed class MomentSketch
         M4 += (term1 * deltaN2 * (((double)n * n) - (3.0 * n) + 3.0)) + (6.0 * deltaN2 * M2) - (4.0 * deltaN * M3);
         M3 += (term1 * deltaN * (n - 2)) - (3.0 * deltaN * M2);
         M2 += term1;
+        ForgetSpreadIfUnknown();
         Count = n;
         if (value < Min)
         {
@@ -254,6 +255,17 @@ public sealed class MomentSketch
         Count = na + nb;
         Min = Math.Min(Min, minB);
         Max = Math.Max(Max, maxB);
+        ForgetSpreadIfUnknown();
+    }
+
+    // Once some values are known only by their totals, the moment sums would describe part of the
+    // values as if it were all of them: they stay 0, as stored sketches of unknown spread say.
+    private void ForgetSpreadIfUnknown()
+    {
+        if (!CentralMomentsKnown)
+        {
+            M2 = M3 = M4 = 0;
+        }
     }
 
     private void AddToSum(double value)

@@ -74,6 +74,21 @@ public sealed class ExportRulesTests
     }
 
     [Fact]
+    public async Task An_exponential_point_whose_min_lies_outside_its_buckets_is_rejected_not_merged()
+    {
+        await using var server = new TestServer();
+        var client = new MetricsService.MetricsServiceClient(server.Channel);
+
+        // Scale 0: index 3 holds (8, 16] (data model: ExponentialHistogram), so a min of 1 cannot be.
+        var reply = await client.ExportAsync(Request(ExponentialMetric("hub.weight", Exponential(scale: 0, offset: 3, counts: [2], min: 1, max: 12, sum: 13))));
+
+        Assert.Equal(1, reply.PartialSuccess.RejectedDataPoints);
+        Assert.Contains("min 1 and max 12", reply.PartialSuccess.ErrorMessage, StringComparison.Ordinal);
+        var nothing = await Assert.ThrowsAsync<RpcException>(() => server.Query.SummarizeAsync(Requests.Summarize("hub.weight")).ResponseAsync);
+        Assert.Equal(StatusCode.NotFound, nothing.StatusCode);
+    }
+
+    [Fact]
     public async Task Exponential_buckets_are_merged_exactly_so_ranks_at_bucket_edges_are_exact()
     {
         await using var server = new TestServer();
