@@ -30,9 +30,10 @@ public sealed class SeriesSketch
     /// <summary>Most values a sketch keeps raw before it becomes the full composite (lower when k or the mode exact limit is lower).</summary>
     public const int SmallValueLimit = 200;
 
-    // Object header 16 B and eight fields of 8 B; a moment sketch is a 16 B header and nine 8 B fields.
+    // Object header 16 B and eight fields of 8 B; a moment sketch is a 16 B header, nine 8 B fields
+    // and a flag padded to 8 B.
     private const long OwnBytes = 16 + (8 * 8);
-    private const long MomentBytes = 16 + (9 * 8);
+    private const long MomentBytes = 16 + (10 * 8);
     private const long ArrayHeaderBytes = 24;
 
     private readonly MomentSketch _moments;

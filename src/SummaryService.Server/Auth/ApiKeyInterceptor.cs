@@ -10,8 +10,6 @@ namespace SummaryService.Server.Auth;
 /// </summary>
 public sealed class ApiKeyInterceptor(ApiKeyRegistry registry) : Interceptor
 {
-    private const string ContractPackage = "/summary.v1.";
-
     /// <inheritdoc/>
     public override Task<TResponse> UnaryServerHandler<TRequest, TResponse>(TRequest request, ServerCallContext context, UnaryServerMethod<TRequest, TResponse> continuation)
     {
@@ -42,19 +40,21 @@ public sealed class ApiKeyInterceptor(ApiKeyRegistry registry) : Interceptor
 
     /// <summary>
     /// The scope a method of the contract needs, from its service name alone: every Ingest call
-    /// writes, every Query call (the catalogue included) reads, every Admin call is upkeep.
+    /// writes (and so does an OTLP metrics export), every Query call (the catalogue included) reads,
+    /// every Admin call is upkeep; health and reflection need none.
     /// </summary>
     internal static Scope ScopeOf(string method) => method switch
     {
         _ when method.StartsWith("/summary.v1.Ingest/", StringComparison.Ordinal) => Scope.Write,
         _ when method.StartsWith("/summary.v1.Query/", StringComparison.Ordinal) => Scope.Read,
         _ when method.StartsWith("/summary.v1.Admin/", StringComparison.Ordinal) => Scope.Admin,
+        _ when method.StartsWith("/opentelemetry.proto.collector.metrics.v1.MetricsService/", StringComparison.Ordinal) => Scope.Write,
         _ => Scope.None,
     };
 
     private void Authenticate(ServerCallContext context)
     {
-        if (!registry.Enabled || !context.Method.StartsWith(ContractPackage, StringComparison.Ordinal))
+        if (!registry.Enabled || ScopeOf(context.Method) == Scope.None)
         {
             return;
         }

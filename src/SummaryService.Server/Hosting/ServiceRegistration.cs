@@ -7,6 +7,7 @@ using OpenTelemetry.Trace;
 using SummaryService.Server.Auth;
 using SummaryService.Server.Configuration;
 using SummaryService.Server.Diagnostics;
+using SummaryService.Server.Otlp;
 using SummaryService.Server.Services;
 using SummaryService.Server.Telemetry;
 using SummaryService.Server.Validation;
@@ -43,6 +44,7 @@ public static class ServiceRegistration
         services.AddHostedService<StartupNotices>();
         services.AddHostedService<SnapshotService>();
         services.AddHostedService<RollupService>();
+        services.AddOtlpMetrics(builder.Configuration);
 
         int maxMessage = builder.Configuration.GetSection(ServerSettings.SectionName).Get<ServerSettings>()?.MaxMessageBytes ?? new ServerSettings().MaxMessageBytes;
         services.AddGrpc(options =>
@@ -78,6 +80,7 @@ public static class ServiceRegistration
         app.MapGrpcService<IngestService>();
         app.MapGrpcService<QueryService>();
         app.MapGrpcService<AdminService>();
+        app.MapOtlpMetrics();
         app.MapGrpcHealthChecksService();
         app.MapGrpcReflectionService();
         app.MapSummaryPage();

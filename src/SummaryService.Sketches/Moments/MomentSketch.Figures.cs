@@ -4,7 +4,9 @@ namespace SummaryService.Sketches.Moments;
 /// The figures derived from the moment sums, each defined once here (summaries read them from
 /// here), with the conventions of a numerics library's moments accumulator: sample figures with
 /// their bias corrections beside the population ones. A figure that is undefined for the data is
-/// null, never 0 or NaN, so a caller cannot mistake "no spread measured" for "no spread".
+/// null, never 0 or NaN, so a caller cannot mistake "no spread measured" for "no spread". Values
+/// that arrived as totals only (<see cref="CentralMomentsKnown"/> false, e.g. an OpenTelemetry
+/// histogram point's count and sum) leave every spread and shape figure undefined.
 /// </summary>
 /// <remarks>
 /// n is <see cref="Count"/>, M2, M3, M4 the central moment sums. Definitions: NIST/SEMATECH
@@ -18,13 +20,13 @@ public sealed partial class MomentSketch
     /// Sample variance s² = M2 / (n − 1): Bessel's normalizer n − 1 makes it unbiased for the variance
     /// of the population the values were drawn from. Undefined for fewer than two values.
     /// </summary>
-    public double? Variance => Count >= 2 ? M2 / (Count - 1) : null;
+    public double? Variance => Count >= 2 && CentralMomentsKnown ? M2 / (Count - 1) : null;
 
     /// <summary>
     /// Population variance σ² = M2 / n, the variance of exactly these values (normalizer n; biased
     /// low as an estimate for a larger population). 0 for one value; undefined for none.
     /// </summary>
-    public double? PopulationVariance => Count >= 1 ? M2 / Count : null;
+    public double? PopulationVariance => Count >= 1 && CentralMomentsKnown ? M2 / Count : null;
 
     /// <summary>Sample standard deviation s = √(M2 / (n − 1)). Undefined for fewer than two values.</summary>
     public double? StandardDeviation => Variance is { } v ? Math.Sqrt(v) : null;
@@ -45,7 +47,7 @@ public sealed partial class MomentSketch
     /// Population skewness g1 = √n · M3 / M2^1.5 (the third standardized moment, normalizer n).
     /// Undefined for no values or when every value is equal (M2 = 0).
     /// </summary>
-    public double? PopulationSkewness => Count >= 1 && M2 > 0 ? Math.Sqrt(Count) * M3 / Math.Pow(M2, 1.5) : null;
+    public double? PopulationSkewness => Count >= 1 && CentralMomentsKnown && M2 > 0 ? Math.Sqrt(Count) * M3 / Math.Pow(M2, 1.5) : null;
 
     /// <summary>
     /// Bias-corrected excess kurtosis G2 = (n − 1) / ((n − 2)(n − 3)) · ((n + 1) · g2 + 6), the sample
@@ -70,7 +72,7 @@ public sealed partial class MomentSketch
     /// Population excess kurtosis g2 = n · M4 / M2² − 3 (the fourth standardized moment, normalizer
     /// n, less the normal's 3). Undefined for no values or when every value is equal (M2 = 0).
     /// </summary>
-    public double? PopulationExcessKurtosis => Count >= 1 && M2 > 0 ? ((double)Count * M4 / (M2 * M2)) - 3 : null;
+    public double? PopulationExcessKurtosis => Count >= 1 && CentralMomentsKnown && M2 > 0 ? ((double)Count * M4 / (M2 * M2)) - 3 : null;
 
     /// <summary>
     /// A new sketch of both streams, leaving <paramref name="a"/> and <paramref name="b"/> as they

@@ -39,6 +39,12 @@ public sealed partial class MomentSketch
     /// <summary>Σ(x − mean)⁴.</summary>
     public double M4 { get; private set; }
 
+    /// <summary>
+    /// False when some values arrived only as totals (count, sum, min, max; see
+    /// <see cref="FromTotals"/>): M2, M3 and M4 then say nothing, and the figures built on them are absent.
+    /// </summary>
+    public bool CentralMomentsKnown { get; private set; } = true;
+
     /// <summary>Sum of the values, Neumaier-compensated so that it stays exact to the last bits on long streams.</summary>
     public double Sum => _sum + _sumCompensation;
 
@@ -76,6 +82,7 @@ public sealed partial class MomentSketch
         M4 += (term1 * deltaN2 * (((double)n * n) - (3.0 * n) + 3.0)) + (6.0 * deltaN2 * M2) - (4.0 * deltaN * M3);
         M3 += (term1 * deltaN * (n - 2)) - (3.0 * deltaN * M2);
         M2 += term1;
+        ForgetSpreadIfUnknown();
         Count = n;
         if (value < Min)
         {
@@ -149,6 +156,26 @@ public sealed partial class MomentSketch
         CombineWith(count, min, max, shift + c, Math.Max(m2, 0.0), m3, Math.Max(m4, 0.0));
     }
 
+    /// <summary>
+    /// A sketch of values known only by their count, sum and extremes (a histogram's totals): the
+    /// mean is sum / count; M2, M3 and M4 are unknown, and stay so through merges.
+    /// </summary>
+    public static MomentSketch FromTotals(long count, double sum, double min, double max)
+    {
+        ArgumentOutOfRangeException.ThrowIfNegativeOrZero(count);
+        FiniteValues.Require(sum);
+        FiniteValues.Require(min);
+        FiniteValues.Require(max);
+        if (min > max)
+        {
+            throw new ArgumentException($"min {min} exceeds max {max}.", nameof(min));
+        }
+
+        var sketch = new MomentSketch();
+        sketch.Restore(count, min, max, sum, 0, Math.Clamp(sum / count, min, max), 0, 0, 0, centralMomentsKnown: false);
+        return sketch;
+    }
+
     /// <summary>Merges another sketch into this one; the result is the sketch of both streams.</summary>
     public void Merge(MomentSketch other)
     {
@@ -157,6 +184,8 @@ public sealed partial class MomentSketch
         {
             return;
         }
+
+        CentralMomentsKnown &= other.CentralMomentsKnown;
 
         double otherSum = other._sum;
         double otherCompensation = other._sumCompensation;
@@ -169,8 +198,9 @@ public sealed partial class MomentSketch
     public MomentSketch Clone() => (MomentSketch)MemberwiseClone();
 
     /// <summary>Sets the whole state, as read back from storage; the caller has validated it.</summary>
-    internal void Restore(long count, double min, double max, double sum, double compensation, double mean, double m2, double m3, double m4)
+    internal void Restore(long count, double min, double max, double sum, double compensation, double mean, double m2, double m3, double m4, bool centralMomentsKnown = true)
     {
+        CentralMomentsKnown = centralMomentsKnown;
         Count = count;
         Min = count == 0 ? double.NaN : min;
         Max = count == 0 ? double.NaN : max;
@@ -225,6 +255,17 @@ public sealed partial class MomentSketch
         Count = na + nb;
         Min = Math.Min(Min, minB);
         Max = Math.Max(Max, maxB);
+        ForgetSpreadIfUnknown();
+    }
+
+    // Once some values are known only by their totals, the moment sums would describe part of the
+    // values as if it were all of them: they stay 0, as stored sketches of unknown spread say.
+    private void ForgetSpreadIfUnknown()
+    {
+        if (!CentralMomentsKnown)
+        {
+            M2 = M3 = M4 = 0;
+        }
     }
 
     private void AddToSum(double value)

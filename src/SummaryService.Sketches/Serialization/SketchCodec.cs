@@ -232,6 +232,7 @@ public static class SketchCodec
             M2 = sketch.M2,
             M3 = sketch.M3,
             M4 = sketch.M4,
+            CentralMomentsUnknown = !sketch.CentralMomentsKnown,
         };
     }
 
@@ -265,8 +266,13 @@ public static class SketchCodec
             Check(state.Mean >= state.Min - slack && state.Mean <= state.Max + slack, $"moments.mean {state.Mean} lies outside [min {state.Min}, max {state.Max}].");
         }
 
+        if (state.CentralMomentsUnknown)
+        {
+            Check(state.M2 == 0 && state.M3 == 0 && state.M4 == 0, $"moments.central_moments_unknown is set but moments.m2, m3, m4 are {state.M2}, {state.M3}, {state.M4}; they must be 0.");
+        }
+
         var sketch = new MomentSketch();
-        sketch.Restore(count, state.Min, state.Max, state.Sum, state.SumCompensation, state.Mean, state.M2, state.M3, state.M4);
+        sketch.Restore(count, state.Min, state.Max, state.Sum, state.SumCompensation, state.Mean, state.M2, state.M3, state.M4, !state.CentralMomentsUnknown);
         return sketch;
     }
 

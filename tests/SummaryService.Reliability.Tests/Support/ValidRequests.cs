@@ -2,6 +2,8 @@ using System.Collections;
 using Google.Protobuf;
 using Google.Protobuf.Reflection;
 using Google.Protobuf.WellKnownTypes;
+using SummaryService.Contract.Otlp.Collector;
+using SummaryService.Contract.Otlp.Metrics;
 using SummaryService.Contract.V1;
 using SummaryService.Formats.V1;
 using SummaryService.Sketches;
@@ -19,6 +21,11 @@ internal static class ValidRequests
     /// <summary>The request, and whether it names a metric anywhere (false for store-wide operations).</summary>
     public static (IMessage Request, bool NamesMetric) For(MessageDescriptor type, string metric)
     {
+        if (type.FullName == ExportMetricsServiceRequest.Descriptor.FullName)
+        {
+            return (OtlpExport(metric), true);
+        }
+
         bool names = false;
         IMessage request = Build(type, metric, ref names);
         return (request, names);
@@ -61,6 +68,14 @@ internal static class ValidRequests
     // Of a oneof, its duration member if it has one (a window's trailing "last"), else its first.
     private static FieldDescriptor Preferred(OneofDescriptor oneof) =>
         oneof.Fields.FirstOrDefault(f => f.FieldType == FieldType.Message && f.MessageType.FullName == Duration.Descriptor.FullName) ?? oneof.Fields[0];
+
+    // An OTLP export names its metrics inside, where no field is called "metric": one gauge point now.
+    private static ExportMetricsServiceRequest OtlpExport(string metric)
+    {
+        var point = new NumberDataPoint { TimeUnixNano = (ulong)DateTimeOffset.UtcNow.ToUnixTimeMilliseconds() * 1_000_000UL, AsDouble = 1 };
+        var gauge = new Metric { Name = metric, Gauge = new Gauge { DataPoints = { point } } };
+        return new ExportMetricsServiceRequest { ResourceMetrics = { new ResourceMetrics { ScopeMetrics = { new ScopeMetrics { Metrics = { gauge } } } } } };
+    }
 
     private static SeriesSketchState Sketch()
     {
