@@ -35,8 +35,19 @@ internal sealed class MessageForge(Random random, long nowMs, IReadOnlyList<stri
     private static readonly string[] Awkward = ["", " ", "x\u0000y", "line\nbreak", "tab\there", "ünïcödé", "\u202Eright-to-left", "emoji 🦦", "a\u007Fb", "quote\"s", "%41", "\r\n", new string('m', 300), "\uFFFD"];
     private const int MaxDepth = 5;
 
+    // Nested messages per top-level message. Repeated fields nest five deep in an OTLP export, so
+    // without a cap one forged export holds thousands of points and takes as long as hundreds of
+    // other messages; past the cap, repeated message fields get no more elements.
+    private const int MaxNestedMessages = 2_000;
+
+    private int _nestedLeft;
+
     /// <summary>A random message of the given type.</summary>
-    public IMessage Build(MessageDescriptor descriptor) => Build(descriptor, depth: 0, fieldName: "");
+    public IMessage Build(MessageDescriptor descriptor)
+    {
+        _nestedLeft = MaxNestedMessages;
+        return Build(descriptor, depth: 0, fieldName: "");
+    }
 
     private IMessage Build(MessageDescriptor descriptor, int depth, string fieldName)
     {
@@ -51,6 +62,7 @@ internal sealed class MessageForge(Random random, long nowMs, IReadOnlyList<stri
         }
 
         var message = (IMessage)Activator.CreateInstance(descriptor.ClrType)!;
+        _nestedLeft--;
         if (depth > MaxDepth)
         {
             return message;
@@ -88,7 +100,7 @@ internal sealed class MessageForge(Random random, long nowMs, IReadOnlyList<stri
             {
                 var list = (IList)field.Accessor.GetValue(message);
                 int count = Chance(0.05) ? random.Next(50, 400) : random.Next(0, 12);
-                for (int i = 0; i < count; i++)
+                for (int i = 0; i < count && (field.FieldType != FieldType.Message || _nestedLeft > 0); i++)
                 {
                     list.Add(Value(field, depth, field.Name));
                 }
