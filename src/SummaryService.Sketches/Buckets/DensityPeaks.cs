@@ -33,11 +33,15 @@ internal static class DensityPeaks
     private static readonly double EffectiveWidth = 2 * Math.Sqrt(Math.PI);
 
     /// <summary>Peaks of both ranges, most prominent first, shares relative to <paramref name="total"/>.</summary>
-    public static List<ModeEstimate> Find(LogBucketSketch sketch, double min, double max, long total)
+    public static List<ModeEstimate> Find(LogBucketSketch sketch, double min, double max, long total) =>
+        Find(OccupiedLogBuckets.Of(sketch), min, max, total);
+
+    /// <summary>Peaks of both ranges of buckets already read out.</summary>
+    public static List<ModeEstimate> Find(OccupiedLogBuckets buckets, double min, double max, long total)
     {
         var peaks = new List<(double Prominence, ModeEstimate Mode)>();
-        AddPeaksOfRange(peaks, sketch.PositiveArrays(), sketch.Mapping, negative: false, min, max, total);
-        AddPeaksOfRange(peaks, sketch.NegativeArrays(), sketch.Mapping, negative: true, min, max, total);
+        AddPeaksOfRange(peaks, buckets.Positive, buckets.Mapping, negative: false, min, max, total);
+        AddPeaksOfRange(peaks, buckets.Negative, buckets.Mapping, negative: true, min, max, total);
         return peaks.OrderByDescending(p => p.Prominence).Select(p => p.Mode).ToList();
     }
 

@@ -48,11 +48,14 @@ internal sealed class LogBucketView
     }
 
     /// <summary>Reads a sketch whose values lie in [<paramref name="min"/>, <paramref name="max"/>].</summary>
-    public static LogBucketView Of(LogBucketSketch sketch, double min, double max)
+    public static LogBucketView Of(LogBucketSketch sketch, double min, double max) => Of(OccupiedLogBuckets.Of(sketch), min, max);
+
+    /// <summary>Reads buckets already read out of a sketch whose values lie in [<paramref name="min"/>, <paramref name="max"/>].</summary>
+    public static LogBucketView Of(OccupiedLogBuckets sketch, double min, double max)
     {
         ExponentialMapping mapping = sketch.Mapping;
-        (int[] negIndex, long[] negCount) = sketch.NegativeArrays();
-        (int[] posIndex, long[] posCount) = sketch.PositiveArrays();
+        (int[] negIndex, long[] negCount) = sketch.Negative;
+        (int[] posIndex, long[] posCount) = sketch.Positive;
         int zeros = sketch.ZeroCount > 0 ? 1 : 0;
         int total = negIndex.Length + zeros + posIndex.Length;
         double[] low = GC.AllocateUninitializedArray<double>(total);
@@ -120,8 +123,9 @@ internal sealed class LogBucketView
     public (double Estimate, long Low, long High) CountBelow(double x, bool strict)
     {
         // Buckets wholly at or below x (or below x) count fully; the one x cuts may count in part.
+        // Buckets are disjoint but for shared ends, so at most the next one is touched.
         int whole = Leading(_high, x, strict);
-        int touched = Leading(_low, x, strict);
+        int touched = whole < _low.Length && (strict ? _low[whole] < x : _low[whole] <= x) ? whole + 1 : whole;
         long low = whole == 0 ? 0 : _cumulative[whole - 1];
         long high = touched == 0 ? 0 : _cumulative[touched - 1];
         double estimate = low;

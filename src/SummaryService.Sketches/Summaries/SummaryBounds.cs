@@ -23,8 +23,12 @@ internal sealed class SummaryBounds
         _max = moments.Max;
         _rank = quantiles is null ? null : new RankBounds(quantiles, confidence);
         Exact = quantiles?.IsExact == true;
-        Buckets = buckets is null ? null : LogBucketView.Of(buckets, _min, _max);
+        Occupied = buckets is null ? null : OccupiedLogBuckets.Of(buckets);
+        Buckets = Occupied is null ? null : LogBucketView.Of(Occupied, _min, _max);
     }
+
+    /// <summary>The log buckets as read out for this summary, shared with its other readers.</summary>
+    public OccupiedLogBuckets? Occupied { get; }
 
     public long Count { get; }
 

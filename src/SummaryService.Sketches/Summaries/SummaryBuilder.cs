@@ -30,7 +30,7 @@ internal static class SummaryBuilder
         var upperQuartile = bounds.Quantile(0.75);
         double iqr = upperQuartile.Value - lowerQuartile.Value;
         var mad = Mad(bounds);
-        var (modeList, omitted) = Modes(modes, buckets, moments, options.MaxModes);
+        var (modeList, omitted) = Modes(modes, bounds.Occupied, moments, options.MaxModes);
 
         return MomentFigures(moments, options.Confidence) with
         {
@@ -64,7 +64,7 @@ internal static class SummaryBuilder
 
     // Discrete data: the mode sketch's values. Continuous data (or an aged bucket past its exact
     // counts): the log buckets' density peaks, led by the zeros when they outnumber every bucket.
-    private static (ModeEstimate[] Modes, int Omitted) Modes(ModeSketch modes, LogBucketSketch? buckets, MomentSketch moments, int maxModes)
+    private static (ModeEstimate[] Modes, int Omitted) Modes(ModeSketch modes, OccupiedLogBuckets? buckets, MomentSketch moments, int maxModes)
     {
         if (!modes.IsContinuous)
         {
@@ -79,7 +79,7 @@ internal static class SummaryBuilder
 
         List<ModeEstimate> peaks = DensityPeaks.Find(buckets, moments.Min, moments.Max, moments.Count);
         long zeros = buckets.ZeroCount;
-        if (zeros > 0 && buckets.PositiveBuckets().Concat(buckets.NegativeBuckets()).All(b => b.Count < zeros))
+        if (zeros > 0 && buckets.EveryBucketBelow(zeros))
         {
             peaks.Insert(0, new ModeEstimate(0, zeros, zeros, zeros) { Kind = ModeKind.ExactValue, Low = 0, High = 0, Share = (double)zeros / moments.Count });
         }
