@@ -58,8 +58,12 @@ public class SummarizePartsBenchmarks
     [Benchmark]
     public int ModeCandidateCount() => _sketch.Modes.ModeCandidateCount();
 
-    /// <summary>Critical value of the mean's interval, which the summary computes every time.</summary>
+    /// <summary>Critical value of the mean's interval, which the summary computes every time (series expansion at this many degrees of freedom).</summary>
     [Benchmark]
-    public double StudentTCriticalValue() =>
+    public double StudentTCriticalValue() => StudentTCritical.TwoSided(_sketch.Count - 1, SummaryOptions.DefaultConfidence);
+
+    /// <summary>The same by root-finding (MathNet.Numerics), as the summary computed it before.</summary>
+    [Benchmark]
+    public double StudentTByRootFinding() =>
         StudentT.InvCDF(0, 1, _sketch.Count - 1, 1 - ((1 - SummaryOptions.DefaultConfidence) / 2));
 }
