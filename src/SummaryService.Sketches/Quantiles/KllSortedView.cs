@@ -133,7 +133,8 @@ public sealed class KllSortedView
         return lower + ((h - floor) * (upper - lower));
     }
 
-    private int UpperBound(double x)
+    /// <summary>Number of leading items at or below <paramref name="x"/> (the items ascend).</summary>
+    internal int UpperBound(double x)
     {
         int lo = 0;
         int hi = _values.Length;

@@ -113,7 +113,7 @@ internal static class MedianAbsoluteDeviation
         // As ValueAtRank: a rank at or below 1 is the smallest deviation, at or above n the largest.
         double lowerRank = Math.Clamp(floor, 1, n);
         double upperRank = Math.Clamp(Math.Min(floor + 1, n), 1, n);
-        int left = UpperBound(values, centre) - 1;
+        int left = view.UpperBound(centre) - 1;
         int right = left + 1;
         int last = values.Length - 1;
         long running = 0;
@@ -138,27 +138,6 @@ internal static class MedianAbsoluteDeviation
         }
 
         return lower + ((h - floor) * (upper - lower));
-    }
-
-    // Number of leading values at or below x; the values ascend.
-    private static int UpperBound(ReadOnlySpan<double> values, double x)
-    {
-        int lo = 0;
-        int hi = values.Length;
-        while (lo < hi)
-        {
-            int mid = (lo + hi) >>> 1;
-            if (values[mid] <= x)
-            {
-                lo = mid + 1;
-            }
-            else
-            {
-                hi = mid;
-            }
-        }
-
-        return lo;
     }
 
     // Bisection on a monotone predicate over [0, limit], down to adjacent doubles.
