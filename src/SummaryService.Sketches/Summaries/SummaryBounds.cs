@@ -26,7 +26,7 @@ internal sealed class SummaryBounds
         _rank = quantiles is null ? null : new RankBounds(quantiles, confidence);
         Exact = quantiles?.IsExact == true;
         Occupied = buckets is null ? null : OccupiedLogBuckets.Of(buckets);
-        Buckets = Occupied is null ? null : LogBucketView.Of(Occupied, _min, _max);
+        Buckets = Occupied is null ? null : LogBucketView.Of(Occupied, _min, _max, _extremesExact);
     }
 
     /// <summary>The log buckets as read out for this summary, shared with its other readers.</summary>
