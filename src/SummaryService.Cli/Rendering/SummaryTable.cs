@@ -39,9 +39,11 @@ public static class SummaryTable
         Row(table, "standard error", Figures.Of(summary.HasStandardError ? summary.StandardError : null), "", "s / √n");
         Row(table, "skewness", Figures.Of(summary.HasSkewness ? summary.Skewness : null), "", "adjusted Fisher–Pearson G1");
         Row(table, "excess kurtosis", Figures.Of(summary.HasKurtosis ? summary.Kurtosis : null), "", "bias-corrected G2");
-        Row(table, "min", Figures.Of(summary.HasMin ? summary.Min : null), "", "exact");
-        Row(table, "max", Figures.Of(summary.HasMax ? summary.Max : null), "", "exact");
-        Row(table, "range", Figures.Of(summary.HasRange ? summary.Range : null), "", "exact");
+        // Differences of cumulative histograms may know their extremes only as bounds; the reply says so.
+        bool bounded = summary.ExtremesBounded;
+        Row(table, "min", Figures.Of(summary.HasMin ? summary.Min : null), "", bounded ? "bound: at or below the smallest value" : "exact");
+        Row(table, "max", Figures.Of(summary.HasMax ? summary.Max : null), "", bounded ? "bound: at or above the largest value" : "exact");
+        Row(table, "range", Figures.Of(summary.HasRange ? summary.Range : null), "", bounded ? "bound: at or above the true range" : "exact");
         Row(table, "IQR", Figures.Of(summary.HasIqr ? summary.Iqr : null), Figures.Interval(summary.HasIqrLow ? summary.IqrLow : null, summary.HasIqrHigh ? summary.IqrHigh : null), "Q3 − Q1");
         Row(table, "MAD", Figures.Of(summary.HasMad ? summary.Mad : null), Figures.Interval(summary.HasMadLow ? summary.MadLow : null, summary.HasMadHigh ? summary.MadHigh : null), "median |x − median|, unscaled");
         Row(table, "quartile skewness", Figures.Of(summary.HasQuartileSkewness ? summary.QuartileSkewness : null), "", "Bowley");

@@ -24,6 +24,7 @@ public static class SummaryMapping
             MadHighSource = ToProto(summary.MadHighSource),
             IqrLowSource = ToProto(summary.IqrLowSource),
             IqrHighSource = ToProto(summary.IqrHighSource),
+            ExtremesBounded = summary.ExtremesBounded,
         };
         Set(summary.Sum, v => proto.Sum = v);
         Set(summary.Mean, v => proto.Mean = v);

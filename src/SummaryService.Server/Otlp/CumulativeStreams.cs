@@ -16,11 +16,15 @@ public enum CumulativeOutcome
     Full,
 }
 
+/// <summary>How far a stream's later cumulative point is from its earlier one; false when the stream was reset (some total went down).</summary>
+public delegate bool CumulativeDifference<T>(T earlier, T later, out T difference);
+
 /// <summary>
-/// Turns cumulative sums into differences per stream, remembering each stream's last point. A reset
-/// is a new start time, or, for a monotonic sum, a value below the last one; after a reset the point's
-/// whole value is the difference (the OpenTelemetry data model: a cumulative point covers
-/// (start_time, time], and a new start time begins a new accumulation).
+/// Turns cumulative points (sums and exponential histograms) into differences per stream,
+/// remembering each stream's last point. A reset is a new start time, or a difference the kind of
+/// point cannot have (a monotonic sum below its last value, a histogram count that went down);
+/// after a reset the point's whole value is the difference (the OpenTelemetry data model: a
+/// cumulative point covers (start_time, time], and a new start time begins a new accumulation).
 /// </summary>
 /// <remarks>
 /// A stream's first point counts only when the stream began after this server started listening
@@ -30,6 +34,18 @@ public enum CumulativeOutcome
 /// </remarks>
 public sealed class CumulativeStreams(ulong listeningSinceUnixNano, int capacity)
 {
+    private static readonly CumulativeDifference<double> s_anySum = (double earlier, double later, out double difference) =>
+    {
+        difference = later - earlier;
+        return true;
+    };
+
+    private static readonly CumulativeDifference<double> s_monotonicSum = (double earlier, double later, out double difference) =>
+    {
+        difference = later - earlier;
+        return later >= earlier;
+    };
+
     private readonly Dictionary<UInt128, Last> _last = [];
 
     /// <summary>Streams remembered.</summary>
@@ -44,34 +60,48 @@ public sealed class CumulativeStreams(ulong listeningSinceUnixNano, int capacity
         }
     }
 
-    /// <summary>The difference a point makes to its stream, remembering the point.</summary>
-    public (CumulativeOutcome Outcome, double Delta) Next(UInt128 stream, ulong startUnixNano, ulong timeUnixNano, double value, bool monotonic)
+    /// <summary>The difference a sum's point makes to its stream, remembering the point.</summary>
+    public (CumulativeOutcome Outcome, double Delta) Next(UInt128 stream, ulong startUnixNano, ulong timeUnixNano, double value, bool monotonic) =>
+        Next(stream, startUnixNano, timeUnixNano, value, monotonic ? s_monotonicSum : s_anySum);
+
+    /// <summary>
+    /// The difference a point makes to its stream, remembering the point; the delta is meaningful
+    /// only for <see cref="CumulativeOutcome.Delta"/>. A stream whose last point is of another kind
+    /// (the metric changed type) starts again from this point.
+    /// </summary>
+    public (CumulativeOutcome Outcome, T? Delta) Next<T>(UInt128 stream, ulong startUnixNano, ulong timeUnixNano, T point, CumulativeDifference<T> since)
+        where T : notnull
     {
+        ArgumentNullException.ThrowIfNull(since);
         lock (_last)
         {
             if (!_last.TryGetValue(stream, out Last previous))
             {
                 if (_last.Count >= capacity)
                 {
-                    return (CumulativeOutcome.Full, 0);
+                    return (CumulativeOutcome.Full, default);
                 }
 
-                _last[stream] = new Last(startUnixNano, timeUnixNano, value);
-                return startUnixNano != 0 && startUnixNano >= listeningSinceUnixNano ? (CumulativeOutcome.Delta, value) : (CumulativeOutcome.Baseline, 0);
+                _last[stream] = new Last(startUnixNano, timeUnixNano, point);
+                return startUnixNano != 0 && startUnixNano >= listeningSinceUnixNano ? (CumulativeOutcome.Delta, point) : (CumulativeOutcome.Baseline, default);
             }
 
             bool restarted = startUnixNano != 0 && previous.Start != 0 && startUnixNano > previous.Start;
             bool older = (startUnixNano != 0 && previous.Start != 0 && startUnixNano < previous.Start) || (!restarted && timeUnixNano <= previous.Time);
             if (older)
             {
-                return (CumulativeOutcome.Stale, 0);
+                return (CumulativeOutcome.Stale, default);
             }
 
-            _last[stream] = new Last(startUnixNano, timeUnixNano, value);
-            bool dropped = monotonic && value < previous.Value;
-            return restarted || dropped ? (CumulativeOutcome.Delta, value) : (CumulativeOutcome.Delta, value - previous.Value);
+            _last[stream] = new Last(startUnixNano, timeUnixNano, point);
+            if (!restarted && previous.Point is T earlier && since(earlier, point, out T difference))
+            {
+                return (CumulativeOutcome.Delta, difference);
+            }
+
+            return (CumulativeOutcome.Delta, point);
         }
     }
 
-    private readonly record struct Last(ulong Start, ulong Time, double Value);
+    private readonly record struct Last(ulong Start, ulong Time, object Point);
 }

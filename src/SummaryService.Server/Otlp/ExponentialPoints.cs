@@ -1,6 +1,5 @@
 using SummaryService.Contract.Otlp.Metrics;
 using SummaryService.Server.Validation;
-using SummaryService.Sketches;
 using SummaryService.Sketches.Buckets;
 
 namespace SummaryService.Server.Otlp;
@@ -64,8 +63,12 @@ public static class ExponentialPoints
         }
     }
 
-    /// <summary>Why a checked point cannot be merged exactly, or null when it can.</summary>
-    public static string? Unrepresentable(ExponentialHistogramDataPoint point, SeriesSketchOptions options)
+    /// <summary>
+    /// Why a checked point lacks what the moments and log buckets need (sum, min and max; exact
+    /// zeros only), or null when it has it. Whether its buckets fit is asked of the values kept
+    /// (<see cref="ExponentialHistogramImport.Unrepresentable"/>): for a cumulative point, its difference.
+    /// </summary>
+    public static string? Incomplete(ExponentialHistogramDataPoint point)
     {
         ArgumentNullException.ThrowIfNull(point);
         if (!point.HasSum || !point.HasMin || !point.HasMax)
@@ -78,22 +81,23 @@ public static class ExponentialPoints
             return $"has an exponential histogram point with zero_threshold {point.ZeroThreshold}; log buckets count exact zeros only";
         }
 
-        return ExponentialHistogramImport.Unrepresentable(PointOf(point), options) is { } reason ? $"has an exponential histogram point that {reason}" : null;
+        return null;
     }
 
-    /// <summary>The sketch of a checked, representable point.</summary>
-    public static SeriesSketch ToSketch(ExponentialHistogramDataPoint point, SeriesSketchOptions options) =>
-        ExponentialHistogramImport.ToSketch(PointOf(point), options);
-
-    private static ExponentialHistogramPoint PointOf(ExponentialHistogramDataPoint point) => new(
-        point.Scale,
-        (long)point.ZeroCount,
-        point.Positive?.Offset ?? 0,
-        point.Positive?.BucketCounts ?? [],
-        point.Negative?.Offset ?? 0,
-        point.Negative?.BucketCounts ?? [],
-        (long)point.Count,
-        point.Sum,
-        point.Min,
-        point.Max);
+    /// <summary>The values of a checked point, with its bucket counts copied (a cumulative stream keeps them past the request).</summary>
+    public static ExponentialHistogramPoint PointOf(ExponentialHistogramDataPoint point)
+    {
+        ArgumentNullException.ThrowIfNull(point);
+        return new(
+            point.Scale,
+            (long)point.ZeroCount,
+            point.Positive?.Offset ?? 0,
+            point.Positive?.BucketCounts.ToArray() ?? [],
+            point.Negative?.Offset ?? 0,
+            point.Negative?.BucketCounts.ToArray() ?? [],
+            (long)point.Count,
+            point.Sum,
+            point.Min,
+            point.Max);
+    }
 }

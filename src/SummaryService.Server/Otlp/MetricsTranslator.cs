@@ -4,6 +4,7 @@ using SummaryService.Contract.Otlp.Common;
 using SummaryService.Contract.Otlp.Metrics;
 using SummaryService.Server.Validation;
 using SummaryService.Sketches;
+using SummaryService.Sketches.Buckets;
 
 namespace SummaryService.Server.Otlp;
 
@@ -16,6 +17,14 @@ namespace SummaryService.Server.Otlp;
 public sealed class MetricsTranslator(OtlpSettings settings, SeriesSketchOptions sketchOptions, CumulativeStreams cumulative)
 {
     private const ulong NanosPerMilli = 1_000_000;
+
+    private static readonly CumulativeDifference<ExponentialHistogramPoint> s_histogramSince = (ExponentialHistogramPoint earlier, ExponentialHistogramPoint later, out ExponentialHistogramPoint difference) =>
+    {
+        ExponentialHistogramPoint? since = ExponentialHistogramDifference.Since(earlier, later);
+        difference = since ?? later;
+        return since is not null;
+    };
+
     private readonly HashSet<string> _resourceLabels = new(settings.EffectiveResourceLabels, StringComparer.Ordinal);
 
     /// <summary>Refuses a request whose structure breaks the protocol's rules, naming the field and its value; changes nothing.</summary>
@@ -96,7 +105,7 @@ public sealed class MetricsTranslator(OtlpSettings settings, SeriesSketchOptions
                 PlanSum(plan, metric, resourceLabels, streamPrefix);
                 break;
             case Metric.DataOneofCase.ExponentialHistogram:
-                PlanExponential(plan, metric, resourceLabels);
+                PlanExponential(plan, metric, resourceLabels, streamPrefix);
                 break;
             case Metric.DataOneofCase.Histogram:
                 plan.Rejections.Reject(metric.Histogram.DataPoints.Count, $"metric '{metric.Name}' is an explicit-bounds histogram, which this server does not keep; export it as an exponential histogram");
@@ -143,20 +152,28 @@ public sealed class MetricsTranslator(OtlpSettings settings, SeriesSketchOptions
 
         UInt128 stream = StreamIdentity.Of(streamPrefix, metric, point.Attributes);
         var (outcome, delta) = cumulative.Next(stream, point.StartTimeUnixNano, point.TimeUnixNano, value, monotonic);
+        if (Recorded(plan, metric, outcome, point.TimeUnixNano))
+        {
+            AddValue(plan, metric, point.Attributes, resourceLabels, delta, point.TimeUnixNano);
+        }
+    }
+
+    // Whether a cumulative point gave a difference to record; what else became of it goes in the reply.
+    private bool Recorded(ExportPlan plan, string metric, CumulativeOutcome outcome, ulong timeUnixNano)
+    {
         switch (outcome)
         {
             case CumulativeOutcome.Delta:
-                AddValue(plan, metric, point.Attributes, resourceLabels, delta, point.TimeUnixNano);
-                break;
+                return true;
             case CumulativeOutcome.Baseline:
                 plan.Rejections.Baseline();
-                break;
+                return false;
             case CumulativeOutcome.Stale:
-                plan.Rejections.Reject(1, $"metric '{metric}' sent a cumulative point at time_unix_nano {point.TimeUnixNano}, not after its stream's last point (already received)");
-                break;
-            case CumulativeOutcome.Full:
+                plan.Rejections.Reject(1, $"metric '{metric}' sent a cumulative point at time_unix_nano {timeUnixNano}, not after its stream's last point (already received)");
+                return false;
+            default:
                 plan.Rejections.Reject(1, $"metric '{metric}' starts a cumulative stream beyond Otlp:MaxCumulativeStreams ({settings.MaxCumulativeStreams}); send delta temporality");
-                break;
+                return false;
         }
     }
 
@@ -206,41 +223,73 @@ public sealed class MetricsTranslator(OtlpSettings settings, SeriesSketchOptions
         }
     }
 
-    private void PlanExponential(ExportPlan plan, Metric metric, Dictionary<string, string> resourceLabels)
+    private void PlanExponential(ExportPlan plan, Metric metric, Dictionary<string, string> resourceLabels, byte[] streamPrefix)
     {
         ExponentialHistogram histogram = metric.ExponentialHistogram;
-        if (histogram.AggregationTemporality != AggregationTemporality.Delta)
+        bool isCumulative = histogram.AggregationTemporality == AggregationTemporality.Cumulative;
+        if (!isCumulative && histogram.AggregationTemporality != AggregationTemporality.Delta)
         {
-            plan.Rejections.Reject(histogram.DataPoints.Count, $"metric '{metric.Name}' is an exponential histogram with aggregation_temporality {(int)histogram.AggregationTemporality}; this server merges delta (1) histograms: set the exporter's temporality preference to delta");
+            plan.Rejections.Reject(histogram.DataPoints.Count, $"metric '{metric.Name}' is an exponential histogram with aggregation_temporality {(int)histogram.AggregationTemporality}; a histogram is delta (1) or cumulative (2)");
             return;
         }
 
         foreach (ExponentialHistogramDataPoint point in histogram.DataPoints)
         {
-            if (NoRecordedValue(point.Flags) || point.Count == 0)
+            if (NoRecordedValue(point.Flags) || (!isCumulative && point.Count == 0))
             {
                 continue;
             }
 
-            if (ExponentialPoints.Unrepresentable(point, sketchOptions) is { } reason)
+            if (point.Count > 0 && ExponentialPoints.Incomplete(point) is { } incomplete)
             {
-                plan.Rejections.Reject(1, $"metric '{metric.Name}' {reason}");
+                plan.Rejections.Reject(1, $"metric '{metric.Name}' {incomplete}");
                 continue;
             }
 
-            if (LabelsOf(plan, metric.Name, point.Attributes, resourceLabels) is { } labels)
+            ExponentialHistogramPoint values = ExponentialPoints.PointOf(point);
+            if (isCumulative)
             {
-                plan.Sketches.Add(new PlannedSketch(new Store.UploadedSketch
+                UInt128 stream = StreamIdentity.Of(streamPrefix, metric.Name, point.Attributes);
+                var (outcome, delta) = cumulative.Next(stream, point.StartTimeUnixNano, point.TimeUnixNano, values, s_histogramSince);
+                if (!Recorded(plan, metric.Name, outcome, point.TimeUnixNano) || delta!.Count == 0)
                 {
-                    Metric = metric.Name,
-                    Labels = labels,
-                    Sketch = ExponentialPoints.ToSketch(point, sketchOptions),
-                    TimeUnixMs = MillisOf(point.TimeUnixNano),
-                }));
+                    continue;
+                }
+
+                values = delta;
             }
+
+            AddExponential(plan, metric.Name, point.Attributes, resourceLabels, values, point.TimeUnixNano);
         }
 
         plan.Rejections.Note("exponential histograms give count, sum, min, max and log buckets; their variance, skewness and kurtosis are absent");
+    }
+
+    private void AddExponential(ExportPlan plan, string metric, RepeatedField<KeyValue> attributes, Dictionary<string, string> resourceLabels, ExponentialHistogramPoint values, ulong timeUnixNano)
+    {
+        if (ExponentialHistogramImport.Unrepresentable(values, sketchOptions) is { } reason)
+        {
+            plan.Rejections.Reject(1, $"metric '{metric}' has an exponential histogram point that {reason}");
+            return;
+        }
+
+        if (LabelsOf(plan, metric, attributes, resourceLabels) is not { } labels)
+        {
+            return;
+        }
+
+        if (!values.ExtremesExact)
+        {
+            plan.Rejections.Note($"metric '{metric}': between two cumulative points no new min or max was recorded, so the difference's extremes are known only to lie in its outermost buckets; its summaries say extremes_bounded and give min and max as outer bounds");
+        }
+
+        plan.Sketches.Add(new PlannedSketch(new Store.UploadedSketch
+        {
+            Metric = metric,
+            Labels = labels,
+            Sketch = ExponentialHistogramImport.ToSketch(values, sketchOptions),
+            TimeUnixMs = MillisOf(timeUnixNano),
+        }));
     }
 
     private static Dictionary<string, string>? LabelsOf(ExportPlan plan, string metric, RepeatedField<KeyValue> attributes, Dictionary<string, string> resourceLabels)

@@ -32,8 +32,10 @@ export function fillFigures(tbody, summary) {
   row(tbody, "mean", summary.mean, withInterval(summary.meanLow, summary.meanHigh), false);
   row(tbody, "standard deviation", summary.stddev, "—", false);
   for (const q of summary.quantiles || []) row(tbody, percentileName(q.q), q.value, withInterval(q.low, q.high, boundName(q.lowSource, q.highSource)), exact);
-  row(tbody, "min", summary.min, "", true);
-  row(tbody, "max", summary.max, "", true);
+  // Differences of cumulative histograms may know their extremes only as outer bounds; the reply says so.
+  const bounded = summary.extremesBounded === true;
+  row(tbody, "min", summary.min, bounded ? "a bound: at or below the smallest value" : "", !bounded);
+  row(tbody, "max", summary.max, bounded ? "a bound: at or above the largest value" : "", !bounded);
 }
 
 /** A quantile's figures in one line, for hover read-outs: "p99 212.4 in [210.1, 215] · log buckets". */

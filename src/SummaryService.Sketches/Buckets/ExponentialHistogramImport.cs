@@ -18,6 +18,7 @@ namespace SummaryService.Sketches.Buckets;
 /// <param name="Sum">Sum of the values.</param>
 /// <param name="Min">Smallest value.</param>
 /// <param name="Max">Largest value.</param>
+/// <param name="ExtremesExact">False when <paramref name="Min"/> and <paramref name="Max"/> only bound the values from outside (see <see cref="ExponentialHistogramDifference"/>).</param>
 public sealed record ExponentialHistogramPoint(
     int Scale,
     long ZeroCount,
@@ -28,7 +29,8 @@ public sealed record ExponentialHistogramPoint(
     long Count,
     double Sum,
     double Min,
-    double Max);
+    double Max,
+    bool ExtremesExact = true);
 
 /// <summary>
 /// Series sketches from exponential histogram points. The log buckets use the same index mapping,
@@ -70,7 +72,7 @@ public static class ExponentialHistogramImport
         }
 
         var modes = ModeSketch.Restore(new ModeSketch(options.ModeResolution, options.ModeExactLimit, options.ModeWidth, options.ModeDepth, options.ModeCandidates), point.Count, null, null, []);
-        MomentSketch moments = MomentSketch.FromTotals(point.Count, point.Sum, point.Min, point.Max);
+        MomentSketch moments = MomentSketch.FromTotals(point.Count, point.Sum, point.Min, point.Max, point.ExtremesExact);
         return SeriesSketch.FromParts(moments, null, buckets, modes, keepsRank: false);
     }
 

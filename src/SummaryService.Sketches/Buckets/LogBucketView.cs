@@ -18,8 +18,12 @@ internal sealed class LogBucketView
     private readonly double _min;
     private readonly double _max;
 
-    private LogBucketView(double[] low, double[] high, long[] cumulative, double relativeError, double min, double max)
+    // False when min and max only bound the values from outside: ranks 1 and n are then read from their buckets like any other.
+    private readonly bool _extremesExact;
+
+    private LogBucketView(double[] low, double[] high, long[] cumulative, double relativeError, double min, double max, bool extremesExact)
     {
+        _extremesExact = extremesExact;
         _low = low;
         _high = high;
         _cumulative = cumulative;
@@ -50,8 +54,11 @@ internal sealed class LogBucketView
     /// <summary>Reads a sketch whose values lie in [<paramref name="min"/>, <paramref name="max"/>].</summary>
     public static LogBucketView Of(LogBucketSketch sketch, double min, double max) => Of(OccupiedLogBuckets.Of(sketch), min, max);
 
-    /// <summary>Reads buckets already read out of a sketch whose values lie in [<paramref name="min"/>, <paramref name="max"/>].</summary>
-    public static LogBucketView Of(OccupiedLogBuckets sketch, double min, double max)
+    /// <summary>
+    /// Reads buckets already read out of a sketch whose values lie in [<paramref name="min"/>, <paramref name="max"/>],
+    /// which are the smallest and largest value unless <paramref name="extremesExact"/> is false.
+    /// </summary>
+    public static LogBucketView Of(OccupiedLogBuckets sketch, double min, double max, bool extremesExact = true)
     {
         ExponentialMapping mapping = sketch.Mapping;
         (int[] negIndex, long[] negCount) = sketch.Negative;
@@ -93,7 +100,7 @@ internal sealed class LogBucketView
             at++;
         }
 
-        return new LogBucketView(low, high, cumulative, mapping.RelativeError, min, max);
+        return new LogBucketView(low, high, cumulative, mapping.RelativeError, min, max, extremesExact);
     }
 
     /// <summary>
@@ -155,12 +162,12 @@ internal sealed class LogBucketView
 
     private double Middle(int bucket) => _low[bucket] + ((_high[bucket] - _low[bucket]) / 2);
 
-    // The smallest and largest values are known exactly: ranks 1 and n are the extremes themselves.
-    private double LowAt(double rank) => rank <= 1 ? _min : rank >= Count ? _max : _low[AtRank(rank)];
+    // The smallest and largest values, when known exactly, are ranks 1 and n themselves.
+    private double LowAt(double rank) => _extremesExact && rank <= 1 ? _min : _extremesExact && rank >= Count ? _max : _low[AtRank(rank)];
 
-    private double HighAt(double rank) => rank <= 1 ? _min : rank >= Count ? _max : _high[AtRank(rank)];
+    private double HighAt(double rank) => _extremesExact && rank <= 1 ? _min : _extremesExact && rank >= Count ? _max : _high[AtRank(rank)];
 
-    private double MiddleAt(double rank) => rank <= 1 ? _min : rank >= Count ? _max : Middle(AtRank(rank));
+    private double MiddleAt(double rank) => _extremesExact && rank <= 1 ? _min : _extremesExact && rank >= Count ? _max : Middle(AtRank(rank));
 
     // Bucket holding the r-th smallest value, r clamped to [1, n].
     private int AtRank(double rank)

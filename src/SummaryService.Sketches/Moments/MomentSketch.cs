@@ -45,6 +45,14 @@ public sealed partial class MomentSketch
     /// </summary>
     public bool CentralMomentsKnown { get; private set; } = true;
 
+    /// <summary>
+    /// False when some values arrived with only bounds on their extremes (the difference of two
+    /// cumulative histogram points: its smallest and largest value are known only to lie in its
+    /// outermost buckets). <see cref="Min"/> is then at or below the smallest value and
+    /// <see cref="Max"/> at or above the largest, not values seen. Merges keep it false.
+    /// </summary>
+    public bool ExtremesExact { get; private set; } = true;
+
     /// <summary>Sum of the values, Neumaier-compensated so that it stays exact to the last bits on long streams.</summary>
     public double Sum => _sum + _sumCompensation;
 
@@ -158,9 +166,11 @@ public sealed partial class MomentSketch
 
     /// <summary>
     /// A sketch of values known only by their count, sum and extremes (a histogram's totals): the
-    /// mean is sum / count; M2, M3 and M4 are unknown, and stay so through merges.
+    /// mean is sum / count; M2, M3 and M4 are unknown, and stay so through merges. With
+    /// <paramref name="extremesExact"/> false, <paramref name="min"/> and <paramref name="max"/>
+    /// are only outer bounds on the values (see <see cref="ExtremesExact"/>).
     /// </summary>
-    public static MomentSketch FromTotals(long count, double sum, double min, double max)
+    public static MomentSketch FromTotals(long count, double sum, double min, double max, bool extremesExact = true)
     {
         ArgumentOutOfRangeException.ThrowIfNegativeOrZero(count);
         FiniteValues.Require(sum);
@@ -172,7 +182,7 @@ public sealed partial class MomentSketch
         }
 
         var sketch = new MomentSketch();
-        sketch.Restore(count, min, max, sum, 0, Math.Clamp(sum / count, min, max), 0, 0, 0, centralMomentsKnown: false);
+        sketch.Restore(count, min, max, sum, 0, Math.Clamp(sum / count, min, max), 0, 0, 0, centralMomentsKnown: false, extremesExact);
         return sketch;
     }
 
@@ -186,6 +196,7 @@ public sealed partial class MomentSketch
         }
 
         CentralMomentsKnown &= other.CentralMomentsKnown;
+        ExtremesExact &= other.ExtremesExact;
 
         double otherSum = other._sum;
         double otherCompensation = other._sumCompensation;
@@ -198,9 +209,10 @@ public sealed partial class MomentSketch
     public MomentSketch Clone() => (MomentSketch)MemberwiseClone();
 
     /// <summary>Sets the whole state, as read back from storage; the caller has validated it.</summary>
-    internal void Restore(long count, double min, double max, double sum, double compensation, double mean, double m2, double m3, double m4, bool centralMomentsKnown = true)
+    internal void Restore(long count, double min, double max, double sum, double compensation, double mean, double m2, double m3, double m4, bool centralMomentsKnown = true, bool extremesExact = true)
     {
         CentralMomentsKnown = centralMomentsKnown;
+        ExtremesExact = extremesExact;
         Count = count;
         Min = count == 0 ? double.NaN : min;
         Max = count == 0 ? double.NaN : max;

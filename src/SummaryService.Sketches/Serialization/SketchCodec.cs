@@ -233,6 +233,7 @@ public static class SketchCodec
             M3 = sketch.M3,
             M4 = sketch.M4,
             CentralMomentsUnknown = !sketch.CentralMomentsKnown,
+            ExtremesBounded = !sketch.ExtremesExact,
         };
     }
 
@@ -272,7 +273,7 @@ public static class SketchCodec
         }
 
         var sketch = new MomentSketch();
-        sketch.Restore(count, state.Min, state.Max, state.Sum, state.SumCompensation, state.Mean, state.M2, state.M3, state.M4, !state.CentralMomentsUnknown);
+        sketch.Restore(count, state.Min, state.Max, state.Sum, state.SumCompensation, state.Mean, state.M2, state.M3, state.M4, !state.CentralMomentsUnknown, !state.ExtremesBounded);
         return sketch;
     }
 

@@ -42,14 +42,21 @@ public sealed record Summary
     /// <summary>Bias-corrected excess kurtosis G2 (n ≥ 4, values not all equal).</summary>
     public double? Kurtosis { get; init; }
 
-    /// <summary>Smallest value (exact).</summary>
+    /// <summary>Smallest value (exact, unless <see cref="ExtremesBounded"/>: then at or below it).</summary>
     public double? Min { get; init; }
 
-    /// <summary>Largest value (exact).</summary>
+    /// <summary>Largest value (exact, unless <see cref="ExtremesBounded"/>: then at or above it).</summary>
     public double? Max { get; init; }
 
-    /// <summary>Max − min (exact).</summary>
+    /// <summary>Max − min (exact, unless <see cref="ExtremesBounded"/>: then at or above the true range).</summary>
     public double? Range { get; init; }
+
+    /// <summary>
+    /// True when some values arrived with only bounds on their extremes (the difference of two
+    /// cumulative histogram points): <see cref="Min"/>, <see cref="Max"/>, <see cref="Range"/> and
+    /// the five-number extremes are then outer bounds, not values seen.
+    /// </summary>
+    public bool ExtremesBounded { get; init; }
 
     /// <summary>Requested quantiles, in the order asked.</summary>
     public IReadOnlyList<QuantileEstimate> Quantiles { get; init; } = [];

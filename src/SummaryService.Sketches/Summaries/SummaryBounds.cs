@@ -15,16 +15,18 @@ internal sealed class SummaryBounds
     private readonly RankBounds? _rank;
     private readonly double _min;
     private readonly double _max;
+    private readonly bool _extremesExact;
 
     public SummaryBounds(MomentSketch moments, KllSketch? quantiles, LogBucketSketch? buckets, double confidence)
     {
         Count = moments.Count;
         _min = moments.Min;
         _max = moments.Max;
+        _extremesExact = moments.ExtremesExact;
         _rank = quantiles is null ? null : new RankBounds(quantiles, confidence);
         Exact = quantiles?.IsExact == true;
         Occupied = buckets is null ? null : OccupiedLogBuckets.Of(buckets);
-        Buckets = Occupied is null ? null : LogBucketView.Of(Occupied, _min, _max);
+        Buckets = Occupied is null ? null : LogBucketView.Of(Occupied, _min, _max, _extremesExact);
     }
 
     /// <summary>The log buckets as read out for this summary, shared with its other readers.</summary>
@@ -149,9 +151,10 @@ internal sealed class SummaryBounds
     private QuantileEstimate Quantile(double q, double rankShift, double rankError)
     {
         double h = ((Count - 1) * q) + 1;
-        if (rankShift == 0 && (h <= 1 || h >= Count) && (Buckets is not null || _rank is null))
+        if (rankShift == 0 && _extremesExact && (h <= 1 || h >= Count) && (Buckets is not null || _rank is null))
         {
-            // The extremes are kept exactly. (A KLL-only sketch answers as it always did.)
+            // The extremes are kept exactly (unless only bounded: then the outermost buckets bound
+            // them like any other rank). (A KLL-only sketch answers as it always did.)
             double extreme = h <= 1 ? _min : _max;
             BoundSource exact = Exact ? BoundSource.Exact : BoundSource.Range;
             return new QuantileEstimate(q, extreme, extreme, extreme, Epsilon) { LowSource = exact, HighSource = exact };

@@ -120,6 +120,7 @@ internal static class SummaryBuilder
             Min = m.Min,
             Max = m.Max,
             Range = m.Max - m.Min,
+            ExtremesBounded = !m.ExtremesExact,
             Confidence = confidence,
         };
     }

@@ -36,6 +36,53 @@ public sealed class ExportRulesTests
     }
 
     [Fact]
+    public async Task Cumulative_exponential_histograms_become_differences_with_resets_and_a_resent_point_is_rejected()
+    {
+        await using var server = new TestServer();
+        var client = new MetricsService.MetricsServiceClient(server.Channel);
+        ulong start = Now;
+        ulong restart = start + 40_000_000;
+
+        // Scale 0: index 0 holds (1, 2], 1 holds (2, 4], 2 holds (4, 8] (data model: ExponentialHistogram).
+        // {1.5, 3}, then {1.5, 3} + {1.25, 3.5, 6}: a difference of three values, both extremes new.
+        var first = Exponential(scale: 0, offset: 0, counts: [1, 1], min: 1.5, max: 3, sum: 4.5);
+        var second = Exponential(scale: 0, offset: 0, counts: [2, 2, 1], min: 1.25, max: 6, sum: 15.25);
+        (first.StartTimeUnixNano, first.TimeUnixNano) = (start, start + 10_000_000);
+        (second.StartTimeUnixNano, second.TimeUnixNano) = (start, start + 20_000_000);
+        Assert.Equal(0, (await client.ExportAsync(Request(ExponentialMetric("hub.weight", AggregationTemporality.Cumulative, first, second)))).PartialSuccess.RejectedDataPoints);
+
+        // The second point again (resent), then a new start time: {5} is all new (data model:
+        // a new start_time begins a new accumulation).
+        var resent = second.Clone();
+        var restarted = Exponential(scale: 0, offset: 2, counts: [1], min: 5, max: 5, sum: 5);
+        (restarted.StartTimeUnixNano, restarted.TimeUnixNano) = (restart, restart + 10_000_000);
+        var reply = await client.ExportAsync(Request(ExponentialMetric("hub.weight", AggregationTemporality.Cumulative, resent, restarted)));
+        Assert.Equal(1, reply.PartialSuccess.RejectedDataPoints);
+        Assert.Contains("already received", reply.PartialSuccess.ErrorMessage, StringComparison.Ordinal);
+
+        var summary = (await server.Query.SummarizeAsync(Requests.Summarize("hub.weight"))).Groups.Single().Summary;
+        Assert.Equal(6UL, summary.Count);
+        Assert.Equal(20.25, summary.Sum);
+        Assert.Equal(1.25, summary.Min);
+        Assert.Equal(6, summary.Max);
+        Assert.False(summary.ExtremesBounded);
+
+        // {5} + {5.5}: the maximum is new, the minimum 5 was there before, so the difference's
+        // minimum is known only to lie in (4, 8] and at or above 5: a bound, said so.
+        var later = Exponential(scale: 0, offset: 2, counts: [2], min: 5, max: 5.5, sum: 10.5);
+        (later.StartTimeUnixNano, later.TimeUnixNano) = (restart, restart + 20_000_000);
+        reply = await client.ExportAsync(Request(ExponentialMetric("hub.weight", AggregationTemporality.Cumulative, later)));
+        Assert.Equal(0, reply.PartialSuccess.RejectedDataPoints);
+        Assert.Contains("extremes_bounded", reply.PartialSuccess.ErrorMessage, StringComparison.Ordinal);
+        summary = (await server.Query.SummarizeAsync(Requests.Summarize("hub.weight"))).Groups.Single().Summary;
+        Assert.Equal(7UL, summary.Count);
+        Assert.Equal(25.75, summary.Sum);
+        Assert.True(summary.ExtremesBounded);
+        Assert.Equal(1.25, summary.Min);
+        Assert.Equal(6, summary.Max);
+    }
+
+    [Fact]
     public async Task What_cannot_be_kept_is_counted_in_partial_success_and_the_rest_is_kept()
     {
         await using var server = new TestServer();
@@ -176,8 +223,10 @@ public sealed class ExportRulesTests
         return new Metric { Name = name, Sum = sum };
     }
 
-    private static Metric ExponentialMetric(string name, ExponentialHistogramDataPoint point) =>
-        new() { Name = name, ExponentialHistogram = new ExponentialHistogram { AggregationTemporality = AggregationTemporality.Delta, DataPoints = { point } } };
+    private static Metric ExponentialMetric(string name, ExponentialHistogramDataPoint point) => ExponentialMetric(name, AggregationTemporality.Delta, point);
+
+    private static Metric ExponentialMetric(string name, AggregationTemporality temporality, params ExponentialHistogramDataPoint[] points) =>
+        new() { Name = name, ExponentialHistogram = new ExponentialHistogram { AggregationTemporality = temporality, DataPoints = { points } } };
 
     private static ExponentialHistogramDataPoint Exponential(int scale, int offset, ulong[] counts, double min, double max, double sum) => new()
     {

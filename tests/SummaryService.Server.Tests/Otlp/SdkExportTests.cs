@@ -1,5 +1,4 @@
 using System.Diagnostics.Metrics;
-using Grpc.Core;
 using Grpc.Net.Client;
 using MathNet.Numerics.Statistics;
 using OpenTelemetry;
@@ -75,20 +74,18 @@ public sealed class SdkExportTests
     }
 
     [Fact]
-    public async Task Cumulative_counters_become_their_increases_and_cumulative_histograms_are_refused_not_miscounted()
+    public async Task Cumulative_counters_become_their_increases()
     {
         using var data = new TempDirectory();
         await using var server = await ServerProcess.StartAsync(new Dictionary<string, string> { ["Persistence__DataDirectory"] = data.Path });
         const string prefix = "sorter.cumulative";
         using var meter = new Meter(prefix);
         var scans = meter.CreateCounter<long>($"{prefix}.parcel.scans");
-        var weight = meter.CreateHistogram<double>($"{prefix}.parcel.weight");
         using (MeterProvider provider = Provider(prefix, server, OtlpExportProtocol.HttpProtobuf, MetricReaderTemporalityPreference.Cumulative))
         {
             foreach (int step in new[] { 5, 7, 11 })
             {
                 scans.Add(step);
-                weight.Record(step);
                 Assert.True(provider.ForceFlush(10_000), "the exporter did not finish an export");
             }
         }
@@ -103,8 +100,61 @@ public sealed class SdkExportTests
         Assert.Equal(23, counted.Sum);
         Assert.Equal(11, counted.Max);
         Assert.Equal(4UL, counted.Count);
-        var refused = await Assert.ThrowsAsync<RpcException>(() => query.SummarizeAsync(Requests.Summarize($"{prefix}.parcel.weight")).ResponseAsync);
-        Assert.Equal(StatusCode.NotFound, refused.StatusCode);
+    }
+
+    [Theory]
+    [InlineData(OtlpExportProtocol.Grpc)]
+    [InlineData(OtlpExportProtocol.HttpProtobuf)]
+    public async Task Cumulative_exponential_histograms_become_their_differences_with_exact_totals_and_honest_extremes(OtlpExportProtocol protocol)
+    {
+        using var data = new TempDirectory();
+        await using var server = await ServerProcess.StartAsync(new Dictionary<string, string> { ["Persistence__DataDirectory"] = data.Path });
+        string prefix = $"sorter.cumulative.{protocol}".ToLowerInvariant();
+
+        // Multiples of 1/64 add up exactly in binary floating point (IEEE 754), whatever the order,
+        // so the exporter's running sums and their differences are exact too.
+        double[] weights = [.. Requests.Latencies(3000, seed: 23).Select(w => Math.Round(w * 64) / 64).Order()];
+        int third = weights.Length / 3;
+
+        // Export by export: the middle third, then the lowest (a new minimum), then the highest (a
+        // new maximum), each export's scale no finer than the last as the range grows.
+        double[][] rounds = [weights[third..(2 * third)], weights[..third], weights[(2 * third)..]];
+        using var meter = new Meter(prefix);
+        var weight = meter.CreateHistogram<double>($"{prefix}.parcel.weight");
+        using (MeterProvider provider = Provider(prefix, server, protocol, MetricReaderTemporalityPreference.Cumulative))
+        {
+            var shuffle = new Random(23);
+            foreach (double[] round in rounds)
+            {
+                foreach (double w in round.OrderBy(_ => shuffle.Next()))
+                {
+                    weight.Record(w, new KeyValuePair<string, object?>("dock", "south"));
+                }
+
+                Assert.True(provider.ForceFlush(10_000), "the exporter did not finish an export");
+            }
+        }
+
+        using var channel = GrpcChannel.ForAddress(server.Address);
+        var query = new Query.QueryClient(channel);
+        var histogram = (await query.SummarizeAsync(Requests.Summarize($"{prefix}.parcel.weight", ("dock", "south")))).Groups.Single().Summary;
+
+        // Data model, cumulative temporality: the differences of the points add up to what was recorded.
+        Assert.Equal((ulong)weights.Length, histogram.Count);
+        Assert.Equal(weights.Sum(), histogram.Sum);
+        Assert.False(histogram.HasVariance, "a histogram's totals say nothing of its spread, so variance must be absent");
+
+        // The second export's minimum and the third's maximum were new, so exact; the other ends of
+        // those differences are only bounded, which the summary says, though here the exact ends win.
+        Assert.True(histogram.ExtremesBounded, "some differences had only bounded extremes");
+        Assert.Equal(weights[0], histogram.Min);
+        Assert.Equal(weights[^1], histogram.Max);
+        foreach (QuantileEstimate q in histogram.Quantiles)
+        {
+            // Reference: Hyndman & Fan (1996) definition 7 through MathNet.Numerics.
+            double truth = SortedArrayStatistics.QuantileCustom(weights, q.Q, QuantileDefinition.R7);
+            Assert.True(q.Low <= truth && truth <= q.High, $"q={q.Q}: true {truth} outside [{q.Low}, {q.High}]");
+        }
     }
 
     private static MeterProvider Provider(string meter, ServerProcess server, OtlpExportProtocol protocol, MetricReaderTemporalityPreference temporality) =>
