@@ -3,6 +3,7 @@ using Microsoft.Extensions.Logging;
 using SummaryService.Readable;
 using SummaryService.Sketches.Serialization;
 using SummaryService.Store.Persistence;
+using SummaryService.Store.Segments;
 
 namespace SummaryService.Store;
 
@@ -83,7 +84,15 @@ public sealed class PersistentSeriesStore : ISeriesStore, IStoreMaintenance, IAs
         files ??= new LocalDataFiles();
         var log = new FileBatchLog(Path.Combine(persistence.DataDirectory, "wal"), persistence.LogSyncInterval, logger, files, logSyncObserved);
         var snapshots = new FileSnapshotStore(Path.Combine(persistence.DataDirectory, "snapshots"), files, logger);
-        return Open(options, persistence, log, snapshots, time, logger, producers);
+        PersistentSeriesStore store = Open(options, persistence, log, snapshots, time, logger, producers);
+        if (persistence.Segments is { } segments)
+        {
+            var shelf = new SegmentShelf(Path.Combine(persistence.DataDirectory, "segments"), segments, files);
+            shelf.Clear();
+            store.Inner.Segments = shelf;
+        }
+
+        return store;
     }
 
     /// <summary>
@@ -168,7 +177,11 @@ public sealed class PersistentSeriesStore : ISeriesStore, IStoreMaintenance, IAs
     public DurabilityMode Durability => _persistence.Durability;
 
     /// <inheritdoc/>
-    public ValueTask RollAsync(CancellationToken cancellationToken = default) => Inner.RollAsync(cancellationToken);
+    public ValueTask RollAsync(CancellationToken cancellationToken = default)
+    {
+        Roll();
+        return ValueTask.CompletedTask;
+    }
 
     /// <inheritdoc/>
     public async Task<SnapshotInfo?> WriteSnapshotAsync(CancellationToken cancellationToken = default) =>
@@ -178,7 +191,18 @@ public sealed class PersistentSeriesStore : ISeriesStore, IStoreMaintenance, IAs
     public StoreStats GetStats() => Inner.GetStats();
 
     /// <summary>Rolls aged buckets at the store clock's time (synchronous, for in-process callers).</summary>
-    public void Roll() => Inner.Roll();
+    public void Roll()
+    {
+        Inner.Roll();
+        try
+        {
+            Inner.MoveAgedBuckets();
+        }
+        catch (IOException ex)
+        {
+            _logger.LogWarning(ex, "Aged buckets stay in memory for now: a segment could not be written ({Problem}).", ex.Message);
+        }
+    }
 
     /// <summary>
     /// Writes a new snapshot generation, prunes old ones and the log segments they no longer need.
@@ -294,6 +318,7 @@ public sealed class PersistentSeriesStore : ISeriesStore, IStoreMaintenance, IAs
 
         await _log.DisposeAsync().ConfigureAwait(false);
         _snapshotGate.Dispose();
+        Inner.Segments?.Dispose();
     }
 
     /// <summary>Closes the log without a final snapshot, as a crash right after the last fsync would leave things.</summary>
@@ -302,6 +327,7 @@ public sealed class PersistentSeriesStore : ISeriesStore, IStoreMaintenance, IAs
         _disposed = true;
         await _log.DisposeAsync().ConfigureAwait(false);
         _snapshotGate.Dispose();
+        Inner.Segments?.Dispose();
     }
 
     private static bool TryLoad(ISnapshotStore snapshots, ulong generation, StoreOptions options, TimeProvider time, IProducerLedger? producers, out ShardedSeriesStore? store, out SnapshotMark? mark, RecoveryReport report, out string? problem, bool salvage = false)

@@ -62,6 +62,12 @@ public sealed partial class ShardedSeriesStore
                     }
                 }
 
+                // Until snapshots list segments, they hold aged buckets whole, read back from their files.
+                lock (timeline)
+                {
+                    buckets.AddRange(timeline.LoadAged().Select(a => new StoredBucket(a.Tier, a.Start, a.Sketch)));
+                }
+
                 writer.AddSeries(key, buckets);
             }
 
