@@ -83,6 +83,37 @@ internal sealed partial class SeriesTimeline
         }
     }
 
+    /// <summary>Every bucket of the timeline held in a segment.</summary>
+    public IEnumerable<AgedBucket> AgedBuckets() => _aged?.SelectMany(t => t.Values) ?? [];
+
+    /// <summary>
+    /// Puts back a bucket a snapshot's manifest lists: as a reference into its segment when it
+    /// fits the current tier layout and no bucket holds its start yet, otherwise read and placed
+    /// like any other saved bucket. Returns the change in estimated bytes.
+    /// </summary>
+    public long AddAged(int tier, AgedBucket aged, long nowMs)
+    {
+        long start = aged.Location.StartMs;
+        bool fits = tier < _tiers.Length && options.Tiers[tier].WidthMs == aged.Segment.Reader.Info.WidthMs && AlignDown(start, options.Tiers[tier].WidthMs) == start;
+        _aged ??= CreateAged(_tiers.Length);
+        if (fits && !_tiers[tier].ContainsKey(start) && !_aged[tier].ContainsKey(start))
+        {
+            aged.Segment.AddReference();
+            _aged[tier].Add(start, aged);
+            return 0;
+        }
+
+        try
+        {
+            return Place(fits ? tier : -1, start, aged.Load(), nowMs);
+        }
+        catch (SegmentDamagedException ex)
+        {
+            (_lost ??= []).Add(new LostSpan(new TimeWindow(start, start + aged.Segment.Reader.Info.WidthMs), ex.FileName));
+            return 0;
+        }
+    }
+
     /// <summary>Every aged bucket read back, for a snapshot that holds buckets whole; unreadable ones are recorded as lost and left out.</summary>
     public IEnumerable<(int Tier, long Start, SeriesSketch Sketch)> LoadAged()
     {

@@ -84,4 +84,18 @@ public sealed partial class ShardedSeriesStore
         segment.Settle();
         return true;
     }
+
+    /// <summary>Puts back a bucket that a loaded snapshot's manifest lists in a segment.</summary>
+    internal void PlaceAged(SeriesKey key, int tier, AgedBucket aged)
+    {
+        SeriesShard shard = ShardOf(key);
+        lock (shard.Gate)
+        {
+            SeriesTimeline timeline = RecoveredTimeline(shard, key);
+            lock (timeline)
+            {
+                shard.EstimatedBytes += timeline.AddAged(tier, aged, NowMs());
+            }
+        }
+    }
 }

@@ -10,7 +10,8 @@ namespace SummaryService.Store.Segments;
 /// header  "SSEG" u32 version, u32 shard, u32 tier, i64 width ms, i64 from ms, i64 to ms, u32 CRC-32 of the 40 bytes before it
 /// blocks  one after another; each: u32 bucket count, then per bucket i64 start ms, u32 length, that many sketch bytes
 /// index   u32 entry count, then per block: series key, i64 first start, i64 last start, u32 buckets,
-///         u64 values, u64 offset, u32 length, u32 CRC-32 of the block
+///         u64 values, u64 offset, u32 length, u32 CRC-32 of the block, then per bucket
+///         i64 start, u64 offset, u32 length, u64 values (so buckets are found without reading blocks)
 /// footer  u64 index offset, u32 index length, u32 CRC-32 of the index, u32 block count, "GESS"
 /// </code>
 /// Blocks follow series order (the series key's canonical form, ordinal) and, within a series,

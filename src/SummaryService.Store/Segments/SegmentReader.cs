@@ -19,8 +19,9 @@ internal sealed class SegmentReader : IDisposable
     private readonly MemoryMappedViewAccessor _view;
     private readonly int[] _checked;
 
-    private SegmentReader(string path, MemoryMappedFile map, MemoryMappedViewAccessor view, SegmentInfo info, SegmentBlock[] blocks)
+    private SegmentReader(string path, MemoryMappedFile map, MemoryMappedViewAccessor view, SegmentInfo info, SegmentBlock[] blocks, BucketLocation[] buckets)
     {
+        Buckets = buckets;
         Path = path;
         _map = map;
         _view = view;
@@ -37,6 +38,9 @@ internal sealed class SegmentReader : IDisposable
 
     /// <summary>The index: every block in file order (series order, then time order).</summary>
     public IReadOnlyList<SegmentBlock> Blocks { get; }
+
+    /// <summary>Every bucket in file order (its <see cref="BucketLocation.Ordinal"/> is its place here).</summary>
+    public IReadOnlyList<BucketLocation> Buckets { get; }
 
     /// <summary>Maps and checks the file at <paramref name="path"/>.</summary>
     /// <exception cref="SegmentDamagedException">The file is cut short, fails a checksum or cannot be decoded.</exception>
@@ -56,8 +60,8 @@ internal sealed class SegmentReader : IDisposable
         try
         {
             view = map.CreateViewAccessor(0, length, MemoryMappedFileAccess.Read);
-            var (info, blocks) = ReadFrame(view, length, name);
-            return new SegmentReader(path, map, view, info, blocks);
+            var (info, blocks, buckets) = ReadFrame(view, length, name);
+            return new SegmentReader(path, map, view, info, blocks, buckets);
         }
         catch
         {
@@ -157,7 +161,7 @@ internal sealed class SegmentReader : IDisposable
 
     private SegmentDamagedException Damaged(string problem, Exception? inner = null) => new(Info.FileName, problem, inner);
 
-    private static (SegmentInfo Info, SegmentBlock[] Blocks) ReadFrame(MemoryMappedViewAccessor view, long length, string name)
+    private static (SegmentInfo Info, SegmentBlock[] Blocks, BucketLocation[] Buckets) ReadFrame(MemoryMappedViewAccessor view, long length, string name)
     {
         var header = new byte[SegmentLayout.HeaderBytes];
         view.ReadArray(0, header, 0, header.Length);
@@ -207,9 +211,10 @@ internal sealed class SegmentReader : IDisposable
         long from = BinaryPrimitives.ReadInt64LittleEndian(header.AsSpan(24));
         long to = BinaryPrimitives.ReadInt64LittleEndian(header.AsSpan(32));
         SegmentBlock[] blocks;
+        var buckets = new List<BucketLocation>();
         try
         {
-            blocks = ReadIndex(index, (long)indexOffset);
+            blocks = ReadIndex(index, (long)indexOffset, buckets);
         }
         catch (FormatException ex)
         {
@@ -221,27 +226,27 @@ internal sealed class SegmentReader : IDisposable
             throw new SegmentDamagedException(name, $"its footer counts {blockCount} blocks, its index lists {blocks.Length}");
         }
 
-        return (new SegmentInfo(name, shard, tier, width, from, to, length, blocks.Length), blocks);
+        return (new SegmentInfo(name, shard, tier, width, from, to, length, blocks.Length), blocks, [.. buckets]);
     }
 
     // Every block must lie between the header and the index, in file order, without overlap.
-    private static SegmentBlock[] ReadIndex(byte[] index, long indexOffset)
+    private static SegmentBlock[] ReadIndex(byte[] index, long indexOffset, List<BucketLocation> buckets)
     {
         int at = 0;
-        uint count = SegmentLayout.ReadUInt32(index, ref at);
-        if (count > index.Length)
+        uint blockCount = SegmentLayout.ReadUInt32(index, ref at);
+        if (blockCount > index.Length)
         {
-            throw new FormatException($"the index claims {count} blocks in {index.Length} bytes");
+            throw new FormatException($"the index claims {blockCount} blocks in {index.Length} bytes");
         }
 
-        var blocks = new SegmentBlock[count];
+        var blocks = new SegmentBlock[blockCount];
         long expected = SegmentLayout.HeaderBytes;
         for (int i = 0; i < blocks.Length; i++)
         {
             SeriesKey key = SegmentLayout.ReadKey(index, ref at);
             long first = SegmentLayout.ReadInt64(index, ref at);
             long last = SegmentLayout.ReadInt64(index, ref at);
-            int buckets = (int)SegmentLayout.ReadUInt32(index, ref at);
+            int count = (int)SegmentLayout.ReadUInt32(index, ref at);
             long values = SegmentLayout.ReadInt64(index, ref at);
             long offset = SegmentLayout.ReadInt64(index, ref at);
             int length = (int)SegmentLayout.ReadUInt32(index, ref at);
@@ -251,7 +256,28 @@ internal sealed class SegmentReader : IDisposable
                 throw new FormatException($"block {i} at bytes {offset}+{length} does not follow the previous one at {expected} within the file's blocks");
             }
 
-            blocks[i] = new SegmentBlock(key, first, last, buckets, values, offset, length, crc);
+            if (count > index.Length)
+            {
+                throw new FormatException($"block {i} claims {count} buckets in an index of {index.Length} bytes");
+            }
+
+            blocks[i] = new SegmentBlock(key, first, last, count, values, offset, length, crc, buckets.Count);
+            long bucketAt = offset + 4;
+            for (int b = 0; b < count; b++)
+            {
+                long start = SegmentLayout.ReadInt64(index, ref at);
+                long bucketOffset = SegmentLayout.ReadInt64(index, ref at);
+                int bucketLength = (int)SegmentLayout.ReadUInt32(index, ref at);
+                long bucketValues = SegmentLayout.ReadInt64(index, ref at);
+                if (bucketOffset != bucketAt + 12 || bucketLength < 0 || bucketOffset + bucketLength > offset + length)
+                {
+                    throw new FormatException($"bucket {b} of block {i} at bytes {bucketOffset}+{bucketLength} is not where the block's layout puts it");
+                }
+
+                buckets.Add(new BucketLocation(start, i, bucketOffset, bucketLength, bucketValues, buckets.Count));
+                bucketAt = bucketOffset + bucketLength;
+            }
+
             expected = offset + length;
         }
 

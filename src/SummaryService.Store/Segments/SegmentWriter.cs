@@ -17,6 +17,7 @@ internal sealed class SegmentWriter(int shard, int tier, long widthMs)
 {
     private readonly MemoryStream _blocks = new();
     private readonly List<SegmentBlock> _index = [];
+    private readonly List<BucketLocation> _buckets = [];
     private SeriesKey? _lastKey;
     private long _fromMs = long.MaxValue;
     private long _toMs = long.MinValue;
@@ -99,7 +100,9 @@ internal sealed class SegmentWriter(int shard, int tier, long widthMs)
                 byte[] encoded = SketchCodec.Serialize(sketch);
                 writer.Write(start);
                 writer.Write(encoded.Length);
-                locations.Add(new BucketLocation(start, _index.Count, blockOffset + block.Position, encoded.Length, sketch.Count));
+                var location = new BucketLocation(start, _index.Count, blockOffset + block.Position, encoded.Length, sketch.Count, _buckets.Count);
+                locations.Add(location);
+                _buckets.Add(location);
                 writer.Write(encoded);
                 values += sketch.Count;
                 previous = start;
@@ -110,7 +113,7 @@ internal sealed class SegmentWriter(int shard, int tier, long widthMs)
             int count = at - first;
             BinaryPrimitives.WriteUInt32LittleEndian(block.GetBuffer(), (uint)count);
             ReadOnlySpan<byte> bytes = block.GetBuffer().AsSpan(0, (int)block.Length);
-            _index.Add(new SegmentBlock(key, buckets[first].StartMs, buckets[at - 1].StartMs, count, values, blockOffset, (int)block.Length, Crc32.HashToUInt32(bytes)));
+            _index.Add(new SegmentBlock(key, buckets[first].StartMs, buckets[at - 1].StartMs, count, values, blockOffset, (int)block.Length, Crc32.HashToUInt32(bytes), _buckets.Count - count));
             _blocks.Write(bytes);
             _fromMs = Math.Min(_fromMs, buckets[first].StartMs);
             _toMs = Math.Max(_toMs, buckets[at - 1].StartMs + widthMs);
@@ -152,6 +155,13 @@ internal sealed class SegmentWriter(int shard, int tier, long widthMs)
                 writer.Write((ulong)block.Offset);
                 writer.Write((uint)block.Length);
                 writer.Write(block.Crc);
+                for (int b = block.FirstBucket; b < block.FirstBucket + block.Buckets; b++)
+                {
+                    writer.Write(_buckets[b].StartMs);
+                    writer.Write((ulong)_buckets[b].Offset);
+                    writer.Write((uint)_buckets[b].Length);
+                    writer.Write((ulong)_buckets[b].Values);
+                }
             }
         }
 
@@ -180,10 +190,11 @@ internal sealed class SegmentWriter(int shard, int tier, long widthMs)
 /// <param name="Offset">Byte offset of the block in the file.</param>
 /// <param name="Length">Its length in bytes.</param>
 /// <param name="Crc">CRC-32 of its bytes.</param>
-internal sealed record SegmentBlock(SeriesKey Key, long FirstStartMs, long LastStartMs, int Buckets, long Values, long Offset, int Length, uint Crc);
+/// <param name="FirstBucket">Ordinal of its first bucket in the file.</param>
+internal sealed record SegmentBlock(SeriesKey Key, long FirstStartMs, long LastStartMs, int Buckets, long Values, long Offset, int Length, uint Crc, int FirstBucket);
 
-/// <summary>Where one bucket lies in a segment: its block, and the offset and length of its sketch bytes in the file.</summary>
-internal readonly record struct BucketLocation(long StartMs, int Block, long Offset, int Length, long Values);
+/// <summary>Where one bucket lies in a segment: its block, the offset and length of its sketch bytes in the file, and its ordinal among the file's buckets.</summary>
+internal readonly record struct BucketLocation(long StartMs, int Block, long Offset, int Length, long Values, int Ordinal);
 
 /// <summary>A segment file as written or opened.</summary>
 /// <param name="FileName">File name in the segment directory.</param>
