@@ -201,7 +201,7 @@ public sealed class PersistentSeriesStore : ISeriesStore, IStoreMaintenance, IAs
         {
             Inner.MoveAgedBuckets();
         }
-        catch (IOException ex)
+        catch (Exception ex) when (ex is IOException or UnauthorizedAccessException)
         {
             _logger.LogWarning(ex, "Aged buckets stay in memory for now: a segment could not be written ({Problem}).", ex.Message);
         }

@@ -48,6 +48,13 @@ internal static class SegmentLayout
     public static string FileName(int shard, int tier, long fromMs, long toMs, ulong number) =>
         $"s{shard:D4}-t{tier}-{fromMs}-{toMs}-{number:D8}{Extension}";
 
+    /// <summary>The number a segment file name ends with, or 0 for another name: new segments continue after the highest on disk.</summary>
+    public static ulong NumberOf(string fileName)
+    {
+        int dash = fileName.LastIndexOf('-');
+        return fileName.EndsWith(Extension, StringComparison.Ordinal) && dash >= 0 && ulong.TryParse(fileName.AsSpan(dash + 1, fileName.Length - dash - 1 - Extension.Length), out ulong number) ? number : 0;
+    }
+
     public static void WriteKey(BinaryWriter writer, SeriesKey key)
     {
         WriteText(writer, key.Metric);

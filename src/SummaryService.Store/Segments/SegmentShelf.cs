@@ -28,6 +28,7 @@ internal sealed class SegmentShelf : IDisposable
         Options = options;
         _files = files;
         System.IO.Directory.CreateDirectory(directory);
+        _nextNumber = (long)System.IO.Directory.EnumerateFiles(directory, "*" + SegmentLayout.Extension).Select(p => SegmentLayout.NumberOf(Path.GetFileName(p))).DefaultIfEmpty(0ul).Max();
     }
 
     public string Directory { get; }

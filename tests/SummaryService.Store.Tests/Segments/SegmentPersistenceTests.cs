@@ -52,6 +52,10 @@ public sealed class SegmentPersistenceTests : IDisposable
         Assert.Equal(appended, after.Groups.Single().Sketch.Count); // every acknowledged value, once (common practice: count conservation)
         Assert.Equal(segmentFiles, SegmentFiles());
         Assert.True(reopened.Inner.GetStats().EstimatedBytes < reopened.Inner.GetStats().Buckets * 2048, "aged buckets stayed in their files");
+
+        // New segments continue the numbering after the files already there.
+        await FeedAsync(reopened, seconds: 20);
+        Assert.Contains(reopened.Inner.Segments!.Open(), s => SegmentLayout.NumberOf(s.FileName) > segmentFiles.Max(SegmentLayout.NumberOf));
     }
 
     [Fact]
