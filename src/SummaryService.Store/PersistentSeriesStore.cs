@@ -3,6 +3,7 @@ using Microsoft.Extensions.Logging;
 using SummaryService.Readable;
 using SummaryService.Sketches.Serialization;
 using SummaryService.Store.Persistence;
+using SummaryService.Store.Segments;
 
 namespace SummaryService.Store;
 
@@ -83,7 +84,8 @@ public sealed class PersistentSeriesStore : ISeriesStore, IStoreMaintenance, IAs
         files ??= new LocalDataFiles();
         var log = new FileBatchLog(Path.Combine(persistence.DataDirectory, "wal"), persistence.LogSyncInterval, logger, files, logSyncObserved);
         var snapshots = new FileSnapshotStore(Path.Combine(persistence.DataDirectory, "snapshots"), files, logger);
-        return Open(options, persistence, log, snapshots, time, logger, producers);
+        SegmentShelf? shelf = persistence.Segments is { } segments ? new SegmentShelf(Path.Combine(persistence.DataDirectory, "segments"), segments, files) : null;
+        return Open(options, persistence, log, snapshots, time, logger, producers, shelf);
     }
 
     /// <summary>
@@ -91,7 +93,11 @@ public sealed class PersistentSeriesStore : ISeriesStore, IStoreMaintenance, IAs
     /// older ones, then to the valid part of the newest), replays the log after it, and from then on
     /// logs and snapshots through the same two interfaces. The store owns both from here on.
     /// </summary>
-    public static PersistentSeriesStore Open(StoreOptions options, PersistenceOptions persistence, IBatchLog log, ISnapshotStore snapshots, TimeProvider time, ILogger logger, IProducerLedger? producers = null)
+    public static PersistentSeriesStore Open(StoreOptions options, PersistenceOptions persistence, IBatchLog log, ISnapshotStore snapshots, TimeProvider time, ILogger logger, IProducerLedger? producers = null) =>
+        Open(options, persistence, log, snapshots, time, logger, producers, segments: null);
+
+    // With segments, a generation's aged buckets come back from the segment files its manifest lists.
+    private static PersistentSeriesStore Open(StoreOptions options, PersistenceOptions persistence, IBatchLog log, ISnapshotStore snapshots, TimeProvider time, ILogger logger, IProducerLedger? producers, SegmentShelf? segments)
     {
         ArgumentNullException.ThrowIfNull(persistence);
         ArgumentNullException.ThrowIfNull(log);
@@ -102,7 +108,7 @@ public sealed class PersistentSeriesStore : ISeriesStore, IStoreMaintenance, IAs
         var onDisk = snapshots.Generations();
         foreach (ulong generation in onDisk)
         {
-            if (TryLoad(snapshots, generation, options, time, producers, out store, out loaded, report, out string? problem))
+            if (TryLoad(snapshots, segments, generation, options, time, producers, out store, out loaded, report, out string? problem))
             {
                 report.SnapshotGeneration = generation;
                 break;
@@ -113,7 +119,7 @@ public sealed class PersistentSeriesStore : ISeriesStore, IStoreMaintenance, IAs
         }
 
         // No whole generation: the valid part of the newest beats starting empty.
-        if (store is null && onDisk.Count > 0 && TryLoad(snapshots, onDisk[0], options, time, producers, out store, out loaded, report, out _, salvage: true))
+        if (store is null && onDisk.Count > 0 && TryLoad(snapshots, segments, onDisk[0], options, time, producers, out store, out loaded, report, out _, salvage: true))
         {
             report.SnapshotGeneration = onDisk[0];
             report.SnapshotSalvaged = true;
@@ -121,6 +127,12 @@ public sealed class PersistentSeriesStore : ISeriesStore, IStoreMaintenance, IAs
         }
 
         store ??= new ShardedSeriesStore(options, time, producers);
+        if (segments is not null)
+        {
+            segments.KeepOnly(onDisk);
+            store.Segments = segments;
+        }
+
         Func<SeriesKey, ulong> snapshotLsn = loaded is null ? _ => 0 : loaded.LsnOf;
         foreach (LoggedWrite record in log.ReadAll(report))
         {
@@ -168,7 +180,11 @@ public sealed class PersistentSeriesStore : ISeriesStore, IStoreMaintenance, IAs
     public DurabilityMode Durability => _persistence.Durability;
 
     /// <inheritdoc/>
-    public ValueTask RollAsync(CancellationToken cancellationToken = default) => Inner.RollAsync(cancellationToken);
+    public ValueTask RollAsync(CancellationToken cancellationToken = default)
+    {
+        Roll();
+        return ValueTask.CompletedTask;
+    }
 
     /// <inheritdoc/>
     public async Task<SnapshotInfo?> WriteSnapshotAsync(CancellationToken cancellationToken = default) =>
@@ -178,7 +194,18 @@ public sealed class PersistentSeriesStore : ISeriesStore, IStoreMaintenance, IAs
     public StoreStats GetStats() => Inner.GetStats();
 
     /// <summary>Rolls aged buckets at the store clock's time (synchronous, for in-process callers).</summary>
-    public void Roll() => Inner.Roll();
+    public void Roll()
+    {
+        Inner.Roll();
+        try
+        {
+            Inner.MoveAgedBuckets();
+        }
+        catch (Exception ex) when (ex is IOException or UnauthorizedAccessException)
+        {
+            _logger.LogWarning(ex, "Aged buckets stay in memory for now: a segment could not be written ({Problem}).", ex.Message);
+        }
+    }
 
     /// <summary>
     /// Writes a new snapshot generation, prunes old ones and the log segments they no longer need.
@@ -251,16 +278,22 @@ public sealed class PersistentSeriesStore : ISeriesStore, IStoreMaintenance, IAs
         long created = _time.GetUtcNow().ToUnixTimeMilliseconds();
         long[] tierWidths = Inner.Options.Tiers.Select(t => t.WidthMs).ToArray();
         var shardLsns = new ulong[Inner.ShardCount];
+        SegmentManifestBuilder? segments = Inner.Segments?.BeginManifest();
         int series = 0;
         long bytes;
         using (ISnapshotWriter writer = _snapshots.Begin(generation))
         {
             for (int i = 0; i < shardLsns.Length; i++)
             {
-                var (lsn, count) = Inner.ExportShard(i, writer);
+                var (lsn, count) = Inner.ExportShard(i, writer, segments);
                 shardLsns[i] = lsn;
                 series += count;
                 await writer.EndShardAsync(new ShardMark(i, shardLsns.Length, lsn, tierWidths)).ConfigureAwait(false);
+            }
+
+            if (segments is not null)
+            {
+                Inner.Segments!.WriteManifest(generation, segments);
             }
 
             bytes = writer.Complete(new SnapshotMark(generation, created, shardLsns, logStart, producers));
@@ -268,6 +301,7 @@ public sealed class PersistentSeriesStore : ISeriesStore, IStoreMaintenance, IAs
 
         _kept.Insert(0, (generation, logStart));
         _snapshots.Prune(_persistence.SnapshotsKept);
+        Inner.Segments?.KeepOnly([.. _snapshots.Generations()]);
         _kept.RemoveRange(Math.Min(_kept.Count, _persistence.SnapshotsKept), Math.Max(0, _kept.Count - _persistence.SnapshotsKept));
         _log.DeleteBefore(_kept.Min(k => k.LogStart));
         watch.Stop();
@@ -294,6 +328,7 @@ public sealed class PersistentSeriesStore : ISeriesStore, IStoreMaintenance, IAs
 
         await _log.DisposeAsync().ConfigureAwait(false);
         _snapshotGate.Dispose();
+        Inner.Segments?.Dispose();
     }
 
     /// <summary>Closes the log without a final snapshot, as a crash right after the last fsync would leave things.</summary>
@@ -302,9 +337,10 @@ public sealed class PersistentSeriesStore : ISeriesStore, IStoreMaintenance, IAs
         _disposed = true;
         await _log.DisposeAsync().ConfigureAwait(false);
         _snapshotGate.Dispose();
+        Inner.Segments?.Dispose();
     }
 
-    private static bool TryLoad(ISnapshotStore snapshots, ulong generation, StoreOptions options, TimeProvider time, IProducerLedger? producers, out ShardedSeriesStore? store, out SnapshotMark? mark, RecoveryReport report, out string? problem, bool salvage = false)
+    private static bool TryLoad(ISnapshotStore snapshots, SegmentShelf? segments, ulong generation, StoreOptions options, TimeProvider time, IProducerLedger? producers, out ShardedSeriesStore? store, out SnapshotMark? mark, RecoveryReport report, out string? problem, bool salvage = false)
     {
         store = null;
         mark = null;
@@ -341,6 +377,17 @@ public sealed class PersistentSeriesStore : ISeriesStore, IStoreMaintenance, IAs
         {
             problem = $"invalid series record: {ex.Message}";
             return false;
+        }
+
+        if (segments is not null && !segments.TryRestore(generation, report, candidate.PlaceAged, out string? segmentProblem))
+        {
+            if (!salvage)
+            {
+                problem = segmentProblem;
+                return false;
+            }
+
+            report.Warnings.Add($"aged buckets in segments are missing: {segmentProblem}");
         }
 
         candidate.Producers.Import(image.Mark.Producers);

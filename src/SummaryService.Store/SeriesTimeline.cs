@@ -13,7 +13,7 @@ namespace SummaryService.Store;
 /// there — rolled up, read back from a snapshot, uploaded or filled by late values — so that an
 /// aged bucket costs a few hundred bytes to a couple of kilobytes and answers from its log buckets.
 /// </remarks>
-internal sealed class SeriesTimeline(SeriesKey key, StoreOptions options)
+internal sealed partial class SeriesTimeline(SeriesKey key, StoreOptions options)
 {
     /// <summary>
     /// Buckets per cached block, by level. Window answers merge the largest whole blocks that fit,
@@ -26,7 +26,7 @@ internal sealed class SeriesTimeline(SeriesKey key, StoreOptions options)
 
     public SeriesKey Key { get; } = key;
 
-    public int BucketCount => _tiers.Sum(t => t.Count);
+    public int BucketCount => _tiers.Sum(t => t.Count) + AgedCount;
 
     public IReadOnlyList<SortedList<long, SeriesSketch>> Tiers => _tiers;
 
@@ -65,7 +65,7 @@ internal sealed class SeriesTimeline(SeriesKey key, StoreOptions options)
         foreach (TimeRun run in runs)
         {
             var where = Locate(run.TimeUnixMs, nowMs);
-            if (where != last && !_tiers[where.Tier].ContainsKey(where.BucketStart))
+            if (where != last && !_tiers[where.Tier].ContainsKey(where.BucketStart) && !AgedStarts(where.Tier).Contains(where.BucketStart))
             {
                 fresh++;
             }
@@ -97,6 +97,7 @@ internal sealed class SeriesTimeline(SeriesKey key, StoreOptions options)
             var tier = _tiers[i];
             long width = options.Tiers[i].WidthMs;
             long horizon = nowMs - options.Tiers[i].RetentionMs;
+            change += RollAged(i, horizon);
             while (tier.Count > 0 && tier.Keys[0] + width <= horizon)
             {
                 long bucketStart = tier.Keys[0];
@@ -130,19 +131,21 @@ internal sealed class SeriesTimeline(SeriesKey key, StoreOptions options)
             for (int i = 0; i < _tiers.Length; i++)
             {
                 long width = options.Tiers[i].WidthMs;
-                IList<long> starts = _tiers[i].Keys;
-                int first = FirstEndingAfter(starts, range.FromUnixMs, width);
-                if (first < starts.Count && starts[first] < range.FromUnixMs && starts[first] < range.ToUnixMs)
+                foreach (IList<long> starts in StartLists(i))
                 {
-                    range = range with { FromUnixMs = starts[first] };
-                    widened = true;
-                }
+                    int first = FirstEndingAfter(starts, range.FromUnixMs, width);
+                    if (first < starts.Count && starts[first] < range.FromUnixMs && starts[first] < range.ToUnixMs)
+                    {
+                        range = range with { FromUnixMs = starts[first] };
+                        widened = true;
+                    }
 
-                int last = FirstEndingAfter(starts, range.ToUnixMs - 1, width);
-                if (last < starts.Count && starts[last] < range.ToUnixMs && starts[last] + width > range.ToUnixMs)
-                {
-                    range = range with { ToUnixMs = starts[last] + width };
-                    widened = true;
+                    int last = FirstEndingAfter(starts, range.ToUnixMs - 1, width);
+                    if (last < starts.Count && starts[last] < range.ToUnixMs && starts[last] + width > range.ToUnixMs)
+                    {
+                        range = range with { ToUnixMs = starts[last] + width };
+                        widened = true;
+                    }
                 }
             }
         }
@@ -158,9 +161,8 @@ internal sealed class SeriesTimeline(SeriesKey key, StoreOptions options)
     {
         for (int i = 0; i < _tiers.Length; i++)
         {
-            var tier = _tiers[i];
+            var (starts, copyAt) = View(i, range);
             long width = options.Tiers[i].WidthMs;
-            IList<long> starts = tier.Keys;
             int j = FirstEndingAfter(starts, range.FromUnixMs, width);
             while (j < starts.Count && starts[j] < range.ToUnixMs)
             {
@@ -179,7 +181,11 @@ internal sealed class SeriesTimeline(SeriesKey key, StoreOptions options)
 
                 if (block is not { } key)
                 {
-                    into.Add(QueryPart.Bucket(tier.Values[j].Clone()));
+                    if (copyAt(j) is { } copy)
+                    {
+                        into.Add(QueryPart.Bucket(copy));
+                    }
+
                     j++;
                     continue;
                 }
@@ -199,7 +205,11 @@ internal sealed class SeriesTimeline(SeriesKey key, StoreOptions options)
                 var copies = new List<SeriesSketch>();
                 while (j < starts.Count && starts[j] < end)
                 {
-                    copies.Add(tier.Values[j].Clone());
+                    if (copyAt(j) is { } copy)
+                    {
+                        copies.Add(copy);
+                    }
+
                     j++;
                 }
 
@@ -273,6 +283,7 @@ internal sealed class SeriesTimeline(SeriesKey key, StoreOptions options)
 
     private long AddToBucket(int tier, long bucketStart, ReadOnlySpan<double> values)
     {
+        long restored = Materialize(tier, bucketStart);
         Invalidate(tier, bucketStart);
         var buckets = _tiers[tier];
         if (!buckets.TryGetValue(bucketStart, out var sketch))
@@ -287,7 +298,7 @@ internal sealed class SeriesTimeline(SeriesKey key, StoreOptions options)
         long previous = sketch.EstimatedBytes;
         sketch.Add(values);
         KeepForm(tier, sketch);
-        return sketch.EstimatedBytes - previous;
+        return restored + sketch.EstimatedBytes - previous;
     }
 
     // Puts a whole sketch into a bucket (merging into one already there) in the tier's form; returns
@@ -295,6 +306,7 @@ internal sealed class SeriesTimeline(SeriesKey key, StoreOptions options)
     // is built only to be dropped.
     private long PutInto(int tier, long bucketStart, SeriesSketch sketch)
     {
+        long restored = Materialize(tier, bucketStart);
         KeepForm(tier, sketch);
         var buckets = _tiers[tier];
         if (buckets.TryGetValue(bucketStart, out var existing))
@@ -308,11 +320,11 @@ internal sealed class SeriesTimeline(SeriesKey key, StoreOptions options)
                 existing.TrimExcess();
             }
 
-            return existing.EstimatedBytes - before;
+            return restored + existing.EstimatedBytes - before;
         }
 
         buckets.Add(bucketStart, sketch);
-        return sketch.EstimatedBytes;
+        return restored + sketch.EstimatedBytes;
     }
 
     // Past the first tier a bucket is compact; compacting one that already is costs a few checks.

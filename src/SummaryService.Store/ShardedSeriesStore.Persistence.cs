@@ -1,5 +1,6 @@
 using SummaryService.Sketches;
 using SummaryService.Store.Persistence;
+using SummaryService.Store.Segments;
 
 namespace SummaryService.Store;
 
@@ -44,8 +45,12 @@ public sealed partial class ShardedSeriesStore
 
     internal ulong LastLsn => (ulong)Interlocked.Read(ref _lastLsn);
 
-    /// <summary>Hands the shard's series to <paramref name="writer"/> under its lock; returns the shard's applied LSN and how many series it handed over.</summary>
-    internal (ulong AppliedLsn, int Series) ExportShard(int index, ISnapshotWriter writer)
+    /// <summary>
+    /// Hands the shard's series to <paramref name="writer"/> under its lock; returns the shard's
+    /// applied LSN and how many series it handed over. Buckets in segments go into
+    /// <paramref name="segments"/> as references when given, else whole into the writer.
+    /// </summary>
+    internal (ulong AppliedLsn, int Series) ExportShard(int index, ISnapshotWriter writer, SegmentManifestBuilder? segments = null)
     {
         SeriesShard shard = _shards[index];
         var buckets = new List<StoredBucket>();
@@ -59,6 +64,21 @@ public sealed partial class ShardedSeriesStore
                     foreach (var (start, sketch) in timeline.Tiers[tier])
                     {
                         buckets.Add(new StoredBucket(tier, start, sketch));
+                    }
+                }
+
+                lock (timeline)
+                {
+                    if (segments is null)
+                    {
+                        buckets.AddRange(timeline.LoadAged().Select(a => new StoredBucket(a.Tier, a.Start, a.Sketch)));
+                    }
+                    else
+                    {
+                        foreach (AgedBucket aged in timeline.AgedBuckets())
+                        {
+                            segments.Mark(aged);
+                        }
                     }
                 }
 

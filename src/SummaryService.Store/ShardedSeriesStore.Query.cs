@@ -96,6 +96,7 @@ public sealed partial class ShardedSeriesStore
                     parts[g] = CopyParts(_groups[g].Series, step);
                 }
 
+                NarrowPastLoss(step);
                 if (_covered[step] == atStart)
                 {
                     break;
@@ -109,6 +110,33 @@ public sealed partial class ShardedSeriesStore
             }
 
             return new WindowSketches(results, _covered[step]);
+        }
+
+        // A damaged segment found while copying leaves its buckets out: the step then starts after
+        // the last loss it touches, at a bucket edge of every series, and is copied afresh.
+        private void NarrowPastLoss(int step)
+        {
+            bool lost = false;
+            foreach (SeriesTimeline timeline in _groups.SelectMany(g => g.Series))
+            {
+                lock (timeline)
+                {
+                    lost |= timeline.LostWithin(_covered[step]);
+                }
+            }
+
+            bool moved = lost;
+            while (moved)
+            {
+                moved = false;
+                foreach (SeriesTimeline timeline in _groups.SelectMany(g => g.Series))
+                {
+                    lock (timeline)
+                    {
+                        moved |= timeline.NarrowPastLoss(ref _covered[step]);
+                    }
+                }
+            }
         }
 
         // Widening needs no copies, so every step settles first with one short lock per series;

@@ -190,7 +190,13 @@ public sealed partial class ShardedSeriesStore : ISeriesStore, IStoreMaintenance
 
             shard.EstimatedBytes -= timeline.EstimatedBytes;
             ReleaseSeries(key);
-            return InfoOf(timeline);
+            SeriesInfo info = InfoOf(timeline);
+            lock (timeline)
+            {
+                timeline.ReleaseAged();
+            }
+
+            return info;
         }
     }
 
@@ -203,9 +209,9 @@ public sealed partial class ShardedSeriesStore : ISeriesStore, IStoreMaintenance
         for (int i = 0; i < timeline.Tiers.Count; i++)
         {
             long width = _options.Tiers[i].WidthMs;
-            foreach (var (start, sketch) in timeline.Tiers[i])
+            foreach (var (start, values) in timeline.Tiers[i].Select(b => (b.Key, b.Value.Count)).Concat(timeline.AgedCounts(i)))
             {
-                count += sketch.Count;
+                count += values;
                 from = Math.Min(from, start);
                 to = Math.Max(to, start + width);
             }
@@ -234,7 +240,7 @@ public sealed partial class ShardedSeriesStore : ISeriesStore, IStoreMaintenance
                 {
                     for (int i = 0; i < tierBuckets.Length; i++)
                     {
-                        tierBuckets[i] += timeline.Tiers[i].Count;
+                        tierBuckets[i] += timeline.Tiers[i].Count + timeline.AgedStarts(i).Count;
                         tierBytes[i] += timeline.EstimatedBytesOfTier(i);
                     }
 

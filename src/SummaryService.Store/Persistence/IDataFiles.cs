@@ -19,4 +19,10 @@ public interface IDataFiles
 
     /// <summary>Renames a directory: how a completed snapshot generation appears.</summary>
     void MoveDirectory(string from, string to);
+
+    /// <summary>Renames a file, never over an existing one: how a completed segment file appears.</summary>
+    void MoveFile(string from, string to) => File.Move(from, to, overwrite: false);
+
+    /// <summary>Removes a file if it is there: how a retired segment goes.</summary>
+    void DeleteFile(string path) => File.Delete(path);
 }

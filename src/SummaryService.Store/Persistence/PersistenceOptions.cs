@@ -1,3 +1,5 @@
+using SummaryService.Store.Segments;
+
 namespace SummaryService.Store.Persistence;
 
 /// <summary>Where and how the store keeps its data on disk.</summary>
@@ -17,4 +19,7 @@ public sealed record PersistenceOptions
 
     /// <summary>Snapshot generations kept; the newest is loaded, older ones are the fallback.</summary>
     public int SnapshotsKept { get; init; } = 2;
+
+    /// <summary>How aged buckets are kept in segment files under <c>segments/</c>; null keeps every bucket in memory.</summary>
+    public SegmentOptions? Segments { get; init; } = new();
 }

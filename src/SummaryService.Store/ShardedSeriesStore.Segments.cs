@@ -1,0 +1,101 @@
+using SummaryService.Sketches;
+using SummaryService.Store.Segments;
+
+namespace SummaryService.Store;
+
+/// <summary>
+/// Aged buckets leave memory for segment files: per shard and tier, the due buckets of every series
+/// are encoded under the shard lock, written to one segment off it, and then swapped for references
+/// into the file — each only if it did not change meanwhile.
+/// </summary>
+public sealed partial class ShardedSeriesStore
+{
+    /// <summary>Where aged buckets go; null keeps every bucket in memory.</summary>
+    internal SegmentShelf? Segments { get; set; }
+
+    /// <summary>
+    /// Moves the buckets due to leave memory (see <see cref="SegmentShelf.CutoffFor"/>) into new
+    /// segments, one per shard and tier that has any. Returns the segments written. A segment that
+    /// cannot be written leaves its buckets in memory and is retried at the next pass.
+    /// </summary>
+    internal int MoveAgedBuckets()
+    {
+        if (Segments is not { } shelf)
+        {
+            return 0;
+        }
+
+        long now = NowMs();
+        int written = 0;
+        for (int s = 0; s < _shards.Length; s++)
+        {
+            for (int tier = 0; tier < _options.Tiers.Count; tier++)
+            {
+                written += MoveTier(shelf, s, tier, shelf.CutoffFor(tier, now)) ? 1 : 0;
+            }
+        }
+
+        return written;
+    }
+
+    private bool MoveTier(SegmentShelf shelf, int shardIndex, int tier, long cutoff)
+    {
+        SeriesShard shard = _shards[shardIndex];
+        var writer = new SegmentWriter(shardIndex, tier, _options.Tiers[tier].WidthMs);
+        var taken = new List<(SeriesTimeline Timeline, List<(long StartMs, SeriesSketch Sketch)> Buckets, long[] Counts, IReadOnlyList<BucketLocation> Locations)>();
+        lock (shard.Gate)
+        {
+            foreach (SeriesTimeline timeline in shard.Series.Values.OrderBy(t => t.Key.Canonical, StringComparer.Ordinal))
+            {
+                lock (timeline)
+                {
+                    var movable = timeline.Movable(tier, cutoff);
+                    if (movable.Count > 0)
+                    {
+                        long[] counts = [.. movable.Select(b => b.Sketch.Count)];
+                        taken.Add((timeline, movable, counts, writer.Add(timeline.Key, movable)));
+                    }
+                }
+            }
+        }
+
+        if (taken.Count == 0)
+        {
+            return false;
+        }
+
+        SegmentHandle segment = shelf.Write(writer);
+        lock (shard.Gate)
+        {
+            foreach (var (timeline, buckets, counts, locations) in taken)
+            {
+                if (!shard.Series.TryGetValue(timeline.Key, out var current) || !ReferenceEquals(current, timeline))
+                {
+                    continue;
+                }
+
+                lock (timeline)
+                {
+                    shard.EstimatedBytes += timeline.ToAged(tier, buckets, counts, segment, locations);
+                }
+            }
+        }
+
+        segment.Settle();
+        return true;
+    }
+
+    /// <summary>Puts back a bucket that a loaded snapshot's manifest lists in a segment.</summary>
+    internal void PlaceAged(SeriesKey key, int tier, AgedBucket aged)
+    {
+        SeriesShard shard = ShardOf(key);
+        lock (shard.Gate)
+        {
+            SeriesTimeline timeline = RecoveredTimeline(shard, key);
+            lock (timeline)
+            {
+                shard.EstimatedBytes += timeline.AddAged(tier, aged, NowMs());
+            }
+        }
+    }
+}
