@@ -31,7 +31,7 @@ public sealed partial class ShardedSeriesStore
         {
             for (int tier = 0; tier < _options.Tiers.Count; tier++)
             {
-                written += MoveTier(shelf, s, tier, shelf.CutoffFor(tier, now)) ? 1 : 0;
+                written += MoveTier(shelf, s, tier, shelf.CutoffFor(tier, _options.Tiers[tier].WidthMs, now)) ? 1 : 0;
             }
         }
 

@@ -44,11 +44,16 @@ internal sealed class SegmentShelf : IDisposable
         }
     }
 
-    /// <summary>Buckets of tier <paramref name="tier"/> ending at or before this time leave memory.</summary>
-    public long CutoffFor(int tier, long nowMs)
+    /// <summary>
+    /// Buckets of tier <paramref name="tier"/> ending at or before this time leave memory. Coarse
+    /// tiers leave in spans of <see cref="SegmentOptions.BucketsPerSpan"/> of their own buckets (an
+    /// hourly tier in 60-hour spans), so every tier writes files of about the same number of buckets
+    /// and 90 days of hourly buckets make a few dozen files per shard, not thousands.
+    /// </summary>
+    public long CutoffFor(int tier, long widthMs, long nowMs)
     {
         long edge = tier == 0 ? nowMs - Options.HotSpanMs : nowMs;
-        return SeriesTimeline.AlignDown(edge, Options.SegmentSpanMs);
+        return SeriesTimeline.AlignDown(edge, Options.SpanMsFor(widthMs));
     }
 
     /// <summary>

@@ -28,7 +28,7 @@ public sealed class SegmentPersistenceTests : IDisposable
         DataDirectory = _dir.Path,
         Durability = DurabilityMode.Wal,
         LogSyncInterval = TimeSpan.FromMilliseconds(1),
-        Segments = segments ? new SegmentOptions { HotSpan = TimeSpan.FromSeconds(5), SegmentSpan = TimeSpan.FromSeconds(5) } : null,
+        Segments = segments ? new SegmentOptions { HotSpan = TimeSpan.FromSeconds(5), SegmentSpan = TimeSpan.FromSeconds(5), BucketsPerSpan = 1 } : null,
     };
 
     private long Now => _clock.GetUtcNow().ToUnixTimeMilliseconds();

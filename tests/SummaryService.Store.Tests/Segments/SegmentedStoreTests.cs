@@ -29,7 +29,7 @@ public sealed class SegmentedStoreTests : IDisposable
         var options = new StoreOptions { Tiers = StoreFixture.SmallTiers, ShardCount = 2 };
         _segmented = new ShardedSeriesStore(options, _clock);
         _inMemory = new ShardedSeriesStore(options, _clock);
-        _shelf = new SegmentShelf(_dir.Path, new SegmentOptions { HotSpan = TimeSpan.FromSeconds(5), SegmentSpan = TimeSpan.FromSeconds(5) }, new LocalDataFiles());
+        _shelf = new SegmentShelf(_dir.Path, new SegmentOptions { HotSpan = TimeSpan.FromSeconds(5), SegmentSpan = TimeSpan.FromSeconds(5), BucketsPerSpan = 1 }, new LocalDataFiles());
         _segmented.Segments = _shelf;
         _begin = _clock.GetUtcNow().ToUnixTimeMilliseconds();
     }
