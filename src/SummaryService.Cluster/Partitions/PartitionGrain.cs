@@ -29,8 +29,18 @@ internal sealed class PartitionGrain(IPartitionStorage storage, PartitionSetup s
 
     public override async Task OnActivateAsync(CancellationToken cancellationToken)
     {
-        var (log, snapshots) = storage.Open(Partition);
-        _store = await Task.Run(() => PersistentSeriesStore.Open(setup.Store, setup.Persistence, log, snapshots, time, logger, new ProducerSequences()), cancellationToken).ConfigureAwait(true);
+        try
+        {
+            var (log, snapshots) = storage.Open(Partition);
+            _store = await Task.Run(() => PersistentSeriesStore.Open(setup.Store, setup.Persistence, log, snapshots, time, logger, new ProducerSequences()), cancellationToken).ConfigureAwait(true);
+        }
+        catch (Exception ex) when (ex is not OperationCanceledException)
+        {
+            // Only the message travels: the caller's node may not know the storage's exception types.
+            logger.LogError(ex, "Partition {Partition} could not be opened.", Partition);
+            throw new StorageUnavailableException($"partition {Partition} could not be opened: {ex.Message}");
+        }
+
         logger.LogInformation("Partition {Partition} active on {Node}: {Recovery}.", Partition, silo.SiloAddress, _store.Recovery);
         if (setup.Persistence.Durability != DurabilityMode.None)
         {

@@ -10,7 +10,9 @@ namespace SummaryService.Cluster.Postgres;
 /// insert runs go together in the next, one statement and one commit for all of them. A record's
 /// task completes once its commit has, or fails when the insert fails; the failed records stay
 /// first in line and are written again once the database answers (a retried record that did land
-/// is skipped by its key), so nothing accepted is left out of the log.
+/// is skipped by its key), so nothing accepted is left out of the log. Failures carry the
+/// database's message, not its exception: they travel between nodes, and Orleans serializes only
+/// exceptions whose every part it knows.
 /// </summary>
 public sealed class PostgresLogWriter : IAsyncDisposable
 {
@@ -92,13 +94,13 @@ public sealed class PostgresLogWriter : IAsyncDisposable
             {
                 if (_stopping.IsCancellationRequested)
                 {
-                    Fail(group, new StorageUnavailableException("the batch log could not be written before the node stopped.", ex));
+                    Fail(group, new StorageUnavailableException($"the batch log could not be written before the node stopped: {ex.Message}"));
                     return;
                 }
 
                 _trouble = $"the batch log cannot be written to PostgreSQL: {ex.Message}";
                 _logger.LogWarning("Batch log: {Records} records not committed ({Reason}); trying again in {Retry}.", group.Count, ex.Message, RetryInterval);
-                Fail(group, new StorageUnavailableException(_trouble, ex));
+                Fail(group, new StorageUnavailableException(_trouble));
                 await Task.Delay(RetryInterval).ConfigureAwait(false);
             }
         }
