@@ -31,8 +31,9 @@ internal sealed class PartitionGrain(IPartitionStorage storage, PartitionSetup s
     {
         try
         {
+            // The data directory names only where recovery logs say the store came from.
             var (log, snapshots) = storage.Open(Partition);
-            _store = await Task.Run(() => PersistentSeriesStore.Open(setup.Store, setup.Persistence, log, snapshots, time, logger, new ProducerSequences()), cancellationToken).ConfigureAwait(true);
+            _store = await Task.Run(() => PersistentSeriesStore.Open(setup.Store, setup.Persistence with { DataDirectory = $"partition {Partition} in PostgreSQL" }, log, snapshots, time, logger, new ProducerSequences()), cancellationToken).ConfigureAwait(true);
         }
         catch (Exception ex) when (ex is not OperationCanceledException)
         {

@@ -44,15 +44,19 @@ public sealed class PostgresServer : IAsyncLifetime
     /// <summary>A new database with the cluster's schema in place, as a node leaves it at start-up; its connection string.</summary>
     public async Task<string> NewDatabaseAsync()
     {
-        string name = $"test{Interlocked.Increment(ref _databases)}";
-        await using (NpgsqlDataSource admin = NpgsqlDataSource.Create(ConnectionString("postgres")))
-        await using (NpgsqlCommand create = admin.CreateCommand($"CREATE DATABASE {name}"))
-        {
-            await create.ExecuteNonQueryAsync();
-        }
-
-        await using NpgsqlDataSource database = NpgsqlDataSource.Create(ConnectionString(name));
+        string connection = await NewEmptyDatabaseAsync();
+        await using NpgsqlDataSource database = NpgsqlDataSource.Create(connection);
         await PostgresSchema.MigrateAsync(database);
+        return connection;
+    }
+
+    /// <summary>A new empty database, whose schema a server creates at start-up; its connection string.</summary>
+    public async Task<string> NewEmptyDatabaseAsync()
+    {
+        string name = $"test{Interlocked.Increment(ref _databases)}";
+        await using NpgsqlDataSource admin = NpgsqlDataSource.Create(ConnectionString("postgres"));
+        await using NpgsqlCommand create = admin.CreateCommand($"CREATE DATABASE {name}");
+        await create.ExecuteNonQueryAsync();
         return ConnectionString(name);
     }
 
