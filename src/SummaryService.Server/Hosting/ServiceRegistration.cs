@@ -34,16 +34,12 @@ public static class ServiceRegistration
         services.AddSingleton<ServerMetrics>();
         services.TryAddSingleton<IDataFiles, LocalDataFiles>();
         services.TryAddSingleton<IProducerLedger, ProducerSequences>();
-        services.AddSingleton<StoreHost>();
-        services.AddSingleton(provider => provider.GetRequiredService<StoreHost>().Store);
-        services.AddSingleton(provider => provider.GetRequiredService<StoreHost>().Maintenance);
+        builder.AddStore();
         services.AddSingleton<ApiKeyRegistry>();
         services.AddSingleton<RefusalLog>();
         services.AddSingleton<IngestBudget>();
         services.AddHostedService<RefusalLogFlush>();
         services.AddHostedService<StartupNotices>();
-        services.AddHostedService<SnapshotService>();
-        services.AddHostedService<RollupService>();
         services.AddOtlpMetrics(builder.Configuration);
 
         int maxMessage = builder.Configuration.GetSection(ServerSettings.SectionName).Get<ServerSettings>()?.MaxMessageBytes ?? new ServerSettings().MaxMessageBytes;

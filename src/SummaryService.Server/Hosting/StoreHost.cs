@@ -25,11 +25,7 @@ public sealed class StoreHost : IAsyncDisposable
         ArgumentNullException.ThrowIfNull(auth);
         ArgumentNullException.ThrowIfNull(metrics);
 
-        // With keys configured, a key's metric prefixes are the tenants whose series are counted together.
-        StoreOptions options = store.Value.ToStoreOptions() with
-        {
-            TenantPrefixes = auth.Value.Enabled ? auth.Value.Keys.SelectMany(k => k.Prefixes).Where(p => p.Length > 0).Distinct(StringComparer.Ordinal).ToArray() : [],
-        };
+        StoreOptions options = OptionsOf(store.Value, auth.Value);
         Func<StoreStats> stats;
         if (persistence.Value.Durability == DurabilityMode.None)
         {
@@ -50,6 +46,17 @@ public sealed class StoreHost : IAsyncDisposable
             StoreStats figures = stats();
             return (figures.Series, figures.Buckets);
         });
+    }
+
+    /// <summary>The store's settings; with keys configured, a key's metric prefixes are the tenants whose series are counted together.</summary>
+    public static StoreOptions OptionsOf(StoreSettings store, AuthSettings auth)
+    {
+        ArgumentNullException.ThrowIfNull(store);
+        ArgumentNullException.ThrowIfNull(auth);
+        return store.ToStoreOptions() with
+        {
+            TenantPrefixes = auth.Enabled ? auth.Keys.SelectMany(k => k.Prefixes).Where(p => p.Length > 0).Distinct(StringComparer.Ordinal).ToArray() : [],
+        };
     }
 
     /// <summary>The store every service uses.</summary>

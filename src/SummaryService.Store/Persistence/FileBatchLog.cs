@@ -42,7 +42,7 @@ public sealed class FileBatchLog : IBatchLog
         {
             try
             {
-                writes.Add(WriteOf(record));
+                writes.Add(StoreRecordCodec.FromRecord(record));
             }
             catch (Exception ex) when (RecoveryReport.IsUnusableContent(ex))
             {
@@ -65,7 +65,7 @@ public sealed class FileBatchLog : IBatchLog
     }
 
     /// <inheritdoc/>
-    public Task Append(LoggedWrite write) => Started.Append(RecordOf(write));
+    public Task Append(LoggedWrite write) => Started.Append(StoreRecordCodec.ToRecord(write));
 
     /// <inheritdoc/>
     public Task Barrier() => Started.Barrier();
@@ -86,31 +86,4 @@ public sealed class FileBatchLog : IBatchLog
     }
 
     private WriteAheadLog Started => _log ?? throw new InvalidOperationException("the batch log is not started; nothing can be appended before Start.");
-
-    private static LogRecord RecordOf(LoggedWrite write)
-    {
-        var record = new LogRecord { Lsn = write.Lsn, Metric = write.Key.Metric, Producer = write.Producer, Sequence = write.Sequence, FormatVersion = LogSegments.FormatVersion };
-        foreach (var (name, value) in write.Key.Labels)
-        {
-            record.Labels.Add(name, value);
-        }
-
-        record.Values.AddRange(write.Values);
-        record.TimesUnixMs.AddRange(write.TimesUnixMs);
-        if (write.Sketch is not null)
-        {
-            record.Sketch = SketchCodec.ToState(write.Sketch);
-        }
-
-        return record;
-    }
-
-    private static LoggedWrite WriteOf(LogRecord record) => new(
-        record.Lsn,
-        new SeriesKey(record.Metric, record.Labels),
-        record.Producer,
-        record.Sequence,
-        [.. record.Values],
-        [.. record.TimesUnixMs],
-        record.Sketch is null ? null : SketchCodec.FromState(record.Sketch));
 }

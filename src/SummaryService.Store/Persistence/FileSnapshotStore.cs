@@ -7,8 +7,8 @@ namespace SummaryService.Store.Persistence;
 
 /// <summary>
 /// Snapshot generations as directories of checksummed files (<see cref="SnapshotFiles"/>), written
-/// through <see cref="IDataFiles"/> by <see cref="SnapshotWriter"/>. It is the only place snapshot
-/// records are encoded or decoded.
+/// through <see cref="IDataFiles"/> by <see cref="SnapshotWriter"/>; records are translated by
+/// <see cref="StoreRecordCodec"/>.
 /// </summary>
 public sealed class FileSnapshotStore : ISnapshotStore
 {
@@ -43,7 +43,7 @@ public sealed class FileSnapshotStore : ISnapshotStore
             return false;
         }
 
-        image = new SnapshotImage(MarkOf(manifest!), shards.Select(s => new ShardImage(MarkOf(s.Header), s.Series.Select(ImageOf).ToArray())).ToArray());
+        image = new SnapshotImage(StoreRecordCodec.MarkOf(manifest!), shards.Select(s => new ShardImage(StoreRecordCodec.MarkOf(s.Header), s.Series.Select(StoreRecordCodec.ImageOf).ToArray())).ToArray());
         return true;
     }
 
@@ -55,28 +55,6 @@ public sealed class FileSnapshotStore : ISnapshotStore
 
     private string PathOf(ulong generation) => Path.Combine(_root, $"{generation:D20}");
 
-    // Snapshots written before last-seen times were kept count their producers as heard from at creation.
-    private static SnapshotMark MarkOf(SnapshotManifest manifest)
-    {
-        var producers = new Dictionary<string, ProducerMark>(StringComparer.Ordinal);
-        foreach (var (producer, highest) in manifest.Producers)
-        {
-            long seen = manifest.ProducersLastSeenUnixMs.TryGetValue(producer, out long at) ? at : manifest.CreatedUnixMs;
-            producers[producer] = new ProducerMark(highest, seen);
-        }
-
-        return new SnapshotMark(manifest.Generation, manifest.CreatedUnixMs, [.. manifest.ShardLsns], manifest.LogStart, producers);
-    }
-
-    private static ShardMark MarkOf(ShardHeader header) => new((int)header.Shard, (int)header.ShardCount, header.AppliedLsn, [.. header.TierWidthsMs]);
-
-    private static SeriesImage ImageOf(SeriesRecord record) => new(record.Metric, () =>
-    {
-        var key = new SeriesKey(record.Metric, record.Labels);
-        var buckets = record.Buckets.Select(b => new StoredBucket(b.Tier > int.MaxValue ? -1 : (int)b.Tier, b.StartUnixMs, SketchCodec.FromState(b.Sketch))).ToArray();
-        return (key, buckets);
-    });
-
     /// <summary>One generation being written: each shard's series encoded as they arrive, written when the shard ends.</summary>
     private sealed class Writer(SnapshotWriter files, ulong generation) : ISnapshotWriter
     {
@@ -86,24 +64,12 @@ public sealed class FileSnapshotStore : ISnapshotStore
         {
             // Each record is serialized at once: its message objects die young instead of piling up
             // (several times the serialized size) until the whole shard is written.
-            var record = new SeriesRecord { Metric = key.Metric };
-            foreach (var (name, value) in key.Labels)
-            {
-                record.Labels.Add(name, value);
-            }
-
-            foreach (StoredBucket bucket in buckets)
-            {
-                record.Buckets.Add(new BucketRecord { Tier = (uint)bucket.Tier, StartUnixMs = bucket.StartUnixMs, Sketch = SketchCodec.ToState(bucket.Sketch) });
-            }
-
-            _series.Add(record.ToByteArray());
+            _series.Add(StoreRecordCodec.ToRecord(key, buckets).ToByteArray());
         }
 
         public async Task EndShardAsync(ShardMark shard)
         {
-            var header = new ShardHeader { FormatVersion = SnapshotFiles.FormatVersion, Generation = generation, Shard = (uint)shard.Shard, ShardCount = (uint)shard.ShardCount, AppliedLsn = shard.AppliedLsn };
-            header.TierWidthsMs.AddRange(shard.TierWidthsMs);
+            ShardHeader header = StoreRecordCodec.ToHeader(shard, generation);
             List<byte[]> series = _series;
             _series = [];
             await Task.Run(() => files.WriteShard(header, series)).ConfigureAwait(false);
@@ -111,22 +77,7 @@ public sealed class FileSnapshotStore : ISnapshotStore
 
         public long Complete(SnapshotMark mark)
         {
-            var manifest = new SnapshotManifest
-            {
-                FormatVersion = SnapshotFiles.FormatVersion,
-                Generation = mark.Generation,
-                CreatedUnixMs = mark.CreatedUnixMs,
-                ShardCount = (uint)mark.ShardLsns.Count,
-                LogStart = mark.LogStart,
-            };
-            manifest.ShardLsns.AddRange(mark.ShardLsns);
-            foreach (var (producer, produced) in mark.Producers)
-            {
-                manifest.Producers[producer] = produced.Highest;
-                manifest.ProducersLastSeenUnixMs[producer] = produced.LastSeenUnixMs;
-            }
-
-            string directory = files.Complete(manifest);
+            string directory = files.Complete(StoreRecordCodec.ToManifest(mark));
             return Directory.EnumerateFiles(directory).Sum(f => new FileInfo(f).Length);
         }
 

@@ -1,0 +1,65 @@
+using SummaryService.Readable;
+using SummaryService.Store;
+
+namespace SummaryService.Cluster.Partitions;
+
+/// <summary>
+/// Calls partition grains with a deadline. A partition that misses it or fails makes the whole call
+/// fail with <see cref="StorageUnavailableException"/> naming it: never a silently partial answer.
+/// </summary>
+public sealed class PartitionFanOut(IGrainFactory grains, PartitionMap map, TimeSpan timeout)
+{
+    /// <summary>The partitions.</summary>
+    public PartitionMap Map { get; } = map;
+
+    /// <summary>Calls one partition.</summary>
+    public async Task<T> CallAsync<T>(int partition, Func<IPartitionGrain, Task<T>> call, CancellationToken cancellationToken)
+    {
+        ArgumentNullException.ThrowIfNull(call);
+        Task<T> task = call(grains.GetGrain<IPartitionGrain>(partition)).WaitAsync(timeout, cancellationToken);
+        try
+        {
+            return await task.ConfigureAwait(false);
+        }
+        catch (Exception ex) when (!cancellationToken.IsCancellationRequested && ex is not StoreRejectedException)
+        {
+            throw new StorageUnavailableException($"partition {Describe(partition, ex)}; nothing was answered.", ex);
+        }
+    }
+
+    /// <summary>Calls every partition at once; the answers in partition order.</summary>
+    public async Task<T[]> AllAsync<T>(Func<IPartitionGrain, Task<T>> call, CancellationToken cancellationToken)
+    {
+        ArgumentNullException.ThrowIfNull(call);
+        var tasks = new Task<T>[Map.Count];
+        for (int p = 0; p < tasks.Length; p++)
+        {
+            tasks[p] = call(grains.GetGrain<IPartitionGrain>(p)).WaitAsync(timeout, cancellationToken);
+        }
+
+        try
+        {
+            await Task.WhenAll(tasks).ConfigureAwait(false);
+        }
+        catch (Exception) when (!cancellationToken.IsCancellationRequested)
+        {
+            // Every failure is read from its own task below, so all of them are named.
+        }
+
+        cancellationToken.ThrowIfCancellationRequested();
+        var failed = Enumerable.Range(0, tasks.Length).Where(p => !tasks[p].IsCompletedSuccessfully).ToArray();
+        if (failed.Length > 0)
+        {
+            Exception first = tasks[failed[0]].Exception!.InnerException!;
+            string named = string.Join("; ", failed.Take(8).Select(p => Describe(p, tasks[p].Exception!.InnerException!)));
+            string more = failed.Length > 8 ? $" and {failed.Length - 8} more" : "";
+            throw new StorageUnavailableException($"{failed.Length} of {tasks.Length} partitions did not answer: partition {named}{more}; no partial answer is given.", first);
+        }
+
+        return [.. tasks.Select(t => t.Result)];
+    }
+
+    private string Describe(int partition, Exception failure) => failure is TimeoutException
+        ? $"{partition} missed the {DurationText.Format(timeout)} deadline"
+        : $"{partition} failed ({failure.GetType().Name}: {failure.Message})";
+}
