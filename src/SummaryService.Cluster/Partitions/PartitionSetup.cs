@@ -26,14 +26,17 @@ public sealed record PartitionSetup
             MaxSeriesPerTenant = Share(cluster.MaxSeriesPerTenant, partitions),
             MemoryBudgetBytes = Math.Max(1, cluster.MemoryBudgetBytes / partitions),
         };
-        Persistence = persistence;
+        // Segment files live on one node's disk, where a partition that moves to another node after
+        // a failure could not read them: partitions keep aged buckets in memory (in their PostgreSQL
+        // snapshots) until segments have a shared medium.
+        Persistence = persistence with { Segments = null };
         RollupInterval = rollupInterval;
     }
 
     /// <summary>Each partition's store settings.</summary>
     public StoreOptions Store { get; }
 
-    /// <summary>Durability and snapshot interval.</summary>
+    /// <summary>Durability and snapshot interval; never segment files (see the constructor).</summary>
     public PersistenceOptions Persistence { get; }
 
     /// <summary>How often each partition rolls aged buckets.</summary>
