@@ -45,13 +45,25 @@ internal sealed class BatchValidator(StoreOptions options)
             return [new TimeRun(Checked(batch.TimeUnixMs, nowMs, oldest, newest, perValueTimes: 0, 0), values.Length)];
         }
 
-        var times = new long[perValue.Length];
-        for (int i = 0; i < times.Length; i++)
+        // Checked once per run of equal times, as batches arrive, not once per value; a time of 0
+        // resolves to now, so a run of 0 beside a run of now's time joins it.
+        var runs = new List<TimeRun>();
+        int first = 0;
+        foreach (TimeRun run in TimeRun.Of(perValue))
         {
-            times[i] = Checked(perValue[i], nowMs, oldest, newest, perValue.Length, i);
+            long t = Checked(run.TimeUnixMs, nowMs, oldest, newest, perValue.Length, first);
+            first += run.Count;
+            if (runs.Count > 0 && runs[^1].TimeUnixMs == t)
+            {
+                runs[^1] = runs[^1] with { Count = runs[^1].Count + run.Count };
+            }
+            else
+            {
+                runs.Add(run with { TimeUnixMs = t });
+            }
         }
 
-        return TimeRun.Of(times);
+        return [.. runs];
     }
 
     // A time of 0 means "now"; anything past retention or too far ahead refuses the whole batch.

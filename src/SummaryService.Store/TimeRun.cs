@@ -9,18 +9,16 @@ namespace SummaryService.Store;
 /// <param name="Count">How many consecutive values have it (at least one).</param>
 internal readonly record struct TimeRun(long TimeUnixMs, int Count)
 {
-    /// <summary>Joins equal neighbours of one time per value into runs.</summary>
+    /// <summary>Joins equal neighbours of one time per value into runs; each run's end is found by a vectorized scan.</summary>
     public static TimeRun[] Of(ReadOnlySpan<long> times)
     {
         var runs = new List<TimeRun>();
-        int start = 0;
-        for (int i = 1; i <= times.Length; i++)
+        for (int start = 0; start < times.Length;)
         {
-            if (i == times.Length || times[i] != times[start])
-            {
-                runs.Add(new TimeRun(times[start], i - start));
-                start = i;
-            }
+            int other = times[(start + 1)..].IndexOfAnyExcept(times[start]);
+            int count = other < 0 ? times.Length - start : other + 1;
+            runs.Add(new TimeRun(times[start], count));
+            start += count;
         }
 
         return [.. runs];

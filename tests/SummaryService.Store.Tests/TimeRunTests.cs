@@ -14,4 +14,18 @@ public class TimeRunTests
 
     [Fact]
     public void No_times_make_no_runs() => Assert.Empty(TimeRun.Of([]));
+
+    [Fact]
+    public void A_run_of_zero_times_joins_the_run_of_now_and_a_refused_run_is_named_by_its_first_value()
+    {
+        long now = 1_800_000_000_000;
+        var validator = new BatchValidator(new StoreOptions { Tiers = StoreFixture.SmallTiers });
+        var batch = new SeriesBatch { Metric = "otterbyte.sort_ms", Values = new double[6], ValueTimesUnixMs = new long[] { now - 5, 0, 0, now, now, 0 } };
+
+        Assert.Equal([new TimeRun(now - 5, 1), new TimeRun(now, 5)], validator.Validate(batch, now));
+
+        long farAhead = now + (long)TimeSpan.FromDays(365).TotalMilliseconds;
+        var error = Assert.Throws<StoreRejectedException>(() => validator.Validate(batch with { ValueTimesUnixMs = new long[] { now, now, farAhead, farAhead, farAhead, now } }, now));
+        Assert.Equal("value_times_unix_ms[2]", error.Field);
+    }
 }

@@ -65,7 +65,11 @@ public sealed class FileBatchLog : IBatchLog
     }
 
     /// <inheritdoc/>
-    public Task Append(LoggedWrite write) => Started.Append(StoreRecordCodec.ToRecord(write));
+    public Task Append(LoggedWrite write)
+    {
+        ArgumentNullException.ThrowIfNull(write);
+        return write.Sketch is null ? Started.AppendValues(write, LogSegments.FormatVersion) : Started.Append(StoreRecordCodec.ToRecord(write));
+    }
 
     /// <inheritdoc/>
     public Task Barrier() => Started.Barrier();

@@ -29,14 +29,28 @@ internal static class RecordFraming
     /// </summary>
     public static void Write(MemoryStream stream, IMessage message)
     {
-        int start = checked((int)stream.Length);
-        int length = message.CalculateSize();
-        stream.SetLength(start + HeaderBytes + length);
-        Span<byte> framed = stream.GetBuffer().AsSpan(start, HeaderBytes + length);
+        Span<byte> framed = Extend(stream, message.CalculateSize());
         Span<byte> payload = framed[HeaderBytes..];
         message.WriteTo(payload);
         WriteHeader(framed, payload);
+    }
+
+    /// <summary>Frames the record of a batch of values, encoded in place by <see cref="ValueRecordEncoding"/>.</summary>
+    public static void Write(MemoryStream stream, LoggedWrite values, uint formatVersion)
+    {
+        Span<byte> framed = Extend(stream, ValueRecordEncoding.Size(values, formatVersion));
+        Span<byte> payload = framed[HeaderBytes..];
+        ValueRecordEncoding.Write(payload, values, formatVersion);
+        WriteHeader(framed, payload);
+    }
+
+    // Room for one more frame at the end of the stream, which is left positioned after it.
+    private static Span<byte> Extend(MemoryStream stream, int payloadLength)
+    {
+        int start = checked((int)stream.Length);
+        stream.SetLength(start + HeaderBytes + payloadLength);
         stream.Position = stream.Length;
+        return stream.GetBuffer().AsSpan(start, HeaderBytes + payloadLength);
     }
 
     private static void WriteHeader(Span<byte> header, ReadOnlySpan<byte> payload)

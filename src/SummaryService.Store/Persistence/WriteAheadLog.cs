@@ -80,6 +80,17 @@ internal sealed class WriteAheadLog : IAsyncDisposable
         }
     }
 
+    /// <summary>Queues the record of a batch of values, encoded straight from it; completes as <see cref="Append(LogRecord)"/> does.</summary>
+    public Task AppendValues(LoggedWrite values, uint formatVersion)
+    {
+        lock (_gate)
+        {
+            RecordFraming.Write(_pending, values, formatVersion);
+            Signal();
+            return _group.Task;
+        }
+    }
+
     /// <summary>Completes once everything appended so far is durable; fails at once while the log cannot write.</summary>
     public Task Barrier()
     {
