@@ -1,10 +1,10 @@
 // Opens the built-in page in headless Chromium against a server holding one metric split by a
-// label with one planted group, ranks it in the "which group stands out" view, and checks the
-// view against the server's own JSON answer: the same groups in the same order, the planted one
-// first and the only one standing out, its figures as the server gave them.
+// label with one planted group, ranks it in the "stands out" tab, and checks the view against the
+// server's own JSON answer: the same groups in the same order, the planted one first and the only
+// one standing out, its figures as the server gave them; and that the address keeps the choice.
 // Input (environment): PAGE_URL, METRIC, LABEL, EXPECT_FIRST, SCREENSHOT.
 // Output: one JSON line of what was seen; exit code 0 only when every check held.
-import { openPage } from "./browser.mjs";
+import { openPage, afterDraw, settled } from "./browser.mjs";
 
 const env = (name) => {
   const value = process.env[name];
@@ -28,13 +28,13 @@ try {
   browser = await openPage(pageUrl, { viewport: { width: 1200, height: 1400 } });
   const { page, foreign, pageErrors } = browser;
 
-  await page.goto(pageUrl.href);
-  await page.waitForSelector(`#standout-metric option[value="${metric}"]`, { state: "attached" });
-  await page.selectOption("#standout-metric", metric);
-  await page.selectOption("#standout-label", label);
-  await page.selectOption("#standout-measure", "STANDOUT_MEASURE_QUANTILE_RATIO");
-  await page.click("#standout-rank");
-  await page.waitForFunction(() => document.getElementById("standout-view").dataset.state === "ranked" && document.querySelectorAll("#standout-table tbody tr").length > 0);
+  await page.goto(new URL("/?metric=" + encodeURIComponent(metric), pageUrl).href);
+  check(await settled(page) === "drawn", "the page did not draw its first view");
+  check(await afterDraw(page, () => page.click("#tab-standout")) === "drawn", `the stands-out tab did not draw: ${await page.textContent("#status")}`);
+  await afterDraw(page, () => page.selectOption("#standout-label", label));
+  check(await afterDraw(page, () => page.selectOption("#standout-measure", "ratio")) === "drawn", `ranking by ratio did not draw: ${await page.textContent("#status")}`);
+  const address = new URL(page.url()).searchParams;
+  check(address.get("view") === "standout" && address.get("split") === label && address.get("rank") === "ratio", `the address reads ${page.url()}`);
 
   const seen = await page.evaluate(() => {
     const rows = [...document.querySelectorAll("#standout-table tbody tr")];
@@ -44,7 +44,8 @@ try {
       firstCells: rows.length ? [...rows[0].querySelectorAll("td")].map((td) => td.textContent.trim()) : [],
       bars: document.querySelectorAll("#standout-table svg.standout-bar").length,
       header: document.querySelector("#standout-table th.standout-group").textContent,
-      status: document.getElementById("standout-status").textContent,
+      quantileHeader: document.querySelector("#standout-table th.standout-q").textContent,
+      status: document.getElementById("status").textContent,
     };
   });
 
@@ -52,7 +53,7 @@ try {
   const response = await fetch(new URL("/v1/standout", pageUrl), {
     method: "POST",
     headers: { "content-type": "application/json" },
-    body: JSON.stringify({ selector: { metric }, splitBy: label, window: { last: "3600s" }, measure: "STANDOUT_MEASURE_QUANTILE_RATIO" }),
+    body: JSON.stringify({ selector: { metric }, splitBy: label, window: { last: "3600s" }, quantiles: [0.5, 0.9, 0.99], measure: "STANDOUT_MEASURE_QUANTILE_RATIO" }),
   });
   const server = await response.json();
   const first = server.ranked[0];
@@ -65,6 +66,7 @@ try {
   check(seen.called.every((v) => server.ranked.find((g) => g.value === v).significant), "a row stands out that the server did not call");
   check(seen.bars === server.ranked.length, `${seen.bars} distance bars for ${server.ranked.length} groups`);
   check(seen.header === label, `the group column reads "${seen.header}"`);
+  check(seen.quantileHeader === "p99 group [interval]", `the percentile column reads "${seen.quantileHeader}"`);
   check(seen.firstCells[2] === `${Number(first.count)} (${first.seriesMerged})`, `first row's count reads "${seen.firstCells[2]}"`);
   check(seen.firstCells[3] === `${fmt(p99.shift.b)} [${fmt(p99.shift.bLow)}, ${fmt(p99.shift.bHigh)}]`, `first row's p99 reads "${seen.firstCells[3]}"`);
   check(seen.firstCells[7] === "stands out: higher", `first row's verdict reads "${seen.firstCells[7]}"`);
@@ -72,7 +74,7 @@ try {
   check(foreign.length === 0, `requests left the server: ${foreign.join(", ")}`);
   check(pageErrors.length === 0, `script errors: ${pageErrors.join("; ")}`);
 
-  await page.locator("#standout-view").screenshot({ path: screenshot });
+  await page.locator("#view-standout").screenshot({ path: screenshot });
   console.log(JSON.stringify({ seen, failures }));
 } catch (e) {
   failures.push(String(e && e.stack ? e.stack : e));

@@ -1,161 +1,121 @@
-// "Which group stands out": every value of one label against all the others, strongest first.
-// A module of its own: it builds its section, its controls and its table, and asks the server
-// through its own calls, so the page it sits in needs one hook only — the script tag — and,
-// optionally, an element with id "standout-slot" to say where the section goes (else the end of
-// the page). It shares the API key field (#key) and the metric list when the page has them.
-"use strict";
-(function () {
-  const sheet = document.createElement("link");
-  sheet.rel = "stylesheet";
-  sheet.href = "/page/standout.css";
-  document.head.appendChild(sheet);
-  const view = document.createElement("section");
-  view.id = "standout-view";
-  view.innerHTML = `
-    <h2>Which group stands out</h2>
-    <p class="hint">Each value of a label against all the other values together. "Stands out" only where the intervals say so; the rest is an ordering, not a finding.</p>
-    <form id="standout-controls" autocomplete="off">
-      <label>Metric <select id="standout-metric" required></select></label>
-      <label>Split by <select id="standout-label" required></select></label>
-      <label>Window
-        <select id="standout-window">
-          <option value="900">last 15 minutes</option>
-          <option value="3600" selected>last hour</option>
-          <option value="21600">last 6 hours</option>
-          <option value="86400">last day</option>
-        </select>
-      </label>
-      <label>Rank by
-        <select id="standout-measure">
-          <option value="STANDOUT_MEASURE_DISTANCE" selected>distribution distance</option>
-          <option value="STANDOUT_MEASURE_QUANTILE_RATIO">p99 ratio</option>
-          <option value="STANDOUT_MEASURE_QUANTILE_SHIFT">p99 shift</option>
-        </select>
-      </label>
-      <button type="submit" id="standout-rank">Rank</button>
-    </form>
-    <p id="standout-status" role="status"></p>
-    <table id="standout-table">
-      <thead><tr><th>#</th><th class="standout-group">group</th><th>values (series)</th><th>p99 group [interval]</th><th>p99 rest [interval]</th><th>group / rest</th><th>distance to the rest</th><th>verdict</th></tr></thead>
-      <tbody></tbody>
-    </table>
-    <p id="standout-unranked" class="hint"></p>`;
-  (document.getElementById("standout-slot") || document.body).appendChild(view);
+// Which group stands out: every value of one label against the merge of all the others, over the
+// page's metric, filters and window, strongest first. A group is called only where the intervals
+// say so; the rest of the ordering is an ordering, not a finding.
+import { call, selectorOf, windowOf, PageError } from "./api.js";
+import { formatNumber, percentileName, intervalText, confidenceText } from "./format.js";
+import { fillSelect } from "./selection.js";
+import { quantilesOf } from "./state.js";
+import { el as svgEl } from "./svg.js";
 
-  const $ = (id) => document.getElementById(id);
-  const status = (text, isError) => { $("standout-status").textContent = text; $("standout-status").className = isError ? "error" : ""; };
-  // Four significant digits, as everywhere on the page.
-  const fmt = (v) => (v === undefined || v === null || Number.isNaN(v) ? "—" : Number(Number(v).toPrecision(4)).toString());
-  const svgEl = (name, attrs, parent) => {
-    const node = document.createElementNS("http://www.w3.org/2000/svg", name);
-    for (const [k, v] of Object.entries(attrs)) node.setAttribute(k, String(v));
-    if (parent) parent.appendChild(node);
-    return node;
-  };
+/** The page's words for what ranks the groups, and the server's. */
+const MEASURES = {
+  distance: { text: "distribution distance", wire: "STANDOUT_MEASURE_DISTANCE" },
+  ratio: { text: "ratio of the top percentile", wire: "STANDOUT_MEASURE_QUANTILE_RATIO" },
+  shift: { text: "shift of the top percentile", wire: "STANDOUT_MEASURE_QUANTILE_SHIFT" },
+};
 
-  async function call(method, path, body) {
-    const headers = { "content-type": "application/json" };
-    const key = $("key") ? $("key").value.trim() : "";
-    if (key) headers.authorization = "Bearer " + key;
-    const response = await fetch(path, { method, headers, body: body === undefined ? undefined : JSON.stringify(body) });
-    const json = await response.json().catch(() => ({}));
-    if (!response.ok) throw new Error(json.message || "HTTP " + response.status);
-    return json;
-  }
+/** The percentiles compared: the page's choice strictly inside (0, 1), the server's default when none is. */
+function comparedQuantiles(state) {
+  const inside = quantilesOf(state).filter((q) => q > 0 && q < 1);
+  return inside.length ? inside : [0.5, 0.9, 0.99];
+}
 
-  // Metrics and, per metric, the label names its series carry, from the catalogue.
-  let labelsByMetric = new Map();
-  async function loadCatalogue() {
-    const reply = await call("GET", "/v1/catalogue");
-    labelsByMetric = new Map();
-    for (const s of reply.series || []) {
-      const names = labelsByMetric.get(s.metric) || new Set();
-      Object.keys(s.labels || {}).forEach((n) => names.add(n));
-      labelsByMetric.set(s.metric, names);
-    }
-    const metrics = [...labelsByMetric.keys()].filter((m) => labelsByMetric.get(m).size > 0).sort();
-    $("standout-metric").replaceChildren(...metrics.map((m) => new Option(m, m)));
-    const shared = $("metric") && $("metric").value;
-    if (shared && metrics.includes(shared)) $("standout-metric").value = shared;
-    fillLabels();
-  }
+function cell(textValue) {
+  const td = document.createElement("td");
+  td.textContent = textValue;
+  return td;
+}
 
-  function fillLabels() {
-    const names = [...(labelsByMetric.get($("standout-metric").value) || [])].sort();
-    $("standout-label").replaceChildren(...names.map((n) => new Option(n, n)));
-  }
-
-  // A bar for the distance with a tick where two samples of one distribution could still reach;
-  // every row on one scale, the largest bound or limit shown filling the bar.
-  function distanceCell(d, scale) {
-    const td = document.createElement("td");
-    if (!d) { td.textContent = "—"; return td; }
-    const svg = svgEl("svg", { class: "standout-bar", viewBox: "0 0 100 10", role: "img", "aria-label": "distance " + fmt(d.distance) });
-    svgEl("rect", { x: 0, y: 2, width: Math.max(0.5, 100 * (d.distance || 0) / scale), height: 6, class: d.significant ? "standout-far" : "standout-near" }, svg);
-    svgEl("line", { x1: 100 * d.limit / scale, x2: 100 * d.limit / scale, y1: 0, y2: 10, class: "standout-limit" }, svg);
-    td.append(svg, " " + fmt(d.distance || 0) + " [" + fmt(d.low || 0) + ", " + fmt(d.high || 0) + "]");
+/**
+ * The distance as a bar, with a tick where two samples of one distribution could still reach; every
+ * row on one scale, the largest bound or limit filling the bar.
+ */
+function distanceCell(d, scale) {
+  const td = document.createElement("td");
+  if (!d) {
+    td.textContent = "—";
     return td;
   }
+  const svg = svgEl("svg", { class: "standout-bar", viewBox: "0 0 100 10", role: "img", "aria-label": "distance " + formatNumber(d.distance || 0) });
+  svgEl("rect", { x: 0, y: 2, width: Math.max(0.5, (100 * (d.distance || 0)) / scale), height: 6, class: d.significant ? "standout-far" : "standout-near" }, svg);
+  svgEl("line", { x1: (100 * (d.limit || 0)) / scale, x2: (100 * (d.limit || 0)) / scale, y1: 0, y2: 10, class: "standout-limit" }, svg);
+  td.append(svg, " " + formatNumber(d.distance || 0) + " " + intervalText(d.low || 0, d.high || 0));
+  return td;
+}
 
-  function cell(text) { const td = document.createElement("td"); td.textContent = text; return td; }
+/** One ranked group: its size, the ranked percentile on both sides with intervals, the ratio, the distance and the verdict. */
+function rowOf(group, rank, q, scale) {
+  const tr = document.createElement("tr");
+  tr.dataset.value = group.value;
+  tr.dataset.significant = String(Boolean(group.significant));
+  const shown = (group.quantiles || []).find((x) => x.shift.q === q);
+  const s = shown && shown.shift;
+  const higher = s ? (s.delta || 0) >= 0 : true;
+  tr.append(
+    cell(String(rank)),
+    cell(group.value),
+    cell(Number(group.count || 0) + " (" + (group.seriesMerged || 0) + ")"),
+    cell(s ? formatNumber(s.b) + " " + intervalText(s.bLow, s.bHigh) : "—"),
+    cell(s ? formatNumber(s.a) + " " + intervalText(s.aLow, s.aHigh) : "—"),
+    cell(shown && shown.ratio !== undefined ? "×" + Number(shown.ratio).toFixed(2) : "—"),
+    distanceCell(group.distance, scale),
+    cell(group.significant ? (higher ? "stands out: higher" : "stands out: lower") : "inconclusive"),
+  );
+  if (group.significant) tr.className = "standout-called";
+  return tr;
+}
 
-  function row(group, rank, q, scale) {
-    const tr = document.createElement("tr");
-    tr.dataset.value = group.value;
-    tr.dataset.significant = String(Boolean(group.significant));
-    const shown = (group.quantiles || []).find((x) => x.shift.q === q);
-    const s = shown && shown.shift;
-    const higher = s ? (s.delta || 0) >= 0 : true;
-    tr.append(
-      cell(String(rank)),
-      cell(group.value),
-      cell(Number(group.count || 0) + " (" + (group.seriesMerged || 0) + ")"),
-      cell(s ? fmt(s.b) + " [" + fmt(s.bLow) + ", " + fmt(s.bHigh) + "]" : "—"),
-      cell(s ? fmt(s.a) + " [" + fmt(s.aLow) + ", " + fmt(s.aHigh) + "]" : "—"),
-      cell(shown && shown.ratio !== undefined ? "×" + Number(shown.ratio).toFixed(2) : "—"),
-      distanceCell(group.distance, scale),
-      cell(group.significant ? (higher ? "stands out: higher" : "stands out: lower") : "inconclusive"));
-    if (group.significant) tr.className = "standout-called";
-    return tr;
-  }
+export const standoutView = {
+  id: "standout",
+  title: "Stands out",
+  settings: { split: "", rank: "distance" },
+  mount(root, ctx) {
+    root.innerHTML = `
+      <fieldset class="standout-choice"><legend>Rank the values of a label</legend>
+        <label>Split by <select id="standout-label"></select></label>
+        <label>Rank by <select id="standout-measure"></select></label>
+        <span class="hint">Each value against all the other values together, over the chosen window and filters.</span>
+      </fieldset>
+      <table id="standout-table">
+        <thead><tr><th scope="col">#</th><th scope="col" class="standout-group">group</th><th scope="col">values (series)</th><th scope="col" class="standout-q">group</th><th scope="col" class="standout-q-rest">rest</th><th scope="col">group / rest</th><th scope="col">distance to the rest</th><th scope="col">verdict</th></tr></thead>
+        <tbody></tbody>
+      </table>
+      <p id="standout-unranked" class="hint"></p>`;
+    const measure = root.querySelector("#standout-measure");
+    measure.replaceChildren(...Object.entries(MEASURES).map(([value, m]) => new Option(m.text, value)));
+    measure.addEventListener("change", () => ctx.set({ rank: measure.value }));
+    root.querySelector("#standout-label").addEventListener("change", (e) => ctx.set({ split: e.target.value }));
+  },
+  async draw(root, ctx) {
+    const { state, span, signal, labels } = ctx;
+    const names = [...labels.keys()];
+    if (names.length === 0) throw new PageError("input", `${state.metric} carries no labels; there is nothing to split it by.`);
+    const split = names.includes(state.split) ? state.split : names.includes(state.group) ? state.group : names[0];
+    fillSelect(root.querySelector("#standout-label"), names, split);
+    const rank = MEASURES[state.rank] ? state.rank : "distance";
+    root.querySelector("#standout-measure").value = rank;
 
-  let generation = 0;
-  async function rank() {
-    const mine = ++generation;
-    const metric = $("standout-metric").value;
-    const splitBy = $("standout-label").value;
-    if (!metric || !splitBy) { status("No metric with labels to split by yet."); return; }
-    view.dataset.state = "loading";
-    status("Ranking " + metric + " by " + splitBy + "…");
-    try {
-      const reply = await call("POST", "/v1/standout", {
-        selector: { metric }, splitBy, window: { last: $("standout-window").value + "s" }, measure: $("standout-measure").value,
-      });
-      if (mine !== generation) return;
-      const q = reply.measureQuantile || 0.99;
-      const body = $("standout-table").querySelector("tbody");
-      const scale = Math.max(1e-9, ...(reply.ranked || []).map((g) => (g.distance ? Math.max(g.distance.high || 0, g.distance.limit || 0) : 0)));
-      body.replaceChildren(...(reply.ranked || []).map((g, i) => row(g, i + 1, q, scale)));
-      $("standout-table").querySelector("th.standout-group").textContent = splitBy;
-      const unranked = reply.unranked || [];
-      $("standout-unranked").textContent = unranked.length
-        ? "Not ranked (too few values to judge, or no ratio): " + unranked.map((g) => g.value + " (" + Number(g.count || 0) + " values)").join(", ")
-        : "";
-      const called = (reply.ranked || []).filter((g) => g.significant).length;
-      const unsplit = reply.unsplitSeries ? "; " + reply.unsplitSeries + " series without " + splitBy + " join every rest" : "";
-      status((reply.ranked || []).length + " group(s) ranked, " + called + " standing out at " + Number(((reply.confidence || 0) * 100).toFixed(4)) + "% confidence" + unsplit + ".");
-      view.dataset.state = "ranked";
-    } catch (e) {
-      if (mine !== generation) return;
-      status(e.message, true);
-      view.dataset.state = "error";
-    }
-  }
-
-  $("standout-controls").addEventListener("submit", (e) => { e.preventDefault(); rank(); });
-  $("standout-metric").addEventListener("change", () => { fillLabels(); rank(); });
-  for (const id of ["standout-label", "standout-window", "standout-measure"]) $(id).addEventListener("change", rank);
-  const start = () => loadCatalogue().catch((e) => { status(e.message, true); view.dataset.state = "error"; });
-  if ($("key")) $("key").addEventListener("change", start);
-  start();
-})();
+    const reply = await call("POST", "/v1/standout", {
+      selector: selectorOf(state.metric, state.filters),
+      splitBy: split,
+      window: windowOf(span),
+      quantiles: comparedQuantiles(state),
+      measure: MEASURES[rank].wire,
+    }, signal);
+    const ranked = reply.ranked || [];
+    const q = reply.measureQuantile || Math.max(...comparedQuantiles(state));
+    const scale = Math.max(1e-9, ...ranked.map((g) => (g.distance ? Math.max(g.distance.high || 0, g.distance.limit || 0) : 0)));
+    root.querySelector("#standout-table tbody").replaceChildren(...ranked.map((g, i) => rowOf(g, i + 1, q, scale)));
+    root.querySelector("th.standout-group").textContent = split;
+    root.querySelector("th.standout-q").textContent = percentileName(q) + " group [interval]";
+    root.querySelector("th.standout-q-rest").textContent = percentileName(q) + " rest [interval]";
+    const unranked = reply.unranked || [];
+    root.querySelector("#standout-unranked").textContent = unranked.length
+      ? "Not ranked (too few values to judge, or no ratio): " + unranked.map((g) => g.value + " (" + Number(g.count || 0) + " values)").join(", ")
+      : "";
+    if (ranked.length === 0 && unranked.length === 0) throw new PageError("nodata", `No series of ${state.metric} carries ${split} in the window.`);
+    const called = ranked.filter((g) => g.significant).length;
+    const unsplit = reply.unsplitSeries ? "; " + reply.unsplitSeries + " series without " + split + " join every rest" : "";
+    return state.metric + " split by " + split + ": " + ranked.length + " group(s) ranked by " + MEASURES[rank].text + ", " + called + " standing out at " + confidenceText(reply.confidence) + " confidence" + unsplit + ".";
+  },
+};

@@ -7,5 +7,6 @@
 import { bandsView } from "./bands.js";
 import { shapeView } from "./shape.js";
 import { compareView } from "./compare.js";
+import { standoutView } from "./standout.js";
 
-export const VIEWS = [bandsView, shapeView, compareView];
+export const VIEWS = [bandsView, shapeView, compareView, standoutView];
