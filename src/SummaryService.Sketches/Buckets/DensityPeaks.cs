@@ -57,26 +57,24 @@ internal static class DensityPeaks
         // The smoothing blurs over h buckets anyway: read the density at the coarsest scale where the
         // kernel still spans two buckets (neighbours combined exactly), which divides the work by
         // up to h/2 and loses nothing the smoothing kept.
+        // Bucket i folds into i >> fold, where the counts are added as they are placed.
         double bandwidthAtScale = Bandwidth(indices, occupied);
         int fold = Math.Max(0, Math.Min(mapping.Scale - ExponentialMapping.MinScale, (int)Math.Floor(Math.Log2(bandwidthAtScale / 2))));
-        if (fold > 0)
-        {
-            (indices, occupied) = Folded(indices, occupied, fold);
-            mapping = ExponentialMapping.ForScale(mapping.Scale - fold);
-        }
+        mapping = fold > 0 ? ExponentialMapping.ForScale(mapping.Scale - fold) : mapping;
 
         // Three passes of a box of 2r + 1 buckets: a near-Gaussian kernel of standard deviation
         // sqrt(r(r + 1)), in time linear in the buckets spanned.
         int radius = BoxRadius(Math.Max(1, bandwidthAtScale / (1 << fold)));
         int reach = (3 * radius) + 1;
-        int first = indices[0] - reach;
-        int length = indices[^1] - indices[0] + 1 + (2 * reach);
+        int lowest = indices[0] >> fold;
+        int first = lowest - reach;
+        int length = (indices[^1] >> fold) - lowest + 1 + (2 * reach);
         // Working arrays of the span's length, borrowed: nothing of them outlives this call.
         double[] rented = ArrayPool<double>.Shared.Rent(Curves * length);
         int[] rentedPositions = ArrayPool<int>.Shared.Rent(2 * length);
         try
         {
-            AddPeaks(peaks, rented.AsSpan(0, Curves * length), rentedPositions.AsSpan(0, 2 * length), indices, occupied, mapping, first, radius, negative, min, max, total);
+            AddPeaks(peaks, rented.AsSpan(0, Curves * length), rentedPositions.AsSpan(0, 2 * length), (indices, occupied, fold), mapping, first, radius, negative, min, max, total);
         }
         finally
         {
@@ -85,8 +83,10 @@ internal static class DensityPeaks
         }
     }
 
-    private static void AddPeaks(List<(double Prominence, ModeEstimate Mode)> peaks, Span<double> work, Span<int> positions, int[] indices, long[] occupied, ExponentialMapping mapping, int first, int radius, bool negative, double min, double max, long total)
+    // Counts are whole numbers far below 2^53, so adding them as doubles is exact.
+    private static void AddPeaks(List<(double Prominence, ModeEstimate Mode)> peaks, Span<double> work, Span<int> positions, (int[] Indices, long[] Counts, int Fold) buckets, ExponentialMapping mapping, int first, int radius, bool negative, double min, double max, long total)
     {
+        (int[] indices, long[] occupied, int fold) = buckets;
         int length = work.Length / Curves;
         Span<double> counts = work[..length];
         Span<double> smoothed = work.Slice(length, length);
@@ -95,7 +95,7 @@ internal static class DensityPeaks
         counts.Clear();
         for (int j = 0; j < indices.Length; j++)
         {
-            counts[indices[j] - first] = occupied[j];
+            counts[(indices[j] >> fold) - first] += occupied[j];
         }
 
         double logBase = Math.Log(mapping.Base);
@@ -223,26 +223,6 @@ internal static class DensityPeaks
         smoothed[k] > 0 ? density[k] / Math.Sqrt(smoothed[k] * perCount) : 0;
 
     // Silverman's rule on ln|x| with each bucket's values at its log-midpoint, in bucket units.
-    // Buckets i → i >> by, counts of merged buckets added: the same data at a coarser scale.
-    private static (int[] Indices, long[] Counts) Folded(int[] indices, long[] counts, int by)
-    {
-        var foldedIndices = new int[indices.Length];
-        var foldedCounts = new long[indices.Length];
-        int n = -1;
-        for (int j = 0; j < indices.Length; j++)
-        {
-            int index = indices[j] >> by;
-            if (n < 0 || foldedIndices[n] != index)
-            {
-                foldedIndices[++n] = index;
-            }
-
-            foldedCounts[n] += counts[j];
-        }
-
-        return (foldedIndices[..(n + 1)], foldedCounts[..(n + 1)]);
-    }
-
     private static double Bandwidth(int[] indices, long[] counts)
     {
         double n = 0;

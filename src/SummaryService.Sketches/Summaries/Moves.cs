@@ -3,24 +3,25 @@ namespace SummaryService.Sketches.Summaries;
 /// <summary>How a group and its rest moved between two windows, and where that puts the group in a ranking.</summary>
 internal static class Moves
 {
-    public static StandoutMove Of(StandoutInput groupBefore, SeriesSketch restBefore, int restSeriesBefore, SeriesSketch groupNow, SeriesSketch restNow, IReadOnlyList<double> probabilities, double confidence)
+    /// <summary>The move of a group and its rest, every side prepared once by the caller (at one confidence).</summary>
+    public static StandoutMove Of(int seriesBefore, ComparisonSide groupBefore, ComparisonSide restBefore, int restSeriesBefore, ComparisonSide groupNow, ComparisonSide restNow, IReadOnlyList<double> probabilities)
     {
-        SeriesSketch group = groupBefore.Sketch;
-        bool filled = group.Count > 0 && restBefore.Count > 0 && groupNow.Count > 0 && restNow.Count > 0;
+        double confidence = groupBefore.ConfidenceLevel;
+        bool filled = groupBefore.Count > 0 && restBefore.Count > 0 && groupNow.Count > 0 && restNow.Count > 0;
         var quantiles = new List<QuantileMove>();
         if (filled)
         {
-            QuantileShift[] own = SketchComparison.Shifts(group, groupNow, probabilities, confidence);
-            QuantileShift[] rest = SketchComparison.Shifts(restBefore, restNow, probabilities, confidence);
+            QuantileShift[] own = SketchComparison.Shifts(groupBefore, groupNow, probabilities);
+            QuantileShift[] rest = SketchComparison.Shifts(restBefore, restNow, probabilities);
             for (int q = 0; q < own.Length; q++)
             {
-                quantiles.Add(new QuantileMove(own[q], rest[q], SplitComparison.Bounded(own[q].Q, confidence, group, groupNow, restBefore, restNow)));
+                quantiles.Add(new QuantileMove(own[q], rest[q], SplitComparison.Bounded(own[q].Q, confidence, groupBefore.Count, groupNow.Count, restBefore.Count, restNow.Count)));
             }
         }
 
-        DistanceVerdict? groupDistance = group.Count > 0 && groupNow.Count > 0 ? SplitComparison.Distance(group, groupNow, confidence) : null;
-        DistanceVerdict? restDistance = restBefore.Count > 0 && restNow.Count > 0 ? SplitComparison.Distance(restBefore, restNow, confidence) : null;
-        return new StandoutMove(group.Count, groupBefore.Series, restBefore.Count, restSeriesBefore, quantiles, groupDistance, restDistance);
+        DistanceVerdict? groupDistance = groupBefore.Count > 0 && groupNow.Count > 0 ? SplitComparison.Distance(groupBefore, groupNow) : null;
+        DistanceVerdict? restDistance = restBefore.Count > 0 && restNow.Count > 0 ? SplitComparison.Distance(restBefore, restNow) : null;
+        return new StandoutMove(groupBefore.Count, seriesBefore, restBefore.Count, restSeriesBefore, quantiles, groupDistance, restDistance);
     }
 
     public static (StandoutStanding Standing, double Strength, bool Significant) Measure(StandoutMove move, StandoutOptions options)

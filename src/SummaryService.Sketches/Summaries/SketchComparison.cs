@@ -1,4 +1,3 @@
-using MathNet.Numerics.Distributions;
 using SummaryService.Sketches.Buckets;
 using SummaryService.Sketches.Quantiles;
 
@@ -21,7 +20,7 @@ public static class SketchComparison
     /// two such intervals separate.
     /// </summary>
     public static QuantileEstimate PopulationQuantile(SeriesSketch sketch, double q, double confidence) =>
-        new PopulationSide(sketch, confidence).Quantile(q);
+        new ComparisonSide(sketch, confidence).PopulationQuantile(q);
 
     /// <summary>
     /// How quantile q moved from a to b; significant when the two population intervals do not
@@ -37,14 +36,19 @@ public static class SketchComparison
     public static QuantileShift[] Shifts(SeriesSketch a, SeriesSketch b, IReadOnlyList<double> probabilities, double confidence)
     {
         ArgumentNullException.ThrowIfNull(probabilities);
-        var left = new PopulationSide(a, confidence);
-        var right = new PopulationSide(b, confidence);
+        return Shifts(new ComparisonSide(a, confidence), new ComparisonSide(b, confidence), probabilities);
+    }
+
+    /// <summary><see cref="Shifts(SeriesSketch, SeriesSketch, IReadOnlyList{double}, double)"/> between sides already prepared (at one confidence).</summary>
+    internal static QuantileShift[] Shifts(ComparisonSide a, ComparisonSide b, IReadOnlyList<double> probabilities)
+    {
+        double confidence = a.ConfidenceLevel;
         var shifts = new QuantileShift[probabilities.Count];
         for (int i = 0; i < shifts.Length; i++)
         {
             double q = probabilities[i];
-            QuantileEstimate from = left.Quantile(q);
-            QuantileEstimate to = right.Quantile(q);
+            QuantileEstimate from = a.PopulationQuantile(q);
+            QuantileEstimate to = b.PopulationQuantile(q);
             bool apart = from.High < to.Low || to.High < from.Low;
             shifts[i] = new QuantileShift(q, from, to, apart && CanBound(a.Count, q, confidence) && CanBound(b.Count, q, confidence));
         }
@@ -64,7 +68,7 @@ public static class SketchComparison
     public static bool CanBound(long count, double q, double confidence)
     {
         Confidence.Require(confidence);
-        double spread = SamplingZ(confidence) * Math.Sqrt(q * (1 - q) * count);
+        double spread = ComparisonSide.SamplingZ(confidence) * Math.Sqrt(q * (1 - q) * count);
         return count > 0 && (q * count) - spread >= 1 && ((1 - q) * count) - spread >= 1;
     }
 
@@ -88,9 +92,6 @@ public static class SketchComparison
         return Math.Sqrt(logTerm / countA) + Math.Sqrt(logTerm / countB);
     }
 
-    // z at 1 − δ/4: each end of the sampling interval fails with probability δ/4.
-    private static double SamplingZ(double confidence) => Normal.InvCDF(0, 1, 1 - ((1 - confidence) / 4));
-
     /// <summary>
     /// D = sup_x |F_a(x) − F_b(x)| between the two samples, with an interval: the intersection of the
     /// KLL parts' estimate ± (t_a/n_a + t_b/n_b) (each estimated CDF off by at most t/n at a point,
@@ -104,27 +105,27 @@ public static class SketchComparison
         ArgumentNullException.ThrowIfNull(a);
         ArgumentNullException.ThrowIfNull(b);
         Confidence.Require(confidence);
-        if (a.Count == 0 || b.Count == 0)
-        {
-            return (0, 0, 1);
-        }
+        return a.Count == 0 || b.Count == 0 ? (0, 0, 1) : KolmogorovSmirnov(new ComparisonSide(a, confidence), new ComparisonSide(b, confidence));
+    }
 
-        var (aRank, aBuckets, _) = a.FullParts();
-        var (bRank, bBuckets, _) = b.FullParts();
+    /// <summary><see cref="KolmogorovSmirnov(SeriesSketch, SeriesSketch, double)"/> between non-empty sides already prepared (at one confidence).</summary>
+    internal static (double Distance, double Low, double High) KolmogorovSmirnov(ComparisonSide a, ComparisonSide b)
+    {
         Span<(double Low, double High, BoundSource Source)> candidates = stackalloc (double, double, BoundSource)[3];
         candidates[0] = (0, 1, BoundSource.Range);
         int used = 1;
         double estimate = double.NaN;
-        if (aRank is not null && bRank is not null)
+        if (a.Quantiles is not null && b.Quantiles is not null)
         {
-            (double distance, double slack) = RankDistance(aRank, bRank, confidence);
+            (double distance, double slack) = RankDistance(a, b);
             estimate = distance;
             candidates[used++] = (Math.Max(0, distance - slack), Math.Min(1, distance + slack), slack == 0 ? BoundSource.Exact : BoundSource.RankError);
         }
 
-        if (aBuckets is not null && bBuckets is not null)
+        if (a.Buckets is not null && b.Buckets is not null)
         {
-            (double low, double high) = BucketDistance(aBuckets, bBuckets);
+            int scale = Math.Min(a.Buckets.Scale, b.Buckets.Scale);
+            (double low, double high) = BucketDistance(a.OccupiedAt(scale), a.Buckets.Count, b.OccupiedAt(scale), b.Buckets.Count);
             estimate = double.IsNaN(estimate) ? low : estimate;
             candidates[used++] = (low, high, BoundSource.LogBuckets);
         }
@@ -133,109 +134,49 @@ public static class SketchComparison
         return (double.IsNaN(estimate) ? d.Middle : Math.Clamp(estimate, d.Low, d.High), d.Low, d.High);
     }
 
-    // The estimated CDFs compared at every retained item of both (the step functions only change there).
-    private static (double Distance, double Slack) RankDistance(KllSketch a, KllSketch b, double confidence)
+    // The estimated CDFs compared at every retained item of both (the step functions only change
+    // there), in one merge walk over the two ascending item lists.
+    private static (double Distance, double Slack) RankDistance(ComparisonSide a, ComparisonSide b)
     {
-        KllSortedView aView = a.CreateView();
-        KllSortedView bView = b.CreateView();
+        KllSortedView aView = a.Bounds.Rank!.View;
+        KllSortedView bView = b.Bounds.Rank!.View;
         long na = aView.Count;
         long nb = bView.Count;
+        ReadOnlySpan<double> aValues = aView.Values;
+        ReadOnlySpan<double> bValues = bView.Values;
+        var aSteps = new AscendingCounts(aView);
+        var bSteps = new AscendingCounts(bView);
         Int128 largest = 0;
-        foreach (double x in aView.Values.ToArray().Concat(bView.Values.ToArray()))
+        int i = 0;
+        int j = 0;
+        while (i < aValues.Length || j < bValues.Length)
         {
-            largest = Int128.Max(largest, Difference((long)aView.CountAtOrBelow(x), na, (long)bView.CountAtOrBelow(x), nb));
+            double x = j == bValues.Length || (i < aValues.Length && aValues[i] <= bValues[j]) ? aValues[i++] : bValues[j++];
+            largest = Int128.Max(largest, DistanceWalks.Difference(aSteps.CountAtOrBelow(x), na, bSteps.CountAtOrBelow(x), nb));
         }
 
-        double delta = 1 - confidence;
-        return (Share(largest, na, nb), (a.RankErrorCount(delta / 4) / na) + (b.RankErrorCount(delta / 4) / nb));
+        double delta = 1 - a.ConfidenceLevel;
+        return (Share(largest, na, nb), (a.Quantiles!.RankErrorCount(delta / 4) / na) + (b.Quantiles!.RankErrorCount(delta / 4) / nb));
     }
 
-    private static (double Low, double High) BucketDistance(LogBucketSketch a, LogBucketSketch b)
+    private static (double Low, double High) BucketDistance(OccupiedLogBuckets a, long na, OccupiedLogBuckets b, long nb)
     {
-        int scale = Math.Min(a.Scale, b.Scale);
-        LogBucketSketch aCommon = AtScale(a, scale);
-        LogBucketSketch bCommon = AtScale(b, scale);
-        long na = aCommon.Count;
-        long nb = bCommon.Count;
-        Int128 low = 0;
-        Int128 high = 0;
-        long aBefore = 0;
-        long bBefore = 0;
-        foreach ((long aCount, long bCount) in BucketsInValueOrder(aCommon, bCommon))
-        {
-            long aAfter = aBefore + aCount;
-            long bAfter = bBefore + bCount;
-            low = Int128.Max(low, Difference(aAfter, na, bAfter, nb));
-            high = Int128.Max(high, Int128.Max(Difference(aAfter, na, bBefore, nb), Difference(aBefore, na, bAfter, nb)));
-            (aBefore, bBefore) = (aAfter, bAfter);
-        }
+        var walk = new BucketDistanceWalk(na, nb);
 
-        // One rounding each; an ulp outward keeps the certain bounds certain.
-        return (Math.BitDecrement(Share(low, na, nb)), Math.BitIncrement(Share(high, na, nb)));
-    }
-
-    // |a/na − b/nb|·na·nb in integers, so that equal shares compare equal and the share is rounded once.
-    private static Int128 Difference(long a, long na, long b, long nb) => Int128.Abs(((Int128)a * nb) - ((Int128)b * na));
-
-    private static double Share(Int128 difference, long na, long nb) => Math.Clamp((double)difference / ((double)na * nb), 0, 1);
-
-    private static LogBucketSketch AtScale(LogBucketSketch sketch, int scale)
-    {
-        if (sketch.Scale == scale)
-        {
-            return sketch;
-        }
-
-        LogBucketSketch copy = sketch.Clone();
-        copy.DownscaleTo(scale);
-        return copy;
-    }
-
-    // The union of both sketches' occupied buckets (at one scale the buckets are the same intervals)
-    // in value order: negatives from the largest magnitude down, the zeros, positives upwards.
-    private static IEnumerable<(long A, long B)> BucketsInValueOrder(LogBucketSketch a, LogBucketSketch b)
-    {
-        foreach (int index in a.NegativeBuckets().Select(x => x.Index).Union(b.NegativeBuckets().Select(x => x.Index)).OrderDescending())
-        {
-            yield return (a.NegativeCount(index), b.NegativeCount(index));
-        }
-
+        // Value order: negative buckets from the largest magnitude down, the zeros, positives upwards.
+        walk.Over(a.Negative, b.Negative, descending: true);
         if (a.ZeroCount > 0 || b.ZeroCount > 0)
         {
-            yield return (a.ZeroCount, b.ZeroCount);
+            walk.Step(a.ZeroCount, b.ZeroCount);
         }
 
-        foreach (int index in a.PositiveBuckets().Select(x => x.Index).Union(b.PositiveBuckets().Select(x => x.Index)).Order())
-        {
-            yield return (a.PositiveCount(index), b.PositiveCount(index));
-        }
+        walk.Over(a.Positive, b.Positive, descending: false);
+
+        // One rounding each; an ulp outward keeps the certain bounds certain.
+        return (Math.BitDecrement(Share(walk.Low, na, nb)), Math.BitIncrement(Share(walk.High, na, nb)));
     }
 
-    /// <summary>One side's bounds, prepared once for any number of population quantiles.</summary>
-    private sealed class PopulationSide
-    {
-        private readonly SummaryBounds _bounds;
-        private readonly double _z;
-        private readonly long _count;
-
-        public PopulationSide(SeriesSketch sketch, double confidence)
-        {
-            ArgumentNullException.ThrowIfNull(sketch);
-            Confidence.Require(confidence);
-            var (quantiles, buckets, _) = sketch.FullParts();
-            _bounds = new SummaryBounds(sketch.Moments, quantiles, buckets, confidence);
-            _z = SamplingZ(confidence);
-            _count = sketch.Count;
-        }
-
-        public QuantileEstimate Quantile(double q)
-        {
-            double sampling = _z * Math.Sqrt(q * (1 - q) * _count);
-            QuantileEstimate estimate = _bounds.Quantile(q);
-            QuantileEstimate interval = _bounds.Quantile(q, sampling);
-            return estimate with { Low = interval.Low, High = interval.High, LowSource = interval.LowSource, HighSource = interval.HighSource };
-        }
-    }
+    private static double Share(Int128 difference, long na, long nb) => Math.Clamp((double)difference / ((double)na * nb), 0, 1);
 }
 
 /// <summary>How one quantile moved from side a to side b.</summary>

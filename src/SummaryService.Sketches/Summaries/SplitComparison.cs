@@ -22,26 +22,33 @@ public static class SplitComparison
         options.Validate();
         var (now, then) = Align(groups, before);
         var judged = new StandoutGroup[now.Length];
+        double confidence = options.Confidence;
         Sides window = Sides.Of(now, shared, sharedSeries);
         Sides? earlier = then is null ? null : Sides.Of(then, before!.Shared, before.SharedSeries);
-        // The window's rests are kept only when the moves need them again.
-        SeriesSketch[]? restsNow = earlier is null ? null : new SeriesSketch[now.Length];
-        RestMerges.ForEach(now.Select(g => g.Sketch).ToArray(), window.Keys, shared, (i, rest) =>
-        {
-            judged[i] = Judge(now[i], rest, window.RestSeries(i), options);
-            restsNow?[i] = rest;
-        });
+
+        // The earlier window's rests first, so that each group's four sides are prepared once
+        // (a sorted view each) and read by both its judgement and its move.
+        SeriesSketch?[]? restsBefore = earlier is null ? null : new SeriesSketch?[then!.Length];
         if (earlier is not null)
         {
-            var restsBefore = new SeriesSketch[then!.Length];
-            RestMerges.ForEach(then.Select(g => g.Sketch).ToArray(), earlier.Keys, before!.Shared, (i, rest) => restsBefore[i] = rest);
-            for (int i = 0; i < judged.Length; i++)
+            RestMerges.ForEach(then!.Select(g => g.Sketch).ToArray(), earlier.Keys, before!.Shared, (i, rest) => restsBefore![i] = rest);
+        }
+
+        RestMerges.ForEach(now.Select(g => g.Sketch).ToArray(), window.Keys, shared, (i, rest) =>
+        {
+            var groupSide = new ComparisonSide(now[i].Sketch, confidence);
+            var restSide = new ComparisonSide(rest, confidence);
+            judged[i] = Judge(now[i], groupSide, restSide, window.RestSeries(i), options);
+            if (earlier is not null)
             {
-                StandoutMove move = Moves.Of(then[i], restsBefore[i], earlier.RestSeries(i), now[i].Sketch, restsNow![i], options.Quantiles, options.Confidence);
+                var groupBefore = new ComparisonSide(then![i].Sketch, confidence);
+                var restBefore = new ComparisonSide(restsBefore![i]!, confidence);
+                restsBefore[i] = null; // no longer needed: memory falls as the walk goes on
+                StandoutMove move = Moves.Of(then[i].Series, groupBefore, restBefore, earlier.RestSeries(i), groupSide, restSide, options.Quantiles);
                 var (standing, strength, significant) = Moves.Measure(move, options);
                 judged[i] = judged[i] with { Move = move, Standing = standing, Strength = strength, Significant = significant };
             }
-        }
+        });
 
         StandoutGroup[] ranked = [.. judged.Where(g => g.Standing == StandoutStanding.Ranked)
             .OrderByDescending(g => g.Strength)
@@ -70,7 +77,7 @@ public static class SplitComparison
 
     private static StandoutInput Empty(string value, SeriesSketchOptions options) => new(value, new SeriesSketch(options, RestMerges.KeyOf(value)), 0);
 
-    private static StandoutGroup Judge(StandoutInput group, SeriesSketch rest, int restSeries, StandoutOptions options)
+    private static StandoutGroup Judge(StandoutInput group, ComparisonSide own, ComparisonSide rest, int restSeries, StandoutOptions options)
     {
         SeriesSketch sketch = group.Sketch;
         double confidence = options.Confidence;
@@ -79,25 +86,25 @@ public static class SplitComparison
             return new StandoutGroup(group.Value, sketch.Count, group.Series, rest.Count, restSeries, [], null, null, StandoutStanding.TooSmall, 0, false);
         }
 
-        QuantileShift[] shifts = SketchComparison.Shifts(rest, sketch, options.Quantiles, confidence);
+        QuantileShift[] shifts = SketchComparison.Shifts(rest, own, options.Quantiles);
         var quantiles = new StandoutQuantile[shifts.Length];
         for (int q = 0; q < shifts.Length; q++)
         {
-            quantiles[q] = new StandoutQuantile(shifts[q], Bounded(shifts[q].Q, confidence, sketch, rest));
+            quantiles[q] = new StandoutQuantile(shifts[q], Bounded(shifts[q].Q, confidence, sketch.Count, rest.Count));
         }
 
-        DistanceVerdict verdict = Distance(rest, sketch, confidence);
-        MeanDifference? mean = MeanDifference.Welch(rest.Moments, sketch.Moments, confidence);
+        DistanceVerdict verdict = Distance(rest, own);
+        MeanDifference? mean = MeanDifference.Welch(rest.Sketch.Moments, sketch.Moments, confidence);
         var (standing, strength, significant) = Measure(quantiles, verdict, options);
         return new StandoutGroup(group.Value, sketch.Count, group.Series, rest.Count, restSeries, quantiles, verdict, mean, standing, strength, significant);
     }
 
-    /// <summary>True when every sketch holds enough values to bound quantile q (<see cref="SketchComparison.CanBound"/>).</summary>
-    internal static bool Bounded(double q, double confidence, params ReadOnlySpan<SeriesSketch> sides)
+    /// <summary>True when every side holds enough values to bound quantile q (<see cref="SketchComparison.CanBound"/>).</summary>
+    internal static bool Bounded(double q, double confidence, params ReadOnlySpan<long> counts)
     {
-        foreach (SeriesSketch side in sides)
+        foreach (long count in counts)
         {
-            if (!SketchComparison.CanBound(side.Count, q, confidence))
+            if (!SketchComparison.CanBound(count, q, confidence))
             {
                 return false;
             }
@@ -106,11 +113,11 @@ public static class SplitComparison
         return true;
     }
 
-    /// <summary>The distance from a to b with its bounds and the limit two samples of one distribution stay within.</summary>
-    internal static DistanceVerdict Distance(SeriesSketch a, SeriesSketch b, double confidence)
+    /// <summary>The distance from a to b (both holding values) with its bounds and the limit two samples of one distribution stay within.</summary>
+    internal static DistanceVerdict Distance(ComparisonSide a, ComparisonSide b)
     {
-        var (distance, low, high) = SketchComparison.KolmogorovSmirnov(a, b, confidence);
-        return new DistanceVerdict(distance, low, high, SketchComparison.SameDistributionLimit(a.Count, b.Count, confidence));
+        var (distance, low, high) = SketchComparison.KolmogorovSmirnov(a, b);
+        return new DistanceVerdict(distance, low, high, SketchComparison.SameDistributionLimit(a.Count, b.Count, a.ConfidenceLevel));
     }
 
     private static (StandoutStanding Standing, double Strength, bool Significant) Measure(StandoutQuantile[] quantiles, DistanceVerdict distance, StandoutOptions options)

@@ -37,7 +37,8 @@ internal static class SummaryBuilder
             Form = form,
             RelativeError = buckets?.RelativeError,
             BucketScale = buckets?.Scale,
-            Quantiles = options.Quantiles.Select(q => bounds.Quantile(q)).ToArray(),
+            // The median and quartiles are read once, for their own figures and for the list.
+            Quantiles = options.Quantiles.Select(q => q switch { 0.25 => lowerQuartile, 0.5 => median, 0.75 => upperQuartile, _ => bounds.Quantile(q) }).ToArray(),
             FiveNumber = new FiveNumberSummary(moments.Min, lowerQuartile, median, upperQuartile, moments.Max),
             Iqr = iqr,
             IqrLow = Math.Max(0, upperQuartile.Low - lowerQuartile.High),
