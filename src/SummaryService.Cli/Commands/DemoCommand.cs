@@ -124,7 +124,8 @@ public static class DemoCommand
         console.Out.WriteLine("Try these in another terminal (from the repository, 'sumq' is 'dotnet run --project src/SummaryService.Cli --'):");
         (string Why, string Command)[] lines =
         [
-            ("checkout before and after the release: p90 moved up; p99 grows several-fold (see b / a) but is inconclusive, its intervals overlap", $"shift {OtterbyteScenario.Checkout} --a {before} --b {after} --quantile 0.5 --quantile 0.9 --quantile 0.99"),
+            ("checkout before and after the release: p90 and p99 moved up (p99 several-fold, see b / a); the median is inconclusive", $"shift {OtterbyteScenario.Checkout} --a {before} --b {after} --quantile 0.5 --quantile 0.9 --quantile 0.99"),
+            ("did one region carry checkout's p99 rise? each region's move against the others'", $"standout {OtterbyteScenario.Checkout} --by region --window {after} --before {before} --rank-by ratio --at 0.99"),
             ("pricing did not change: every quantile is inconclusive with a ratio near ×1", $"shift {OtterbyteScenario.Pricing} --a {before} --b {after} --quantile 0.5 --quantile 0.9 --quantile 0.99"),
             ("checkout before the release: skewness and the mean–median gap", $"window {OtterbyteScenario.Checkout} --from {TimePoint.Format(startMs)} --to {TimePoint.Format(deployMs)}"),
             ("… and after it", $"window {OtterbyteScenario.Checkout} --from {TimePoint.Format(deployMs)}"),

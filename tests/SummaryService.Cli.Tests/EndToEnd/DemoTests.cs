@@ -42,6 +42,11 @@ public sealed class DemoTests(ServerFixture server)
         Assert.True(a.Mean - a.FiveNumber.Median.Value > 2 * (b.Mean - b.FiveNumber.Median.Value), $"gap {b.Mean - b.FiveNumber.Median.Value} → {a.Mean - a.FiveNumber.Median.Value}");
         Assert.True(a.Stddev > b.Stddev);
 
+        // The printed ranking runs as printed: each region's p99 move against the other regions'.
+        var standout = (await CliRun.RunAsync([.. Printed("sumq standout otterbyte.checkout.latency_ms", withEnd: false), "--json"])).Json<StandoutReply>();
+        Assert.Equal(3, standout.Ranked.Count + standout.Unranked.Count);
+        Assert.Equal(0.99, standout.MeasureQuantile);
+
         // Every service of the scenario is there, in three regions.
         var catalogue = (await CliRun.AgainstAsync(server.Address, "catalogue", "--json")).Json<CatalogueReply>();
         Assert.Equal(15, catalogue.Series.Count(s => s.Metric.StartsWith("otterbyte.", StringComparison.Ordinal) && s.Labels.ContainsKey("service")));
