@@ -68,14 +68,11 @@ public static class LoopbackPorts
     private static (int Low, int High) ReadEphemeralRange()
     {
         const string RangeFile = "/proc/sys/net/ipv4/ip_local_port_range";
-        try
-        {
-            string[] parts = File.ReadAllText(RangeFile).Split((char[])['\t', ' ', '\n'], StringSplitOptions.RemoveEmptyEntries);
-            return (int.Parse(parts[0], CultureInfo.InvariantCulture), int.Parse(parts[1], CultureInfo.InvariantCulture));
-        }
-        catch (Exception error) when (error is IOException or UnauthorizedAccessException or FormatException or IndexOutOfRangeException)
-        {
-            return (32_768, 60_999);
-        }
+        string[] parts = File.Exists(RangeFile) ? File.ReadAllText(RangeFile).Split((char[])['\t', ' ', '\n'], StringSplitOptions.RemoveEmptyEntries) : [];
+        return parts.Length == 2
+            && int.TryParse(parts[0], NumberStyles.None, CultureInfo.InvariantCulture, out int low)
+            && int.TryParse(parts[1], NumberStyles.None, CultureInfo.InvariantCulture, out int high)
+            ? (low, high)
+            : (32_768, 60_999);
     }
 }

@@ -50,13 +50,9 @@ public sealed class PostgresBatchLog(int partition, NpgsqlDataSource database, P
                 throw new InvalidDataException($"Partition {partition}'s batch log holds a record of format version {record.FormatVersion} (lsn {lsn}); this server reads versions up to {StoreRecordCodec.LogFormatVersion}. Run the newer server.");
             }
 
-            try
+            if (StoreRecordCodec.ReplayableWrite(record, report, logger) is { } write)
             {
-                writes.Add(StoreRecordCodec.FromRecord(record));
-            }
-            catch (Exception ex) when (RecoveryReport.IsUnusableContent(ex))
-            {
-                report.SkipRecord(record.Lsn, record.Metric, ex.Message, logger);
+                writes.Add(write);
             }
         }
 

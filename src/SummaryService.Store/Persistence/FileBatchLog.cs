@@ -40,13 +40,9 @@ public sealed class FileBatchLog : IBatchLog
         var writes = new List<LoggedWrite>();
         foreach (LogRecord record in LogSegments.ReadAll(_directory, _logger, report))
         {
-            try
+            if (StoreRecordCodec.ReplayableWrite(record, report, _logger) is { } write)
             {
-                writes.Add(StoreRecordCodec.FromRecord(record));
-            }
-            catch (Exception ex) when (RecoveryReport.IsUnusableContent(ex))
-            {
-                report.SkipRecord(record.Lsn, record.Metric, ex.Message, _logger);
+                writes.Add(write);
             }
         }
 

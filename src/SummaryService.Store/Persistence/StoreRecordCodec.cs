@@ -1,3 +1,4 @@
+using Microsoft.Extensions.Logging;
 using SummaryService.Formats.Store;
 using SummaryService.Sketches.Serialization;
 
@@ -51,6 +52,25 @@ public static class StoreRecordCodec
             [.. record.Values],
             [.. record.TimesUnixMs],
             record.Sketch is null ? null : SketchCodec.FromState(record.Sketch));
+    }
+
+    /// <summary>
+    /// A record read back for replay: its write, or null when its content is unusable, which is then
+    /// counted and told in <paramref name="report"/> (replay goes on without it).
+    /// </summary>
+    public static LoggedWrite? ReplayableWrite(LogRecord record, RecoveryReport report, ILogger logger)
+    {
+        ArgumentNullException.ThrowIfNull(record);
+        ArgumentNullException.ThrowIfNull(report);
+        try
+        {
+            return FromRecord(record);
+        }
+        catch (Exception ex) when (RecoveryReport.IsUnusableContent(ex))
+        {
+            report.SkipRecord(record.Lsn, record.Metric, ex.Message, logger);
+            return null;
+        }
     }
 
     /// <summary>One series of a snapshot as its record.</summary>

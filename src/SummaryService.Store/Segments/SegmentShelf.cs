@@ -6,7 +6,7 @@ namespace SummaryService.Store.Segments;
 /// The store's segment directory: writes new segments, opens them, and deletes each once no bucket
 /// points into it any more. Also says which buckets are due to leave memory: closed buckets of the
 /// first tier older than <see cref="SegmentOptions.HotSpan"/>, and closed buckets of every coarser
-/// tier, cut at whole <see cref="SegmentOptions.SegmentSpan"/>s so that segments come in a few
+/// tier, cut at whole spans (<see cref="SegmentOptions.SpanMsFor"/>) so that segments come in a few
 /// sizeable files rather than one per rollup pass. Snapshot generations list the segments they
 /// hold in manifests (<see cref="SegmentManifest"/>); a file goes only once no bucket points into it
 /// and no kept generation lists it.
