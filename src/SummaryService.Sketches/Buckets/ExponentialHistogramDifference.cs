@@ -62,24 +62,22 @@ public static class ExponentialHistogramDifference
         };
     }
 
-    // The smallest and largest value the occupied buckets allow: the outer edges of the lowest and
-    // highest occupied bucket, or 0 where zeros are the lowest (highest) values. Edges are read at
-    // the finest scale the mapping computes, at most the point's (a coarser bucket holds the finer one).
+    // The smallest and largest value the occupied buckets allow: the outer edges (the mapping's own
+    // bucket bounds) of the lowest and highest occupied bucket, or 0 where zeros are the lowest
+    // (highest) values. Edges are read at the finest scale the mapping computes, at most the
+    // point's (a coarser bucket holds the finer one).
     private static (double Lowest, double Highest) OuterBucketEdges(ExponentialHistogramPoint point)
     {
         int scale = Math.Min(point.Scale, ExponentialMapping.MaxScale);
         int shift = point.Scale - scale;
         ExponentialMapping mapping = ExponentialMapping.ForScale(scale);
-        long positiveFirst = ((long)point.PositiveOffset) >> shift;
-        long positiveLast = ((long)point.PositiveOffset + point.Positive.Count - 1) >> shift;
-        long negativeFirst = ((long)point.NegativeOffset) >> shift;
-        long negativeLast = ((long)point.NegativeOffset + point.Negative.Count - 1) >> shift;
-        double lowest = point.Negative.Count > 0 ? -mapping.Floor(negativeLast + 1)
+        int Index(long unshifted) => (int)(unshifted >> shift);
+        double lowest = point.Negative.Count > 0 ? -mapping.Bounds(Index((long)point.NegativeOffset + point.Negative.Count - 1)).High
             : point.ZeroCount > 0 ? 0
-            : Math.BitIncrement(mapping.Floor(positiveFirst));
-        double highest = point.Positive.Count > 0 ? mapping.Floor(positiveLast + 1)
+            : mapping.Bounds(Index(point.PositiveOffset)).Low;
+        double highest = point.Positive.Count > 0 ? mapping.Bounds(Index((long)point.PositiveOffset + point.Positive.Count - 1)).High
             : point.ZeroCount > 0 ? 0
-            : -Math.BitIncrement(mapping.Floor(negativeFirst));
+            : -mapping.Bounds(Index(point.NegativeOffset)).Low;
         return (lowest, highest);
     }
 
