@@ -10,8 +10,18 @@ public sealed class AdminTests
     public async Task Catalogue_removal_snapshot_and_holdings()
     {
         await using var server = new TestServer();
-        await server.Ingest.PushAsync(Requests.Batch("shop.a", [1, 2, 3], ("host", "x")));
-        await server.Ingest.PushAsync(Requests.Batch("shop.b", [4]));
+
+        // Every batch at one instant, the middle of the last whole 10 s bucket: "now" would let two
+        // batches of one series straddle a bucket edge and make the bucket count depend on the clock.
+        long at = ((DateTimeOffset.UtcNow.ToUnixTimeMilliseconds() / 10_000) - 1) * 10_000 + 5_000;
+        Batch At(Batch batch)
+        {
+            batch.TimeUnixMs = at;
+            return batch;
+        }
+
+        await server.Ingest.PushAsync(At(Requests.Batch("shop.a", [1, 2, 3], ("host", "x"))));
+        await server.Ingest.PushAsync(At(Requests.Batch("shop.b", [4])));
 
         var all = await server.Query.CatalogueAsync(new CatalogueRequest());
         Assert.Equal(["shop.a", "shop.b"], all.Series.Select(s => s.Metric));
@@ -19,7 +29,7 @@ public sealed class AdminTests
         Assert.Equal("x", all.Series[0].Labels["host"]);
         Assert.Single((await server.Query.CatalogueAsync(new CatalogueRequest { Metric = "shop.b" })).Series);
 
-        var numbered = Requests.Batch("shop.b", [5]);
+        var numbered = At(Requests.Batch("shop.b", [5]));
         numbered.Producer = "till-7";
         numbered.Sequence = 1;
         await server.Ingest.PushAsync(numbered);
