@@ -36,7 +36,7 @@ internal sealed class LogBucketView
     /// <summary>Number of values.</summary>
     public long Count { get; }
 
-    /// <summary>(base − 1)/(base + 1) of the scale the buckets were read at.</summary>
+    /// <summary>(base − 1)/(base + 1) of the scale the buckets were read at; NaN for edge buckets, whose widths are the producer's.</summary>
     public double RelativeError { get; }
 
     /// <summary>Number of occupied buckets (the zeros count as one).</summary>
@@ -101,6 +101,36 @@ internal sealed class LogBucketView
         }
 
         return new LogBucketView(low, high, cumulative, mapping.RelativeError, min, max, extremesExact);
+    }
+
+    /// <summary>
+    /// Reads edge buckets (<see cref="EdgeBucketSketch"/>) the same way: each occupied bucket is its
+    /// closed [lower edge, upper edge] cut to [<paramref name="min"/>, <paramref name="max"/>], which
+    /// also bounds the outer buckets that reach to infinity. Every reader of the view then answers
+    /// from the producer's edges with no case of its own.
+    /// </summary>
+    public static LogBucketView OfEdges(EdgeBucketSketch sketch, double min, double max, bool extremesExact = true)
+    {
+        ArgumentNullException.ThrowIfNull(sketch);
+        IReadOnlyList<long> counts = sketch.Counts;
+        int occupied = counts.Count(c => c != 0);
+        double[] low = GC.AllocateUninitializedArray<double>(occupied);
+        double[] high = GC.AllocateUninitializedArray<double>(occupied);
+        long[] cumulative = GC.AllocateUninitializedArray<long>(occupied);
+        long running = 0;
+        int at = 0;
+        for (int k = 0; k < counts.Count; k++)
+        {
+            if (counts[k] != 0)
+            {
+                (double l, double h) = sketch.Hull(k);
+                running += counts[k];
+                (low[at], high[at], cumulative[at]) = (Math.Max(l, min), Math.Min(h, max), running);
+                at++;
+            }
+        }
+
+        return new LogBucketView(low, high, cumulative, double.NaN, min, max, extremesExact);
     }
 
     /// <summary>
