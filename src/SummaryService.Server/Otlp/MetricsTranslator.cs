@@ -14,7 +14,7 @@ namespace SummaryService.Server.Otlp;
 /// Malformed requests are refused whole (<see cref="Check"/>); points that are well formed but
 /// cannot be represented are counted in the plan's rejections for OTLP's partial-success reply.
 /// </summary>
-public sealed class MetricsTranslator(OtlpSettings settings, SeriesSketchOptions sketchOptions, CumulativeStreams cumulative)
+public sealed partial class MetricsTranslator(OtlpSettings settings, SeriesSketchOptions sketchOptions, CumulativeStreams cumulative)
 {
     private const ulong NanosPerMilli = 1_000_000;
 
@@ -45,6 +45,9 @@ public sealed class MetricsTranslator(OtlpSettings settings, SeriesSketchOptions
                     break;
                 case Metric.DataOneofCase.Sum:
                     CheckTimes(metric.Sum.DataPoints, p => p.TimeUnixNano, $"{path}.sum");
+                    break;
+                case Metric.DataOneofCase.Histogram:
+                    CheckTimes(metric.Histogram.DataPoints, p => p.TimeUnixNano, $"{path}.histogram");
                     break;
                 case Metric.DataOneofCase.ExponentialHistogram:
                     CheckTimes(metric.ExponentialHistogram.DataPoints, p => p.TimeUnixNano, $"{path}.exponential_histogram");
@@ -108,7 +111,7 @@ public sealed class MetricsTranslator(OtlpSettings settings, SeriesSketchOptions
                 PlanExponential(plan, metric, resourceLabels, streamPrefix);
                 break;
             case Metric.DataOneofCase.Histogram:
-                plan.Rejections.Reject(metric.Histogram.DataPoints.Count, $"metric '{metric.Name}' is an explicit-bounds histogram, which this server does not keep; export it as an exponential histogram");
+                PlanExplicit(plan, metric, resourceLabels, streamPrefix);
                 break;
             case Metric.DataOneofCase.Summary:
                 plan.Rejections.Reject(metric.Summary.DataPoints.Count, $"metric '{metric.Name}' is a summary (pre-computed quantiles), which cannot be merged; export a histogram instead");
