@@ -142,7 +142,8 @@ internal sealed class LogBucketView
     /// Q = (1 − f)·x₍ⱼ₎ + f·x₍ⱼ₊₁₎ with j = ⌊h⌋, f = h − j, h = (n − 1)q + 1 is increasing in both
     /// order statistics, so it lies between the same combination of their buckets' ends. For values of
     /// one sign that interval's relative half-width about its midpoint is at most (base − 1)/(base + 1).
-    /// The ends are moved out by one ulp to absorb the rounding of the combination.
+    /// Where the combination rounds (two different ends), the end is moved out by one ulp to absorb
+    /// it; where both ranks lie in one bucket the interval is that bucket's ends exactly.
     /// </remarks>
     public (double Estimate, double Low, double High) Quantile(double q, double rankShift = 0)
     {
@@ -150,10 +151,10 @@ internal sealed class LogBucketView
         double j = Math.Floor(h);
         double f = h - j;
         double next = Math.Min(j + 1, Count);
-        double low = Combine(f, LowAt(Math.Floor(j - rankShift)), LowAt(Math.Floor(next - rankShift)));
-        double high = Combine(f, HighAt(Math.Ceiling(j + rankShift)), HighAt(Math.Ceiling(next + rankShift)));
+        double low = Outward(f, LowAt(Math.Floor(j - rankShift)), LowAt(Math.Floor(next - rankShift)), down: true);
+        double high = Outward(f, HighAt(Math.Ceiling(j + rankShift)), HighAt(Math.Ceiling(next + rankShift)), down: false);
         double estimate = Combine(f, MiddleAt(j), MiddleAt(next));
-        return (Math.Clamp(estimate, low, high), Math.BitDecrement(low), Math.BitIncrement(high));
+        return (Math.Clamp(estimate, low, high), low, high);
     }
 
     /// <summary>Bounds on the number of values ≤ <paramref name="x"/> (or &lt; x when <paramref name="strict"/>) and an estimate that spreads each bucket evenly.</summary>
@@ -189,6 +190,9 @@ internal sealed class LogBucketView
     }
 
     private static double Combine(double f, double a, double b) => f == 0 ? a : a + (f * (b - a));
+
+    private static double Outward(double f, double a, double b, bool down) =>
+        f == 0 || a == b ? a : down ? Math.BitDecrement(Combine(f, a, b)) : Math.BitIncrement(Combine(f, a, b));
 
     private double Middle(int bucket) => _low[bucket] + ((_high[bucket] - _low[bucket]) / 2);
 
