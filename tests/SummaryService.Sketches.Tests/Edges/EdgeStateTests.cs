@@ -33,7 +33,7 @@ public class EdgeStateTests
 
     [Theory]
     [InlineData("decreasing", "edge_buckets.bounds[1]")]
-    [InlineData("short-counts", "edge_buckets.counts has 3 counts")]
+    [InlineData("short-counts", "edge_buckets.counts has 4 counts for 4 edges")]
     [InlineData("total", "counts disagree")]
     [InlineData("min-outside", "do not hold moments.min")]
     [InlineData("with-log-buckets", "neither quantiles nor log_buckets")]
