@@ -49,7 +49,7 @@ public static class ExplicitPoints
             return $"{path}.min is {point.Min}, above max {point.Max}";
         }
 
-        return PointOf(point).ExtremesOutsideBuckets() is { } outside ? $"{path} has {outside}" : null;
+        return PointOf(point).ExtremesOutsideBuckets() is { } outside ? $"{path}: its {outside}" : null;
     }
 
     /// <summary>The values of a valid point, with its edges and counts copied (a cumulative stream keeps them past the request).</summary>

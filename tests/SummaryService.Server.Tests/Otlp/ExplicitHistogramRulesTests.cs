@@ -77,7 +77,7 @@ public sealed class ExplicitHistogramRulesTests
     [InlineData("counts-length", "histogram.data_points[0].bucket_counts has 3 counts for 3 edges")]
     [InlineData("counts-total", "histogram.data_points[0].count is 7 but bucket_counts add up to 6")]
     [InlineData("no-sum", "histogram.data_points[0].sum is absent")]
-    [InlineData("max-outside", "max 40 do not lie in the lowest and highest occupied buckets")]
+    [InlineData("max-outside", "histogram.data_points[0]: its min 1 and max 40 do not lie in the lowest and highest occupied buckets")]
     public async Task A_malformed_point_is_rejected_through_partial_success_naming_the_metric_and_field_and_changes_nothing(string damage, string message)
     {
         await using var server = new TestServer();

@@ -84,7 +84,8 @@ public sealed class SdkExplicitHistogramTests
 
             // Definition 7 interpolates the order statistics of ranks ⌊h⌋ and ⌊h⌋ + 1, h = (n − 1)q + 1.
             // Where both lie in one bucket (data model: bucket i holds (bounds[i−1], bounds[i]]),
-            // the interval is that bucket's edges cut to [min, max]; else it lies within their two buckets.
+            // the interval is that bucket's edges cut to [min, max] (an end at min or max is named
+            // after the range, the surer source); else it lies within their two buckets.
             double h = ((weights.Length - 1) * q.Q) + 1;
             int lower = BucketOf(weights[(int)Math.Floor(h) - 1]);
             int upper = BucketOf(weights[Math.Min((int)Math.Floor(h), weights.Length - 1)]);
@@ -92,8 +93,8 @@ public sealed class SdkExplicitHistogramTests
             if (lower == upper && h > 1 && h < weights.Length)
             {
                 Assert.Equal((low, high), (q.Low, q.High));
-                Assert.Equal(BoundSource.Edges, q.LowSource);
-                Assert.Equal(BoundSource.Edges, q.HighSource);
+                Assert.Equal(low == weights[0] ? BoundSource.Range : BoundSource.Edges, q.LowSource);
+                Assert.Equal(high == weights[^1] ? BoundSource.Range : BoundSource.Edges, q.HighSource);
             }
             else
             {
