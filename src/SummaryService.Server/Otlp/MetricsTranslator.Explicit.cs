@@ -1,5 +1,3 @@
-using Google.Protobuf.Collections;
-using SummaryService.Contract.Otlp.Common;
 using SummaryService.Contract.Otlp.Metrics;
 using SummaryService.Sketches.Buckets;
 
@@ -22,10 +20,8 @@ public sealed partial class MetricsTranslator
     private void PlanExplicit(ExportPlan plan, Metric metric, Dictionary<string, string> resourceLabels, byte[] streamPrefix)
     {
         Histogram histogram = metric.Histogram;
-        bool isCumulative = histogram.AggregationTemporality == AggregationTemporality.Cumulative;
-        if (!isCumulative && histogram.AggregationTemporality != AggregationTemporality.Delta)
+        if (IsCumulative(plan, metric.Name, "a histogram", histogram.AggregationTemporality, histogram.DataPoints.Count) is not { } isCumulative)
         {
-            plan.Rejections.Reject(histogram.DataPoints.Count, $"metric '{metric.Name}' is a histogram with aggregation_temporality {(int)histogram.AggregationTemporality}; a histogram is delta (1) or cumulative (2)");
             return;
         }
 
@@ -43,43 +39,13 @@ public sealed partial class MetricsTranslator
                 continue;
             }
 
-            EdgeHistogramPoint values = ExplicitPoints.PointOf(point);
-            if (isCumulative)
+            var at = new PointPlace(metric.Name, point.Attributes, point.StartTimeUnixNano, point.TimeUnixNano);
+            if (Added(plan, at, isCumulative, streamPrefix, ExplicitPoints.PointOf(point), s_edgesSince, v => v.Count) is { } values)
             {
-                UInt128 stream = StreamIdentity.Of(streamPrefix, metric.Name, point.Attributes);
-                var (outcome, delta) = cumulative.Next(stream, point.StartTimeUnixNano, point.TimeUnixNano, values, s_edgesSince);
-                if (!Recorded(plan, metric.Name, outcome, point.TimeUnixNano) || delta!.Count == 0)
-                {
-                    continue;
-                }
-
-                values = delta;
+                AddSketch(plan, at, resourceLabels, values.ExtremesExact, () => values.ToSketch(sketchOptions));
             }
-
-            AddExplicit(plan, metric.Name, point.Attributes, resourceLabels, values, point.TimeUnixNano);
         }
 
         plan.Rejections.Note("explicit-bounds histograms give count, sum, min, max and their bucket counts; quantiles are bounded by the edges of the buckets that hold them, and variance, skewness and kurtosis are absent");
-    }
-
-    private void AddExplicit(ExportPlan plan, string metric, RepeatedField<KeyValue> attributes, Dictionary<string, string> resourceLabels, EdgeHistogramPoint values, ulong timeUnixNano)
-    {
-        if (LabelsOf(plan, metric, attributes, resourceLabels) is not { } labels)
-        {
-            return;
-        }
-
-        if (!values.ExtremesExact)
-        {
-            plan.Rejections.Note($"metric '{metric}': between two cumulative points no new min or max was recorded, so the difference's extremes are known only to lie in its outermost buckets; its summaries say extremes_bounded and give min and max as outer bounds");
-        }
-
-        plan.Sketches.Add(new PlannedSketch(new Store.UploadedSketch
-        {
-            Metric = metric,
-            Labels = labels,
-            Sketch = values.ToSketch(sketchOptions),
-            TimeUnixMs = MillisOf(timeUnixNano),
-        }));
     }
 }

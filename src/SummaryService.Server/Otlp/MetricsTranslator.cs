@@ -229,10 +229,8 @@ public sealed partial class MetricsTranslator(OtlpSettings settings, SeriesSketc
     private void PlanExponential(ExportPlan plan, Metric metric, Dictionary<string, string> resourceLabels, byte[] streamPrefix)
     {
         ExponentialHistogram histogram = metric.ExponentialHistogram;
-        bool isCumulative = histogram.AggregationTemporality == AggregationTemporality.Cumulative;
-        if (!isCumulative && histogram.AggregationTemporality != AggregationTemporality.Delta)
+        if (IsCumulative(plan, metric.Name, "an exponential histogram", histogram.AggregationTemporality, histogram.DataPoints.Count) is not { } isCumulative)
         {
-            plan.Rejections.Reject(histogram.DataPoints.Count, $"metric '{metric.Name}' is an exponential histogram with aggregation_temporality {(int)histogram.AggregationTemporality}; a histogram is delta (1) or cumulative (2)");
             return;
         }
 
@@ -249,50 +247,22 @@ public sealed partial class MetricsTranslator(OtlpSettings settings, SeriesSketc
                 continue;
             }
 
-            ExponentialHistogramPoint values = ExponentialPoints.PointOf(point);
-            if (isCumulative)
+            var at = new PointPlace(metric.Name, point.Attributes, point.StartTimeUnixNano, point.TimeUnixNano);
+            if (Added(plan, at, isCumulative, streamPrefix, ExponentialPoints.PointOf(point), s_histogramSince, v => v.Count) is not { } values)
             {
-                UInt128 stream = StreamIdentity.Of(streamPrefix, metric.Name, point.Attributes);
-                var (outcome, delta) = cumulative.Next(stream, point.StartTimeUnixNano, point.TimeUnixNano, values, s_histogramSince);
-                if (!Recorded(plan, metric.Name, outcome, point.TimeUnixNano) || delta!.Count == 0)
-                {
-                    continue;
-                }
-
-                values = delta;
+                continue;
             }
 
-            AddExponential(plan, metric.Name, point.Attributes, resourceLabels, values, point.TimeUnixNano);
+            if (ExponentialHistogramImport.Unrepresentable(values, sketchOptions) is { } reason)
+            {
+                plan.Rejections.Reject(1, $"metric '{metric.Name}' has an exponential histogram point that {reason}");
+                continue;
+            }
+
+            AddSketch(plan, at, resourceLabels, values.ExtremesExact, () => ExponentialHistogramImport.ToSketch(values, sketchOptions));
         }
 
         plan.Rejections.Note("exponential histograms give count, sum, min, max and log buckets; their variance, skewness and kurtosis are absent");
-    }
-
-    private void AddExponential(ExportPlan plan, string metric, RepeatedField<KeyValue> attributes, Dictionary<string, string> resourceLabels, ExponentialHistogramPoint values, ulong timeUnixNano)
-    {
-        if (ExponentialHistogramImport.Unrepresentable(values, sketchOptions) is { } reason)
-        {
-            plan.Rejections.Reject(1, $"metric '{metric}' has an exponential histogram point that {reason}");
-            return;
-        }
-
-        if (LabelsOf(plan, metric, attributes, resourceLabels) is not { } labels)
-        {
-            return;
-        }
-
-        if (!values.ExtremesExact)
-        {
-            plan.Rejections.Note($"metric '{metric}': between two cumulative points no new min or max was recorded, so the difference's extremes are known only to lie in its outermost buckets; its summaries say extremes_bounded and give min and max as outer bounds");
-        }
-
-        plan.Sketches.Add(new PlannedSketch(new Store.UploadedSketch
-        {
-            Metric = metric,
-            Labels = labels,
-            Sketch = ExponentialHistogramImport.ToSketch(values, sketchOptions),
-            TimeUnixMs = MillisOf(timeUnixNano),
-        }));
     }
 
     private static Dictionary<string, string>? LabelsOf(ExportPlan plan, string metric, RepeatedField<KeyValue> attributes, Dictionary<string, string> resourceLabels)

@@ -4,6 +4,7 @@ using SummaryService.Contract.Otlp.Common;
 using SummaryService.Contract.Otlp.Metrics;
 using SummaryService.Contract.V1;
 using SummaryService.Server.Tests.Support;
+using static SummaryService.Server.Tests.Otlp.OtlpExports;
 
 namespace SummaryService.Server.Tests.Otlp;
 
@@ -13,8 +14,6 @@ namespace SummaryService.Server.Tests.Otlp;
 /// </summary>
 public sealed class ExplicitHistogramRulesTests
 {
-    private static ulong Now => (ulong)DateTimeOffset.UtcNow.ToUnixTimeMilliseconds() * 1_000_000UL;
-
     [Fact]
     public async Task A_delta_point_is_kept_with_exact_totals_and_quantiles_bounded_by_the_edges_of_their_bucket()
     {
@@ -102,21 +101,6 @@ public sealed class ExplicitHistogramRulesTests
         Assert.Equal(StatusCode.NotFound, nothing.StatusCode);
         Assert.Equal(1UL, (await server.Query.SummarizeAsync(Requests.Summarize("hub.depth"))).Groups.Single().Summary.Count);
     }
-
-    private static ExportMetricsServiceRequest Request(params Metric[] metrics) => new()
-    {
-        ResourceMetrics =
-        {
-            new ResourceMetrics
-            {
-                Resource = new Contract.Otlp.Resource.Resource { Attributes = { new KeyValue { Key = "service.name", Value = new AnyValue { StringValue = "otterbyte-hub" } } } },
-                ScopeMetrics = { new ScopeMetrics { Scope = new InstrumentationScope { Name = "hub" }, Metrics = { metrics } } },
-            },
-        },
-    };
-
-    private static Metric Gauge(string name, double value) =>
-        new() { Name = name, Gauge = new Gauge { DataPoints = { new NumberDataPoint { TimeUnixNano = Now, AsDouble = value } } } };
 
     private static Metric Histogram(string name, AggregationTemporality temporality, params HistogramDataPoint[] points) =>
         new() { Name = name, Histogram = new Contract.Otlp.Metrics.Histogram { AggregationTemporality = temporality, DataPoints = { points } } };
