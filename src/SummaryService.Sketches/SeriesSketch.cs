@@ -24,6 +24,10 @@ namespace SummaryService.Sketches;
 /// moments, log buckets and exact mode counts; a sketch written before log buckets existed has
 /// none unless its KLL part still holds every value. A merge keeps a part only if both sides have
 /// it, since no part can stand for values it never saw.</para>
+/// <para>A sketch of explicit-bounds histogram points has edge buckets (<see cref="EdgeBuckets"/>)
+/// and neither KLL nor log buckets. Merged with any other sketch it stays that way: the other
+/// side's held values are counted between the edges, its log buckets join as buckets with their own
+/// edges (<see cref="EdgeBucketSketch.Merge"/>), and a side with neither leaves no edge buckets.</para>
 /// </remarks>
 public sealed class SeriesSketch
 {
@@ -42,6 +46,9 @@ public sealed class SeriesSketch
     private KllSketch? _quantiles;
     private LogBucketSketch? _buckets;
     private ModeSketch? _modes;
+
+    // Explicit-bounds histogram counts; only ever in a grown sketch, which then has no KLL part nor log buckets.
+    private EdgeBucketSketch? _edges;
 
     // The held values while small (length ≥ count, null while empty); null once grown.
     private double[]? _small;
@@ -101,6 +108,9 @@ public sealed class SeriesSketch
         }
     }
 
+    /// <summary>Edge buckets of explicit-bounds histograms, or null for a sketch of values and log buckets.</summary>
+    public EdgeBucketSketch? EdgeBuckets => _edges;
+
     /// <summary>Exact mode counts or their count-min form. Reading it turns a small sketch into its full form.</summary>
     public ModeSketch Modes
     {
@@ -122,7 +132,7 @@ public sealed class SeriesSketch
 
     /// <summary>Approximate heap bytes of the whole composite: this object, the moments, and either the held values or the parts.</summary>
     public long EstimatedBytes => _grown
-        ? OwnBytes + MomentBytes + (_quantiles?.EstimatedBytes ?? 0) + (_buckets?.EstimatedBytes ?? 0) + _modes!.EstimatedBytes
+        ? OwnBytes + MomentBytes + (_quantiles?.EstimatedBytes ?? 0) + (_buckets?.EstimatedBytes ?? 0) + (_edges?.EstimatedBytes ?? 0) + _modes!.EstimatedBytes
         : OwnBytes + MomentBytes + (_small is null ? 0 : ArrayHeaderBytes + (8L * _small.Length));
 
     /// <summary>Folds in one finite value.</summary>
@@ -143,6 +153,7 @@ public sealed class SeriesSketch
         _moments.AddUnchecked(value);
         _quantiles?.AddUnchecked(value);
         _buckets?.AddUnchecked(value);
+        _edges?.Add([value]);
         _modes!.AddUnchecked(value);
     }
 
@@ -164,6 +175,7 @@ public sealed class SeriesSketch
         _moments.AddUnchecked(values);
         _quantiles?.AddUnchecked(values);
         _buckets?.AddUnchecked(values);
+        _edges?.Add(values);
         _modes!.AddUnchecked(values);
     }
 
@@ -204,15 +216,19 @@ public sealed class SeriesSketch
             (double min, double max) = OrderKeys.RangeOf(held);
             _quantiles?.MergeUncompacted(held, min, max);
             _buckets?.AddUnchecked(held);
+            _edges?.Add(held);
             _modes!.MergeExactEntries(ModeSketch.ExactEntriesOf(held, _options.ModeResolution));
             return;
         }
 
+        // Read before growing: held values count between the other side's edges exactly.
+        EdgeBucketSketch? edges = MergedEdges(other);
         Grow();
         _moments.Merge(other._moments);
         _quantiles = _quantiles is not null && other._quantiles is not null ? Merged(_quantiles, other._quantiles) : null;
         _buckets = _buckets is not null && other._buckets is not null ? Merged(_buckets, other._buckets) : null;
         _modes!.Merge(other._modes!);
+        _edges = edges;
     }
 
     /// <summary>
@@ -272,6 +288,7 @@ public sealed class SeriesSketch
             _quantiles = _quantiles?.Clone(),
             _buckets = _buckets?.Clone(),
             _modes = _modes?.Clone(),
+            _edges = _edges?.Clone(),
         };
         return copy;
     }
@@ -280,7 +297,7 @@ public sealed class SeriesSketch
     public Summary Summarize(SummaryOptions? options = null)
     {
         (KllSketch? quantiles, LogBucketSketch? buckets, ModeSketch modes) = FullParts();
-        return SummaryBuilder.Build(_moments, quantiles, buckets, modes, options ?? new SummaryOptions());
+        return SummaryBuilder.Build(_moments, quantiles, buckets, modes, options ?? new SummaryOptions(), _edges);
     }
 
     /// <summary>
@@ -309,8 +326,18 @@ public sealed class SeriesSketch
     /// become a small sketch again, so a bucket read back from a snapshot is as small as it was. A
     /// KLL part that still holds every value also gives the log buckets, when none were written.
     /// </summary>
-    internal static SeriesSketch FromParts(MomentSketch moments, KllSketch? quantiles, LogBucketSketch? buckets, ModeSketch modes, bool keepsRank)
+    internal static SeriesSketch FromParts(MomentSketch moments, KllSketch? quantiles, LogBucketSketch? buckets, ModeSketch modes, bool keepsRank, EdgeBucketSketch? edges = null)
     {
+        if (edges is not null)
+        {
+            if (quantiles is not null || buckets is not null)
+            {
+                throw new ArgumentException("A sketch with edge buckets has neither a KLL part nor log buckets.", nameof(edges));
+            }
+
+            return new SeriesSketch(moments, OptionsOf(null, null, modes), 0) { _grown = true, _keepsRank = false, _modes = modes, _edges = edges };
+        }
+
         SeriesSketchOptions options = OptionsOf(quantiles, buckets, modes);
         long count = moments.Count;
         ulong seed = quantiles?.RandomState ?? 0;
@@ -337,6 +364,40 @@ public sealed class SeriesSketch
             _buckets = buckets,
             _modes = modes,
         };
+    }
+
+    // The edge buckets of a merge where either side has them; null when neither has, or when a side
+    // has nothing to count between edges (neither held values, edge buckets nor log buckets).
+    private EdgeBucketSketch? MergedEdges(SeriesSketch other)
+    {
+        if (_edges is null && other._edges is null)
+        {
+            return null;
+        }
+
+        EdgeBucketSketch? mine = _edges ?? EdgesOf(this, other._edges!);
+        EdgeBucketSketch? theirs = other._edges ?? EdgesOf(other, _edges!);
+        if (mine is null || theirs is null)
+        {
+            return null;
+        }
+
+        mine.Merge(theirs);
+        return mine;
+    }
+
+    // A sketch without edge buckets as edge buckets: its held values counted between the layout's
+    // edges, or its log buckets with their own edges.
+    private static EdgeBucketSketch? EdgesOf(SeriesSketch sketch, EdgeBucketSketch layout)
+    {
+        if (!sketch._grown)
+        {
+            EdgeBucketSketch counted = EdgeBucketSketch.EmptyLike(layout);
+            counted.Add(sketch.HeldValues);
+            return counted;
+        }
+
+        return sketch._buckets is null ? null : EdgeBucketSketch.OfLogBuckets(OccupiedLogBuckets.Of(sketch._buckets));
     }
 
     private ReadOnlySpan<double> HeldValues => _small is null ? default : _small.AsSpan(0, (int)_moments.Count);

@@ -35,6 +35,7 @@ public static class BoundText
             SketchForm.LogBuckets => $"aged buckets (no rank part); {buckets}",
             SketchForm.RankOnly => "buckets written before log buckets: rank bound only",
             SketchForm.MomentsOnly => "old and aged buckets merged: quantiles bounded by min and max only",
+            SketchForm.EdgeBuckets => "explicit-bounds histograms: quantiles bounded by the edges of the buckets that hold them",
             _ => buckets,
         };
     }
@@ -49,6 +50,7 @@ public static class BoundText
         BoundSource.Range => "min/max",
         BoundSource.LogBuckets => "log buckets",
         BoundSource.RankError => "rank bound",
+        BoundSource.Edges => "histogram edges",
         _ => "—",
     };
 }

@@ -14,7 +14,7 @@ namespace SummaryService.Server.Otlp;
 /// Malformed requests are refused whole (<see cref="Check"/>); points that are well formed but
 /// cannot be represented are counted in the plan's rejections for OTLP's partial-success reply.
 /// </summary>
-public sealed class MetricsTranslator(OtlpSettings settings, SeriesSketchOptions sketchOptions, CumulativeStreams cumulative)
+public sealed partial class MetricsTranslator(OtlpSettings settings, SeriesSketchOptions sketchOptions, CumulativeStreams cumulative)
 {
     private const ulong NanosPerMilli = 1_000_000;
 
@@ -45,6 +45,9 @@ public sealed class MetricsTranslator(OtlpSettings settings, SeriesSketchOptions
                     break;
                 case Metric.DataOneofCase.Sum:
                     CheckTimes(metric.Sum.DataPoints, p => p.TimeUnixNano, $"{path}.sum");
+                    break;
+                case Metric.DataOneofCase.Histogram:
+                    CheckTimes(metric.Histogram.DataPoints, p => p.TimeUnixNano, $"{path}.histogram");
                     break;
                 case Metric.DataOneofCase.ExponentialHistogram:
                     CheckTimes(metric.ExponentialHistogram.DataPoints, p => p.TimeUnixNano, $"{path}.exponential_histogram");
@@ -108,7 +111,7 @@ public sealed class MetricsTranslator(OtlpSettings settings, SeriesSketchOptions
                 PlanExponential(plan, metric, resourceLabels, streamPrefix);
                 break;
             case Metric.DataOneofCase.Histogram:
-                plan.Rejections.Reject(metric.Histogram.DataPoints.Count, $"metric '{metric.Name}' is an explicit-bounds histogram, which this server does not keep; export it as an exponential histogram");
+                PlanExplicit(plan, metric, resourceLabels, streamPrefix);
                 break;
             case Metric.DataOneofCase.Summary:
                 plan.Rejections.Reject(metric.Summary.DataPoints.Count, $"metric '{metric.Name}' is a summary (pre-computed quantiles), which cannot be merged; export a histogram instead");
@@ -226,10 +229,8 @@ public sealed class MetricsTranslator(OtlpSettings settings, SeriesSketchOptions
     private void PlanExponential(ExportPlan plan, Metric metric, Dictionary<string, string> resourceLabels, byte[] streamPrefix)
     {
         ExponentialHistogram histogram = metric.ExponentialHistogram;
-        bool isCumulative = histogram.AggregationTemporality == AggregationTemporality.Cumulative;
-        if (!isCumulative && histogram.AggregationTemporality != AggregationTemporality.Delta)
+        if (IsCumulative(plan, metric.Name, "an exponential histogram", histogram.AggregationTemporality, histogram.DataPoints.Count) is not { } isCumulative)
         {
-            plan.Rejections.Reject(histogram.DataPoints.Count, $"metric '{metric.Name}' is an exponential histogram with aggregation_temporality {(int)histogram.AggregationTemporality}; a histogram is delta (1) or cumulative (2)");
             return;
         }
 
@@ -246,50 +247,22 @@ public sealed class MetricsTranslator(OtlpSettings settings, SeriesSketchOptions
                 continue;
             }
 
-            ExponentialHistogramPoint values = ExponentialPoints.PointOf(point);
-            if (isCumulative)
+            var at = new PointPlace(metric.Name, point.Attributes, point.StartTimeUnixNano, point.TimeUnixNano);
+            if (Added(plan, at, isCumulative, streamPrefix, ExponentialPoints.PointOf(point), s_histogramSince, v => v.Count) is not { } values)
             {
-                UInt128 stream = StreamIdentity.Of(streamPrefix, metric.Name, point.Attributes);
-                var (outcome, delta) = cumulative.Next(stream, point.StartTimeUnixNano, point.TimeUnixNano, values, s_histogramSince);
-                if (!Recorded(plan, metric.Name, outcome, point.TimeUnixNano) || delta!.Count == 0)
-                {
-                    continue;
-                }
-
-                values = delta;
+                continue;
             }
 
-            AddExponential(plan, metric.Name, point.Attributes, resourceLabels, values, point.TimeUnixNano);
+            if (ExponentialHistogramImport.Unrepresentable(values, sketchOptions) is { } reason)
+            {
+                plan.Rejections.Reject(1, $"metric '{metric.Name}' has an exponential histogram point that {reason}");
+                continue;
+            }
+
+            AddSketch(plan, at, resourceLabels, values.ExtremesExact, () => ExponentialHistogramImport.ToSketch(values, sketchOptions));
         }
 
         plan.Rejections.Note("exponential histograms give count, sum, min, max and log buckets; their variance, skewness and kurtosis are absent");
-    }
-
-    private void AddExponential(ExportPlan plan, string metric, RepeatedField<KeyValue> attributes, Dictionary<string, string> resourceLabels, ExponentialHistogramPoint values, ulong timeUnixNano)
-    {
-        if (ExponentialHistogramImport.Unrepresentable(values, sketchOptions) is { } reason)
-        {
-            plan.Rejections.Reject(1, $"metric '{metric}' has an exponential histogram point that {reason}");
-            return;
-        }
-
-        if (LabelsOf(plan, metric, attributes, resourceLabels) is not { } labels)
-        {
-            return;
-        }
-
-        if (!values.ExtremesExact)
-        {
-            plan.Rejections.Note($"metric '{metric}': between two cumulative points no new min or max was recorded, so the difference's extremes are known only to lie in its outermost buckets; its summaries say extremes_bounded and give min and max as outer bounds");
-        }
-
-        plan.Sketches.Add(new PlannedSketch(new Store.UploadedSketch
-        {
-            Metric = metric,
-            Labels = labels,
-            Sketch = ExponentialHistogramImport.ToSketch(values, sketchOptions),
-            TimeUnixMs = MillisOf(timeUnixNano),
-        }));
     }
 
     private static Dictionary<string, string>? LabelsOf(ExportPlan plan, string metric, RepeatedField<KeyValue> attributes, Dictionary<string, string> resourceLabels)

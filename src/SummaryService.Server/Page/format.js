@@ -32,6 +32,7 @@ const BOUND_NAMES = {
   BOUND_SOURCE_RANGE: "min/max",
   BOUND_SOURCE_LOG_BUCKETS: "log buckets",
   BOUND_SOURCE_RANK_ERROR: "rank bound",
+  BOUND_SOURCE_EDGES: "histogram edges",
 };
 
 /** The names of the bounds that gave an interval's two ends, once when they agree. */

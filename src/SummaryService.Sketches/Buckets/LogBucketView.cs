@@ -36,7 +36,7 @@ internal sealed class LogBucketView
     /// <summary>Number of values.</summary>
     public long Count { get; }
 
-    /// <summary>(base − 1)/(base + 1) of the scale the buckets were read at.</summary>
+    /// <summary>(base − 1)/(base + 1) of the scale the buckets were read at; NaN for edge buckets, whose widths are the producer's.</summary>
     public double RelativeError { get; }
 
     /// <summary>Number of occupied buckets (the zeros count as one).</summary>
@@ -104,6 +104,36 @@ internal sealed class LogBucketView
     }
 
     /// <summary>
+    /// Reads edge buckets (<see cref="EdgeBucketSketch"/>) the same way: each occupied bucket is its
+    /// closed [lower edge, upper edge] cut to [<paramref name="min"/>, <paramref name="max"/>], which
+    /// also bounds the outer buckets that reach to infinity. Every reader of the view then answers
+    /// from the producer's edges with no case of its own.
+    /// </summary>
+    public static LogBucketView OfEdges(EdgeBucketSketch sketch, double min, double max, bool extremesExact = true)
+    {
+        ArgumentNullException.ThrowIfNull(sketch);
+        IReadOnlyList<long> counts = sketch.Counts;
+        int occupied = counts.Count(c => c != 0);
+        double[] low = GC.AllocateUninitializedArray<double>(occupied);
+        double[] high = GC.AllocateUninitializedArray<double>(occupied);
+        long[] cumulative = GC.AllocateUninitializedArray<long>(occupied);
+        long running = 0;
+        int at = 0;
+        for (int k = 0; k < counts.Count; k++)
+        {
+            if (counts[k] != 0)
+            {
+                (double l, double h) = sketch.Hull(k);
+                running += counts[k];
+                (low[at], high[at], cumulative[at]) = (Math.Max(l, min), Math.Min(h, max), running);
+                at++;
+            }
+        }
+
+        return new LogBucketView(low, high, cumulative, double.NaN, min, max, extremesExact);
+    }
+
+    /// <summary>
     /// Interval holding the definition-7 quantile (Hyndman &amp; Fan 1996) and its estimate, with every
     /// rank shifted outward by <paramref name="rankShift"/> values (the sampling term of a comparison;
     /// 0 for the sample quantile itself).
@@ -112,7 +142,8 @@ internal sealed class LogBucketView
     /// Q = (1 − f)·x₍ⱼ₎ + f·x₍ⱼ₊₁₎ with j = ⌊h⌋, f = h − j, h = (n − 1)q + 1 is increasing in both
     /// order statistics, so it lies between the same combination of their buckets' ends. For values of
     /// one sign that interval's relative half-width about its midpoint is at most (base − 1)/(base + 1).
-    /// The ends are moved out by one ulp to absorb the rounding of the combination.
+    /// Where the combination rounds (two different ends), the end is moved out by one ulp to absorb
+    /// it; where both ranks lie in one bucket the interval is that bucket's ends exactly.
     /// </remarks>
     public (double Estimate, double Low, double High) Quantile(double q, double rankShift = 0)
     {
@@ -120,10 +151,10 @@ internal sealed class LogBucketView
         double j = Math.Floor(h);
         double f = h - j;
         double next = Math.Min(j + 1, Count);
-        double low = Combine(f, LowAt(Math.Floor(j - rankShift)), LowAt(Math.Floor(next - rankShift)));
-        double high = Combine(f, HighAt(Math.Ceiling(j + rankShift)), HighAt(Math.Ceiling(next + rankShift)));
+        double low = Outward(f, LowAt(Math.Floor(j - rankShift)), LowAt(Math.Floor(next - rankShift)), down: true);
+        double high = Outward(f, HighAt(Math.Ceiling(j + rankShift)), HighAt(Math.Ceiling(next + rankShift)), down: false);
         double estimate = Combine(f, MiddleAt(j), MiddleAt(next));
-        return (Math.Clamp(estimate, low, high), Math.BitDecrement(low), Math.BitIncrement(high));
+        return (Math.Clamp(estimate, low, high), low, high);
     }
 
     /// <summary>Bounds on the number of values ≤ <paramref name="x"/> (or &lt; x when <paramref name="strict"/>) and an estimate that spreads each bucket evenly.</summary>
@@ -159,6 +190,9 @@ internal sealed class LogBucketView
     }
 
     private static double Combine(double f, double a, double b) => f == 0 ? a : a + (f * (b - a));
+
+    private static double Outward(double f, double a, double b, bool down) =>
+        f == 0 || a == b ? a : down ? Math.BitDecrement(Combine(f, a, b)) : Math.BitIncrement(Combine(f, a, b));
 
     private double Middle(int bucket) => _low[bucket] + ((_high[bucket] - _low[bucket]) / 2);
 

@@ -12,7 +12,7 @@ namespace SummaryService.Sketches.Serialization;
 /// sketch in the same state, whose own bytes are identical. Reading treats the bytes as untrusted
 /// (they arrive from clients and from disk) and rejects any state a sketch could not be in.
 /// </summary>
-public static class SketchCodec
+public static partial class SketchCodec
 {
     /// <summary>Version written into <see cref="SeriesSketchState.Version"/>: 2 adds log buckets and the compact form.</summary>
     public const uint FormatVersion = 2;
@@ -49,7 +49,8 @@ public static class SketchCodec
         (KllSketch? quantiles, LogBucketSketch? buckets, ModeSketch modes) = sketch.FullParts();
         return new SeriesSketchState
         {
-            Version = FormatVersion,
+            Version = sketch.EdgeBuckets is null ? FormatVersion : EdgeVersion,
+            EdgeBuckets = sketch.EdgeBuckets is { } edges ? ToState(edges) : null,
             Moments = ToState(sketch.Moments),
             Quantiles = quantiles is null ? null : ToState(quantiles),
             LogBuckets = buckets is null ? null : ToState(buckets),
@@ -64,9 +65,15 @@ public static class SketchCodec
     public static SeriesSketch FromState(SeriesSketchState state)
     {
         ArgumentNullException.ThrowIfNull(state);
-        Check(state.Version is FormatVersion or RankOnlyVersion, $"version is {state.Version}; this reader knows versions {RankOnlyVersion} and {FormatVersion}.");
+        Check(state.Version is FormatVersion or RankOnlyVersion or EdgeVersion, $"version is {state.Version}; this reader knows versions {RankOnlyVersion}, {FormatVersion} and {EdgeVersion}.");
         Check(state.Moments is not null, "moments is missing.");
         Check(state.Modes is not null, "modes is missing.");
+        Check((state.Version == EdgeVersion) == (state.EdgeBuckets is not null), state.EdgeBuckets is null ? $"edge_buckets is missing in a version {EdgeVersion} sketch." : $"edge_buckets is a version {EdgeVersion} field, set in a version {state.Version} sketch.");
+        if (state.Version == EdgeVersion)
+        {
+            return FromEdgeState(state);
+        }
+
         if (state.Version == RankOnlyVersion)
         {
             Check(state.Quantiles is not null, "quantiles is missing; version 1 sketches always have it.");

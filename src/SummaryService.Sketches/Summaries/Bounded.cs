@@ -18,11 +18,15 @@ internal readonly record struct Bounded(double Low, BoundSource LowSource, doubl
         return all.Low <= all.High ? all : Over(candidates, withRank: false);
     }
 
-    /// <summary>The surer of two sources: exact, then the range, then the log buckets, then the rank bound.</summary>
-    public static BoundSource Surer(BoundSource a, BoundSource b) => a == BoundSource.None ? b : b == BoundSource.None ? a : (BoundSource)Math.Min((int)a, (int)b);
+    /// <summary>The surer of two sources: exact, then the range, then the log buckets, then the edges, then the rank bound.</summary>
+    public static BoundSource Surer(BoundSource a, BoundSource b) => a == BoundSource.None ? b : b == BoundSource.None ? a : Sureness(a) <= Sureness(b) ? a : b;
 
     /// <summary>The less sure of two sources: what a figure derived from both can claim.</summary>
-    public static BoundSource Weaker(BoundSource a, BoundSource b) => (BoundSource)Math.Max((int)a, (int)b);
+    public static BoundSource Weaker(BoundSource a, BoundSource b) => Sureness(a) >= Sureness(b) ? a : b;
+
+    // Rank from surest to least sure; None (nothing to bound) ranks first. The edges are certain
+    // like the log buckets; only the rank bound holds with a confidence.
+    private static int Sureness(BoundSource source) => source == BoundSource.Edges ? 3 : (int)source;
 
     private static Bounded Over(ReadOnlySpan<(double Low, double High, BoundSource Source)> candidates, bool withRank)
     {

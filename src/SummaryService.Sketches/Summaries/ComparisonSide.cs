@@ -72,7 +72,7 @@ internal sealed class ComparisonSide
         if (_prepared is null)
         {
             var (quantiles, buckets, _) = Sketch.FullParts();
-            _prepared = new Prepared(quantiles, buckets, new SummaryBounds(Sketch.Moments, quantiles, buckets, ConfidenceLevel));
+            _prepared = new Prepared(quantiles, buckets, new SummaryBounds(Sketch.Moments, quantiles, buckets, ConfidenceLevel, Sketch.EdgeBuckets));
         }
 
         return _prepared;

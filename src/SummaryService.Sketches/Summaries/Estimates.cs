@@ -69,6 +69,9 @@ public enum BoundSource
 
     /// <summary>The KLL rank bound: holds with the summary's confidence.</summary>
     RankError = 4,
+
+    /// <summary>The edges of explicit-bounds histogram buckets: certain, since their counts are exact.</summary>
+    Edges = 5,
 }
 
 /// <summary>Which parts a summary was read from; its bounds describe exactly those.</summary>
@@ -85,4 +88,7 @@ public enum SketchForm
 
     /// <summary>Neither: a merge of the two forms above; quantiles are bounded by [min, max] only.</summary>
     MomentsOnly = 3,
+
+    /// <summary>Edge buckets: explicit-bounds histograms (and whatever was merged with them), bounded by their edges.</summary>
+    EdgeBuckets = 4,
 }

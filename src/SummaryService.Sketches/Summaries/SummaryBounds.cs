@@ -8,7 +8,9 @@ namespace SummaryService.Sketches.Summaries;
 /// Reads every approximate figure of a summary as the intersection of the honest intervals the
 /// parts give: the KLL rank bound at the confidence (<see cref="RankBounds"/>), the log buckets'
 /// deterministic bound (<see cref="LogBucketView"/>) and the exact [min, max] — whichever of them
-/// the sketch has. Each answer names the source of each end.
+/// the sketch has. Each answer names the source of each end. A sketch of explicit-bounds histograms
+/// has edge buckets in place of log buckets; they are read through the same view and named
+/// <see cref="BoundSource.Edges"/>.
 /// </summary>
 internal sealed class SummaryBounds
 {
@@ -17,7 +19,10 @@ internal sealed class SummaryBounds
     private readonly double _max;
     private readonly bool _extremesExact;
 
-    public SummaryBounds(MomentSketch moments, KllSketch? quantiles, LogBucketSketch? buckets, double confidence)
+    // Which buckets the view reads: the log buckets, or a producer's edges.
+    private readonly BoundSource _bucketSource;
+
+    public SummaryBounds(MomentSketch moments, KllSketch? quantiles, LogBucketSketch? buckets, double confidence, EdgeBucketSketch? edges = null)
     {
         Count = moments.Count;
         _min = moments.Min;
@@ -26,7 +31,9 @@ internal sealed class SummaryBounds
         _rank = quantiles is null ? null : new RankBounds(quantiles, confidence);
         Exact = quantiles?.IsExact == true;
         Occupied = buckets is null ? null : OccupiedLogBuckets.Of(buckets);
-        Buckets = Occupied is null ? null : LogBucketView.Of(Occupied, _min, _max, _extremesExact);
+        Buckets = edges is not null ? LogBucketView.OfEdges(edges, _min, _max, _extremesExact)
+            : Occupied is null ? null : LogBucketView.Of(Occupied, _min, _max, _extremesExact);
+        _bucketSource = edges is not null ? BoundSource.Edges : BoundSource.LogBuckets;
     }
 
     /// <summary>The log buckets as read out for this summary, shared with its other readers.</summary>
@@ -98,7 +105,7 @@ internal sealed class SummaryBounds
         {
             (double bucketEstimate, long certainLow, long certainHigh) = Buckets!.CountBelow(x, strict);
             (estimate, bucketLow, bucketHigh) = (bucketEstimate, certainLow, certainHigh);
-            (low, lowSource, high, highSource) = (certainLow, BoundSource.LogBuckets, certainHigh, BoundSource.LogBuckets);
+            (low, lowSource, high, highSource) = (certainLow, _bucketSource, certainHigh, _bucketSource);
         }
 
         if (_rank is not null)
@@ -180,7 +187,7 @@ internal sealed class SummaryBounds
         if (Buckets is not null)
         {
             (_, double low, double high) = Buckets.Quantile(q, rankShift);
-            candidates[used++] = (low, high, BoundSource.LogBuckets);
+            candidates[used++] = (low, high, _bucketSource);
         }
 
         Bounded b = Bounded.Intersect(candidates[..used]);

@@ -8,11 +8,11 @@ namespace SummaryService.Sketches.Summaries;
 /// <summary>Turns the parts of a series sketch into one <see cref="Summary"/>.</summary>
 internal static class SummaryBuilder
 {
-    public static Summary Build(MomentSketch moments, KllSketch? quantiles, LogBucketSketch? buckets, ModeSketch modes, SummaryOptions options)
+    public static Summary Build(MomentSketch moments, KllSketch? quantiles, LogBucketSketch? buckets, ModeSketch modes, SummaryOptions options, EdgeBucketSketch? edges = null)
     {
         options.Validate();
         long n = moments.Count;
-        SketchForm form = (quantiles, buckets) switch
+        SketchForm form = edges is not null ? SketchForm.EdgeBuckets : (quantiles, buckets) switch
         {
             (not null, not null) => SketchForm.Full,
             (null, not null) => SketchForm.LogBuckets,
@@ -24,7 +24,7 @@ internal static class SummaryBuilder
             return new Summary { Count = 0, Exact = true, Confidence = options.Confidence, Form = form };
         }
 
-        var bounds = new SummaryBounds(moments, quantiles, buckets, options.Confidence);
+        var bounds = new SummaryBounds(moments, quantiles, buckets, options.Confidence, edges);
         var median = bounds.Quantile(0.5);
         var lowerQuartile = bounds.Quantile(0.25);
         var upperQuartile = bounds.Quantile(0.75);

@@ -6,14 +6,13 @@ using SummaryService.Contract.Otlp.Common;
 using SummaryService.Contract.Otlp.Metrics;
 using SummaryService.Contract.V1;
 using SummaryService.Server.Tests.Support;
+using static SummaryService.Server.Tests.Otlp.OtlpExports;
 
 namespace SummaryService.Server.Tests.Otlp;
 
 /// <summary>Hand-built exports against the rules of the OpenTelemetry protocol and data model (reference/otlp-metrics.md).</summary>
 public sealed class ExportRulesTests
 {
-    private static ulong Now => (ulong)DateTimeOffset.UtcNow.ToUnixTimeMilliseconds() * 1_000_000UL;
-
     [Fact]
     public async Task Cumulative_sums_become_differences_with_resets_and_a_resent_point_is_rejected()
     {
@@ -196,21 +195,6 @@ public sealed class ExportRulesTests
         Assert.Equal((int)StatusCode.InvalidArgument, status.Code);
         Assert.Contains(nameof(ExportMetricsServiceRequest), status.Message, StringComparison.Ordinal);
     }
-
-    private static ExportMetricsServiceRequest Request(params Metric[] metrics) => new()
-    {
-        ResourceMetrics =
-        {
-            new ResourceMetrics
-            {
-                Resource = new Contract.Otlp.Resource.Resource { Attributes = { new KeyValue { Key = "service.name", Value = new AnyValue { StringValue = "otterbyte-hub" } } } },
-                ScopeMetrics = { new ScopeMetrics { Scope = new InstrumentationScope { Name = "hub" }, Metrics = { metrics } } },
-            },
-        },
-    };
-
-    private static Metric Gauge(string name, double value) =>
-        new() { Name = name, Gauge = new Gauge { DataPoints = { new NumberDataPoint { TimeUnixNano = Now, AsDouble = value } } } };
 
     private static Metric CumulativeSum(string name, params (ulong Start, ulong Time, long Value)[] points)
     {

@@ -157,11 +157,12 @@ public sealed class SdkExportTests
         }
     }
 
-    private static MeterProvider Provider(string meter, ServerProcess server, OtlpExportProtocol protocol, MetricReaderTemporalityPreference temporality) =>
+    /// <summary>A meter provider exporting to the server; histograms exponential unless <paramref name="exponential"/> is false (the SDK's default explicit buckets).</summary>
+    internal static MeterProvider Provider(string meter, ServerProcess server, OtlpExportProtocol protocol, MetricReaderTemporalityPreference temporality, bool exponential = true) =>
         Sdk.CreateMeterProviderBuilder()
             .ConfigureResource(resource => resource.AddService("otterbyte-sorter"))
             .AddMeter(meter)
-            .AddView(instrument => instrument.GetType().Name.StartsWith("Histogram", StringComparison.Ordinal) ? new Base2ExponentialBucketHistogramConfiguration() : null)
+            .AddView(instrument => exponential && instrument.GetType().Name.StartsWith("Histogram", StringComparison.Ordinal) ? new Base2ExponentialBucketHistogramConfiguration() : null)
             .AddOtlpExporter((exporter, reader) =>
             {
                 exporter.Protocol = protocol;

@@ -36,9 +36,10 @@ public class MalformedBytesTests
     [Fact]
     public void Another_message_type_is_rejected()
     {
-        // A MomentState read as a SeriesSketchState: its count (field 1) lands in the version field.
+        // A MomentState read as a SeriesSketchState: its count (field 1) lands in the version field
+        // (4 values: a version no reader knows).
         var moments = new MomentSketch();
-        moments.Add([1.0, 2.0, 3.0]);
+        moments.Add([1.0, 2.0, 3.0, 4.0]);
         byte[] bytes = SketchCodec.ToState(moments).ToByteArray();
 
         var ex = Assert.Throws<SketchFormatException>(() => SketchCodec.Deserialize(bytes));

@@ -21,7 +21,7 @@ public class SeriesStateValidationTests
 
     [Theory]
     [InlineData(0u)]
-    [InlineData(3u)]
+    [InlineData(4u)]
     [InlineData(uint.MaxValue)]
     public void Unknown_version_is_rejected(uint version)
     {
