@@ -79,6 +79,11 @@ public sealed partial class ShardedSeriesStore
                         {
                             segments.Mark(aged);
                         }
+
+                        foreach (LostSpan lost in timeline.Lost)
+                        {
+                            segments.MarkLost(key, lost);
+                        }
                     }
                 }
 

@@ -98,4 +98,46 @@ public sealed partial class ShardedSeriesStore
             }
         }
     }
+
+    /// <summary>Remembers a span a loaded snapshot's manifest says the series lost to a damaged segment.</summary>
+    internal void PlaceLost(SeriesKey key, LostSpan span)
+    {
+        SeriesShard shard = ShardOf(key);
+        lock (shard.Gate)
+        {
+            SeriesTimeline timeline = RecoveredTimeline(shard, key);
+            lock (timeline)
+            {
+                timeline.Lose(span);
+            }
+        }
+    }
+
+    /// <summary>
+    /// A segment that could not even be opened: which series it held is unknown, so every series of
+    /// its shard loses its range — every series of the store when the shard is unknown or the shard
+    /// count changed since (null). Over-telling costs narrower answers; under-telling would be a
+    /// silently wrong figure.
+    /// </summary>
+    internal void LoseShardSpan(int? fileShard, LostSpan span)
+    {
+        for (int s = 0; s < _shards.Length; s++)
+        {
+            if (fileShard is { } only && only < _shards.Length && s != only)
+            {
+                continue;
+            }
+
+            lock (_shards[s].Gate)
+            {
+                foreach (SeriesTimeline timeline in _shards[s].Series.Values)
+                {
+                    lock (timeline)
+                    {
+                        timeline.Lose(span);
+                    }
+                }
+            }
+        }
+    }
 }

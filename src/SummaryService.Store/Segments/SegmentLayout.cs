@@ -48,6 +48,16 @@ internal static class SegmentLayout
     public static string FileName(int shard, int tier, long fromMs, long toMs, ulong number) =>
         $"s{shard:D4}-t{tier}-{fromMs}-{toMs}-{number:D8}{Extension}";
 
+    /// <summary>Shard and time range a segment file name gives, or null for another name.</summary>
+    public static (int Shard, TimeWindow Range)? TryParseName(string fileName)
+    {
+        string[] parts = fileName.EndsWith(Extension, StringComparison.Ordinal) ? fileName[..^Extension.Length].Split('-') : [];
+        return parts.Length == 5 && parts[0].StartsWith('s') && int.TryParse(parts[0].AsSpan(1), out int shard)
+            && long.TryParse(parts[2], out long from) && long.TryParse(parts[3], out long to) && from < to
+            ? (shard, new TimeWindow(from, to))
+            : null;
+    }
+
     /// <summary>The number a segment file name ends with, or 0 for another name: new segments continue after the highest on disk.</summary>
     public static ulong NumberOf(string fileName)
     {
