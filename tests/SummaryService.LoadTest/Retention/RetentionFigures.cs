@@ -32,7 +32,8 @@ internal sealed record RetentionFigures
 
     public double SnapshotDirectoryMb { get; init; }
 
-    public double? SnapshotHeadOnlyMs { get; init; }
+    /// <summary>Two snapshots in a row with only the last hour pushed (the first also pays for start-up work).</summary>
+    public double?[] SnapshotHeadOnlyMs { get; init; } = [];
 
     /// <summary>Two snapshots in a row once the aged data has left memory.</summary>
     public double?[] SnapshotWithAgedMs { get; init; } = [];

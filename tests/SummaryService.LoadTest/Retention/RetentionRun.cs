@@ -67,7 +67,7 @@ public static class RetentionRun
 
             // The head first (the last hour), then a snapshot with no aged data; then the other days, oldest first.
             pushed = await fill.PushAsync(ingest, fill.Minutes - HeadMinutes, fill.Minutes, limit.Token);
-            double? snapshotHeadOnly = durability == "none" ? null : await RetentionFigures.SnapshotMsAsync(admin, limit.Token);
+            double?[] snapshotHeadOnly = durability == "none" ? [] : [await RetentionFigures.SnapshotMsAsync(admin, limit.Token), await RetentionFigures.SnapshotMsAsync(admin, limit.Token)];
             pushed += await fill.PushAsync(ingest, 0, fill.Minutes - HeadMinutes, limit.Token);
             double pushSeconds = watch.Elapsed.TotalSeconds;
             long fillRss = ProcFigures.StatusBytes(server.Pid, "VmRSS");
