@@ -72,6 +72,7 @@ internal sealed partial class SeriesTimeline
     /// <summary>Lets go of every segment reference (the series is removed).</summary>
     public void ReleaseAged()
     {
+        ReleaseAgedBlocks();
         foreach (var tier in _aged ?? [])
         {
             foreach (AgedBucket aged in tier.Values)

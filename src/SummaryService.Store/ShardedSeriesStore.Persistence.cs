@@ -75,7 +75,7 @@ public sealed partial class ShardedSeriesStore
                     }
                     else
                     {
-                        foreach (AgedBucket aged in timeline.AgedBuckets())
+                        foreach (AgedBucket aged in timeline.AgedBuckets().Concat(timeline.AgedBlocks()))
                         {
                             segments.Mark(aged);
                         }

@@ -109,7 +109,8 @@ internal sealed class SegmentShelf : IDisposable
             catch (Exception ex) when (ex is SegmentDamagedException or IOException)
             {
                 report.Warnings.Add($"aged buckets of segment {name} are missing: {ex.Message}");
-                if (SegmentLayout.TryParseName(name) is { } range)
+                // A file of pre-merged blocks costs nothing: its blocks are built from their buckets again.
+                if (SegmentLayout.TryParseName(name) is { } range && SegmentLayout.OfBlockTier(range.Tier) is null)
                 {
                     loseShard(range.Shard, new LostSpan(range.Range, name));
                 }

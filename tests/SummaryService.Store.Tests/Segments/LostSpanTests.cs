@@ -86,7 +86,7 @@ public sealed class LostSpanTests : IDisposable
         SegmentInfo cut;
         await using (var store = await FedStoreAsync())
         {
-            cut = store.Inner.Segments!.Open().Where(s => s.Tier > 0).OrderBy(s => s.FromMs).First();
+            cut = store.Inner.Segments!.Open().Where(s => s.Tier > 0 && SegmentLayout.OfBlockTier(s.Tier) is null).OrderBy(s => s.FromMs).First();
         }
 
         string path = Path.Combine(_dir.Path, "segments", cut.FileName);
