@@ -103,6 +103,11 @@ public sealed class PersistentSeriesStore : ISeriesStore, IStoreMaintenance, IAs
         ArgumentNullException.ThrowIfNull(log);
         ArgumentNullException.ThrowIfNull(snapshots);
         var report = new RecoveryReport();
+        if (segments is not null)
+        {
+            segments.Damaged = (file, problem) => logger.LogWarning("Segment {Segment} is damaged ({Problem}): its buckets are left out of answers, and windows over them say they cover less.", file, problem);
+        }
+
         ShardedSeriesStore? store = null;
         SnapshotMark? loaded = null;
         var onDisk = snapshots.Generations();
@@ -379,7 +384,7 @@ public sealed class PersistentSeriesStore : ISeriesStore, IStoreMaintenance, IAs
             return false;
         }
 
-        if (segments is not null && !segments.TryRestore(generation, report, candidate.PlaceAged, out string? segmentProblem))
+        if (segments is not null && !segments.TryRestore(generation, report, candidate.PlaceAged, candidate.PlaceLost, (shard, span) => candidate.LoseShardSpan(image.Shards.All(s => s.Mark.ShardCount == candidate.ShardCount) ? shard : null, span), out string? segmentProblem))
         {
             if (!salvage)
             {

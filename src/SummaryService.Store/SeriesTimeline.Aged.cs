@@ -72,6 +72,7 @@ internal sealed partial class SeriesTimeline
     /// <summary>Lets go of every segment reference (the series is removed).</summary>
     public void ReleaseAged()
     {
+        ReleaseAgedBlocks();
         foreach (var tier in _aged ?? [])
         {
             foreach (AgedBucket aged in tier.Values)
@@ -109,7 +110,8 @@ internal sealed partial class SeriesTimeline
         }
         catch (SegmentDamagedException ex)
         {
-            (_lost ??= []).Add(new LostSpan(new TimeWindow(start, start + aged.Segment.Reader.Info.WidthMs), ex.FileName));
+            aged.Segment.ReportDamage(ex);
+            Lose(new LostSpan(new TimeWindow(start, start + aged.Segment.Reader.Info.WidthMs), ex.FileName));
             return 0;
         }
     }
@@ -175,6 +177,16 @@ internal sealed partial class SeriesTimeline
         return narrowed;
     }
 
+    /// <summary>Records a span whose buckets are gone with a damaged segment (found now, or remembered by a snapshot); each span once.</summary>
+    public void Lose(LostSpan span)
+    {
+        _lost ??= [];
+        if (!_lost.Contains(span))
+        {
+            _lost.Add(span);
+        }
+    }
+
     /// <summary>True when some lost span overlaps <paramref name="range"/>.</summary>
     public bool LostWithin(TimeWindow range) => _lost?.Exists(l => l.Range.Overlaps(range)) ?? false;
 
@@ -229,6 +241,12 @@ internal sealed partial class SeriesTimeline
                 aged.RemoveAt(0);
                 Invalidate(tier, start);
             }
+        }
+
+        if (tier + 1 == _tiers.Length)
+        {
+            // Past the last tier's retention nothing is answered anyway: the loss need not be told.
+            _lost?.RemoveAll(l => l.Range.ToUnixMs <= horizon);
         }
 
         return change;
@@ -288,7 +306,8 @@ internal sealed partial class SeriesTimeline
         {
             _aged[tier].Remove(start);
             aged.Segment.Release();
-            (_lost ??= []).Add(new LostSpan(new TimeWindow(start, start + options.Tiers[tier].WidthMs), ex.FileName));
+            aged.Segment.ReportDamage(ex);
+            Lose(new LostSpan(new TimeWindow(start, start + options.Tiers[tier].WidthMs), ex.FileName));
             Invalidate(tier, start);
             Epoch++;
             return null;

@@ -191,7 +191,7 @@ internal sealed partial class SeriesTimeline(SeriesKey key, StoreOptions options
                 }
 
                 long end = key.Start + (width * BlockFactors[key.Level]);
-                if (_blocks.TryGetValue(key, out var cached))
+                if (_blocks.TryGetValue(key, out var cached) || TryLoadAgedBlock(key, out cached))
                 {
                     into.Add(QueryPart.Cached(key, cached));
                     while (j < starts.Count && starts[j] < end)
@@ -248,6 +248,7 @@ internal sealed partial class SeriesTimeline(SeriesKey key, StoreOptions options
     // A change to a bucket drops every cached block that contains it.
     private void Invalidate(int tier, long bucketStart)
     {
+        DropAgedBlocks(tier, bucketStart);
         if (_blocks.Count == 0)
         {
             return;

@@ -75,9 +75,14 @@ public sealed partial class ShardedSeriesStore
                     }
                     else
                     {
-                        foreach (AgedBucket aged in timeline.AgedBuckets())
+                        foreach (AgedBucket aged in timeline.AgedBuckets().Concat(timeline.AgedBlocks()))
                         {
                             segments.Mark(aged);
+                        }
+
+                        foreach (LostSpan lost in timeline.Lost)
+                        {
+                            segments.MarkLost(key, lost);
                         }
                     }
                 }

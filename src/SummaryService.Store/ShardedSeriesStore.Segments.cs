@@ -41,8 +41,12 @@ public sealed partial class ShardedSeriesStore
     private bool MoveTier(SegmentShelf shelf, int shardIndex, int tier, long cutoff)
     {
         SeriesShard shard = _shards[shardIndex];
-        var writer = new SegmentWriter(shardIndex, tier, _options.Tiers[tier].WidthMs);
+        long width = _options.Tiers[tier].WidthMs;
+        var writer = new SegmentWriter(shardIndex, tier, width);
+        int? level = SeriesTimeline.PremergedLevel(width, shelf.Options.SpanMsFor(width));
+        var blockWriter = level is { } l ? new SegmentWriter(shardIndex, SegmentLayout.BlockTier(tier, l), width * SeriesTimeline.BlockFactors[l]) : null;
         var taken = new List<(SeriesTimeline Timeline, List<(long StartMs, SeriesSketch Sketch)> Buckets, long[] Counts, IReadOnlyList<BucketLocation> Locations)>();
+        var premerged = new List<(SeriesTimeline Timeline, List<(long StartMs, SeriesSketch Sketch)> Blocks, IReadOnlyList<BucketLocation> Locations)>();
         lock (shard.Gate)
         {
             foreach (SeriesTimeline timeline in shard.Series.Values.OrderBy(t => t.Key.Canonical, StringComparer.Ordinal))
@@ -54,6 +58,10 @@ public sealed partial class ShardedSeriesStore
                     {
                         long[] counts = [.. movable.Select(b => b.Sketch.Count)];
                         taken.Add((timeline, movable, counts, writer.Add(timeline.Key, movable)));
+                        if (blockWriter is not null && timeline.Premerge(tier, level!.Value, movable, cutoff) is { Count: > 0 } blocks)
+                        {
+                            premerged.Add((timeline, blocks, blockWriter.Add(timeline.Key, blocks)));
+                        }
                     }
                 }
             }
@@ -65,6 +73,7 @@ public sealed partial class ShardedSeriesStore
         }
 
         SegmentHandle segment = shelf.Write(writer);
+        SegmentHandle? blockSegment = premerged.Count > 0 ? shelf.Write(blockWriter!) : null;
         lock (shard.Gate)
         {
             foreach (var (timeline, buckets, counts, locations) in taken)
@@ -79,13 +88,25 @@ public sealed partial class ShardedSeriesStore
                     shard.EstimatedBytes += timeline.ToAged(tier, buckets, counts, segment, locations);
                 }
             }
+
+            foreach (var (timeline, blocks, locations) in premerged)
+            {
+                if (shard.Series.TryGetValue(timeline.Key, out var current) && ReferenceEquals(current, timeline))
+                {
+                    lock (timeline)
+                    {
+                        timeline.ToAgedBlocks(tier, level!.Value, blocks, blockSegment!, locations);
+                    }
+                }
+            }
         }
 
         segment.Settle();
+        blockSegment?.Settle();
         return true;
     }
 
-    /// <summary>Puts back a bucket that a loaded snapshot's manifest lists in a segment.</summary>
+    /// <summary>Puts back a bucket (or a pre-merged block) that a loaded snapshot's manifest lists in a segment.</summary>
     internal void PlaceAged(SeriesKey key, int tier, AgedBucket aged)
     {
         SeriesShard shard = ShardOf(key);
@@ -94,8 +115,78 @@ public sealed partial class ShardedSeriesStore
             SeriesTimeline timeline = RecoveredTimeline(shard, key);
             lock (timeline)
             {
-                shard.EstimatedBytes += timeline.AddAged(tier, aged, NowMs());
+                if (SegmentLayout.OfBlockTier(tier) is { } block)
+                {
+                    timeline.AddAgedBlock(block.Tier, block.Level, aged);
+                }
+                else
+                {
+                    shard.EstimatedBytes += timeline.AddAged(tier, aged, NowMs());
+                }
             }
         }
+    }
+
+    /// <summary>Remembers a span a loaded snapshot's manifest says the series lost to a damaged segment.</summary>
+    internal void PlaceLost(SeriesKey key, LostSpan span)
+    {
+        SeriesShard shard = ShardOf(key);
+        lock (shard.Gate)
+        {
+            SeriesTimeline timeline = RecoveredTimeline(shard, key);
+            lock (timeline)
+            {
+                timeline.Lose(span);
+            }
+        }
+    }
+
+    /// <summary>
+    /// A segment that could not even be opened: which series it held is unknown, so every series of
+    /// its shard loses its range — every series of the store when the shard is unknown or the shard
+    /// count changed since (null). Over-telling costs narrower answers; under-telling would be a
+    /// silently wrong figure.
+    /// </summary>
+    internal void LoseShardSpan(int? fileShard, LostSpan span)
+    {
+        for (int s = 0; s < _shards.Length; s++)
+        {
+            if (fileShard is { } only && only < _shards.Length && s != only)
+            {
+                continue;
+            }
+
+            lock (_shards[s].Gate)
+            {
+                foreach (SeriesTimeline timeline in _shards[s].Series.Values)
+                {
+                    lock (timeline)
+                    {
+                        timeline.Lose(span);
+                    }
+                }
+            }
+        }
+    }
+
+    /// <summary>Pre-merged blocks the series point at in segment files, across the store.</summary>
+    internal int AgedBlockCount()
+    {
+        int blocks = 0;
+        foreach (SeriesShard shard in _shards)
+        {
+            lock (shard.Gate)
+            {
+                foreach (SeriesTimeline timeline in shard.Series.Values)
+                {
+                    lock (timeline)
+                    {
+                        blocks += timeline.AgedBlockCount;
+                    }
+                }
+            }
+        }
+
+        return blocks;
     }
 }

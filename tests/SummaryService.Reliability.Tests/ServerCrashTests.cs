@@ -24,16 +24,60 @@ public sealed class ServerCrashTests(ITestOutputHelper output)
     public async Task Every_acknowledged_batch_survives_repeated_sigkill_of_the_server_exactly_once()
     {
         using var data = new TempDirectory();
-        var environment = new Dictionary<string, string>
+        await RunCyclesAsync(data.Path, "crash", new Dictionary<string, string>(), killAfterMs: (200, 1500));
+    }
+
+    /// <summary>
+    /// The same with aged buckets leaving memory as soon as they close: one-second buckets roll
+    /// through short tiers, so within a few seconds kills land while segments are written, while
+    /// rollup reads them back and writes coarser ones, while files are retired and manifests written.
+    /// </summary>
+    [Fact]
+    public async Task Every_acknowledged_batch_survives_sigkill_during_segment_writes_rollup_and_retirement_exactly_once()
+    {
+        using var data = new TempDirectory();
+        var segments = new Dictionary<string, string>
         {
-            ["Persistence__DataDirectory"] = data.Path,
+            ["Store__Tiers__0__BucketWidth"] = "1s",
+            ["Store__Tiers__0__Retention"] = "6s",
+            ["Store__Tiers__1__BucketWidth"] = "5s",
+            ["Store__Tiers__1__Retention"] = "20s",
+            ["Store__Tiers__2__BucketWidth"] = "30s",
+            ["Store__Tiers__2__Retention"] = "1h",
+            ["Persistence__SegmentFiles"] = "true",
+            ["Persistence__HotSpan"] = "0s",
+            ["Persistence__SegmentSpan"] = "1s",
+            ["Persistence__BucketsPerSpan"] = "1",
+            ["Persistence__RollupInterval"] = "200ms",
+        };
+        var seen = new HashSet<string>(StringComparer.Ordinal);
+        await RunCyclesAsync(data.Path, "segcrash", segments, killAfterMs: (300, 2000), afterKill: () => seen.UnionWith(SegmentFiles(data.Path)));
+
+        // Not vacuous: kills met segments of the first three tiers (written, then rolled into the next), and files were retired.
+        string[] left = SegmentFiles(data.Path);
+        output.WriteLine($"{seen.Count} segment files seen across the kills, {left.Length} left");
+        Assert.All(new[] { "-t0-", "-t1-", "-t2-" }, tier => Assert.Contains(seen, f => f.Contains(tier, StringComparison.Ordinal)));
+        Assert.Contains(seen, f => !left.Contains(f));
+    }
+
+    private static string[] SegmentFiles(string dataDirectory)
+    {
+        string directory = Path.Combine(dataDirectory, "segments");
+        return Directory.Exists(directory) ? [.. Directory.GetFiles(directory, "*.seg").Select(Path.GetFileName)!] : [];
+    }
+
+    private async Task RunCyclesAsync(string dataDirectory, string name, Dictionary<string, string> settings, (int From, int To) killAfterMs, Action? afterKill = null)
+    {
+        var environment = new Dictionary<string, string>(settings)
+        {
+            ["Persistence__DataDirectory"] = dataDirectory,
             ["Persistence__Durability"] = "Wal",
 
             // A snapshot every second, so kills land during snapshots as well as between them.
             ["Persistence__SnapshotInterval"] = "00:00:01",
             ["Logging__LogLevel__Default"] = "Warning",
         };
-        var producers = Enumerable.Range(0, Producers).Select(i => new SequencedProducer($"crash-producer-{i}", $"crash.p{i}")).ToArray();
+        var producers = Enumerable.Range(0, Producers).Select(i => new SequencedProducer($"{name}-producer-{i}", $"{name}.p{i}")).ToArray();
         var random = new Random(1902);
         var watch = System.Diagnostics.Stopwatch.StartNew();
 
@@ -45,8 +89,9 @@ public sealed class ServerCrashTests(ITestOutputHelper output)
 
             using var stop = new CancellationTokenSource();
             Task[] running = producers.Select(p => Task.Run(() => p.RunAsync(channel, stop.Token))).ToArray();
-            await Task.Delay(random.Next(200, 1500));
+            await Task.Delay(random.Next(killAfterMs.From, killAfterMs.To));
             server.Kill();
+            afterKill?.Invoke();
             await stop.CancelAsync();
             await Task.WhenAll(running);
             output.WriteLine($"cycle {cycle}: sent up to {string.Join(", ", producers.Select(p => p.HighestSent))}, acknowledged {producers.Sum(p => p.Acknowledged.Count)} batches in all");

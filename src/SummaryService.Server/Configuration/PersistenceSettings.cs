@@ -1,4 +1,5 @@
 using SummaryService.Store.Persistence;
+using SummaryService.Store.Segments;
 
 namespace SummaryService.Server.Configuration;
 
@@ -26,6 +27,26 @@ public sealed class PersistenceSettings
     /// <summary>Time between rollup passes that move aged buckets to coarser tiers and drop expired ones.</summary>
     public DurationSetting RollupInterval { get; set; } = TimeSpan.FromSeconds(10);
 
+    /// <summary>
+    /// Whether aged buckets move out of memory into segment files under <c>segments/</c> (true by
+    /// default); false keeps every bucket in memory and in every snapshot. Cluster partitions keep
+    /// them in memory either way.
+    /// </summary>
+    public bool SegmentFiles { get; set; } = true;
+
+    /// <summary>Age past which closed buckets of the first tier leave memory for segment files.</summary>
+    public DurationSetting HotSpan { get; set; } = TimeSpan.FromHours(1);
+
+    /// <summary>Buckets leave memory in whole spans of at least this length, so segments come as a few sizeable files.</summary>
+    public DurationSetting SegmentSpan { get; set; } = TimeSpan.FromMinutes(10);
+
+    /// <summary>A tier's span holds at least this many of its buckets (when that is longer than <see cref="SegmentSpan"/>).</summary>
+    public int BucketsPerSpan { get; set; } = 60;
+
+    /// <summary>The store's segment options, or null when <see cref="SegmentFiles"/> is off.</summary>
+    public SegmentOptions? ToSegmentOptions() =>
+        SegmentFiles ? new SegmentOptions { HotSpan = HotSpan, SegmentSpan = SegmentSpan, BucketsPerSpan = BucketsPerSpan } : null;
+
     /// <summary>The store's persistence options.</summary>
     public PersistenceOptions ToPersistenceOptions() => new()
     {
@@ -34,5 +55,6 @@ public sealed class PersistenceSettings
         SnapshotInterval = SnapshotInterval,
         LogSyncInterval = LogSyncInterval,
         SnapshotsKept = SnapshotsKept,
+        Segments = ToSegmentOptions(),
     };
 }

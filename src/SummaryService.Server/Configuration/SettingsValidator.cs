@@ -85,7 +85,25 @@ internal sealed class SettingsValidator :
             return Fail($"Persistence:RollupInterval is {options.RollupInterval}; it must be at least 100ms.");
         }
 
-        return ValidateOptionsResult.Success;
+        return ValidateSegments(options);
+    }
+
+    // Checked even when segment files are off, so turning them on later cannot reveal a bad value.
+    private static ValidateOptionsResult ValidateSegments(PersistenceSettings options)
+    {
+        if (options.HotSpan < TimeSpan.Zero)
+        {
+            return Fail($"Persistence:HotSpan is {options.HotSpan}; it must not be negative (0s moves every closed bucket out of memory).");
+        }
+
+        if (options.SegmentSpan < TimeSpan.FromSeconds(1))
+        {
+            return Fail($"Persistence:SegmentSpan is {options.SegmentSpan}; it must be at least 1s.");
+        }
+
+        return options.BucketsPerSpan < 1
+            ? Fail($"Persistence:BucketsPerSpan is {options.BucketsPerSpan}; it must be at least 1.")
+            : ValidateOptionsResult.Success;
     }
 
     /// <inheritdoc/>

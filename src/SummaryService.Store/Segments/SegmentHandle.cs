@@ -8,7 +8,7 @@ namespace SummaryService.Store.Segments;
 /// the last one goes, the file has nothing left to serve and is deleted — that is how rollup
 /// retires segments and retention removes whole files.
 /// </summary>
-internal sealed class SegmentHandle(SegmentReader reader, Action<SegmentHandle> retire)
+internal sealed class SegmentHandle(SegmentReader reader, Action<SegmentHandle> retire, Action<SegmentDamagedException> damaged)
 {
     private int _references;
     private int _settled;
@@ -21,6 +21,9 @@ internal sealed class SegmentHandle(SegmentReader reader, Action<SegmentHandle> 
     public int References => Volatile.Read(ref _references);
 
     public void AddReference() => Interlocked.Increment(ref _references);
+
+    /// <summary>Tells the shelf a read of this segment failed its checks (it reports each file once).</summary>
+    public void ReportDamage(SegmentDamagedException damage) => damaged(damage);
 
     public void Release()
     {

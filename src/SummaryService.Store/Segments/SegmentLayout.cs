@@ -38,6 +38,17 @@ internal static class SegmentLayout
 
     public static ReadOnlySpan<byte> FooterMagic => "GESS"u8;
 
+    /// <summary>
+    /// Tier field of a segment of pre-merged blocks: above every bucket tier, naming the bucket tier
+    /// and the block level (<see cref="SeriesTimeline.BlockFactors"/>); its width is the block's.
+    /// </summary>
+    public static int BlockTier(int tier, int level) => BlockTierBase + (tier * 10) + level;
+
+    /// <summary>The bucket tier and block level a segment of pre-merged blocks holds, or null for a segment of buckets.</summary>
+    public static (int Tier, int Level)? OfBlockTier(int tier) => tier >= BlockTierBase ? ((tier - BlockTierBase) / 10, (tier - BlockTierBase) % 10) : null;
+
+    private const int BlockTierBase = 1000;
+
     /// <summary>Extension of a complete segment file.</summary>
     public const string Extension = ".seg";
 
@@ -47,6 +58,17 @@ internal static class SegmentLayout
     /// <summary>File name of a segment: shard, tier and time range, then a number unique within the directory.</summary>
     public static string FileName(int shard, int tier, long fromMs, long toMs, ulong number) =>
         $"s{shard:D4}-t{tier}-{fromMs}-{toMs}-{number:D8}{Extension}";
+
+    /// <summary>Shard, tier field and time range a segment file name gives, or null for another name.</summary>
+    public static (int Shard, int Tier, TimeWindow Range)? TryParseName(string fileName)
+    {
+        string[] parts = fileName.EndsWith(Extension, StringComparison.Ordinal) ? fileName[..^Extension.Length].Split('-') : [];
+        return parts.Length == 5 && parts[0].StartsWith('s') && int.TryParse(parts[0].AsSpan(1), out int shard)
+            && parts[1].StartsWith('t') && int.TryParse(parts[1].AsSpan(1), out int tier)
+            && long.TryParse(parts[2], out long from) && long.TryParse(parts[3], out long to) && from < to
+            ? (shard, tier, new TimeWindow(from, to))
+            : null;
+    }
 
     /// <summary>The number a segment file name ends with, or 0 for another name: new segments continue after the highest on disk.</summary>
     public static ulong NumberOf(string fileName)

@@ -4,6 +4,7 @@ namespace SummaryService.Store.Segments;
 internal sealed class SegmentManifestBuilder
 {
     private readonly Dictionary<SegmentHandle, bool[]> _live = [];
+    private readonly List<(SeriesKey Key, LostSpan Span)> _lost = [];
 
     /// <summary>Marks a bucket live; call under the lock of the shard being exported.</summary>
     public void Mark(AgedBucket bucket)
@@ -20,6 +21,15 @@ internal sealed class SegmentManifestBuilder
         }
     }
 
+    /// <summary>Remembers a span the series lost to a damaged segment; call under the lock of the shard being exported.</summary>
+    public void MarkLost(SeriesKey key, LostSpan span)
+    {
+        lock (_live)
+        {
+            _lost.Add((key, span));
+        }
+    }
+
     public bool Holds(SegmentHandle segment)
     {
         lock (_live)
@@ -33,6 +43,14 @@ internal sealed class SegmentManifestBuilder
         lock (_live)
         {
             return [.. _live.Select(s => (s.Key.FileName, s.Value)).OrderBy(s => s.FileName, StringComparer.Ordinal)];
+        }
+    }
+
+    public List<(SeriesKey Key, LostSpan Span)> Lost()
+    {
+        lock (_live)
+        {
+            return [.. _lost];
         }
     }
 }

@@ -18,6 +18,7 @@ internal sealed class SegmentShelf : IDisposable
     private readonly HashSet<SegmentHandle> _open = [];
     private readonly Dictionary<ulong, HashSet<string>> _listed = [];
     private readonly List<SegmentManifestBuilder> _pending = [];
+    private readonly HashSet<string> _reported = new(StringComparer.Ordinal);
     private long _nextNumber;
 
     public SegmentShelf(string directory, SegmentOptions options, IDataFiles files)
@@ -34,6 +35,12 @@ internal sealed class SegmentShelf : IDisposable
     public string Directory { get; }
 
     public SegmentOptions Options { get; }
+
+    /// <summary>
+    /// Told once per damaged file (its name and what is wrong), the first time a read finds it so:
+    /// every later query leaves its buckets out without saying so again.
+    /// </summary>
+    public Action<string, string>? Damaged { get; set; }
 
     /// <summary>Segments that still serve buckets.</summary>
     public IReadOnlyList<SegmentInfo> Open()
@@ -58,15 +65,28 @@ internal sealed class SegmentShelf : IDisposable
 
     /// <summary>
     /// At start-up, once the snapshot generation to load is known: opens the segments its manifest
-    /// lists and hands each live bucket to <paramref name="place"/> (series key, tier, bucket).
-    /// Returns false with the reason when the manifest is damaged; a listed segment that cannot be
-    /// opened is reported in <paramref name="report"/> and its buckets are missing.
+    /// lists and hands each live bucket to <paramref name="place"/> (series key, tier, bucket), and
+    /// each span lost earlier to <paramref name="lose"/>. Returns false with the reason when the
+    /// manifest is damaged. A listed segment that cannot be opened is reported in
+    /// <paramref name="report"/>; since its index is unreadable, which series it held is unknown,
+    /// so its whole time range goes to <paramref name="loseShard"/> (its shard, as its name says).
     /// </summary>
-    public bool TryRestore(ulong generation, RecoveryReport report, Action<SeriesKey, int, AgedBucket> place, out string? problem)
+    public bool TryRestore(ulong generation, RecoveryReport report, Action<SeriesKey, int, AgedBucket> place, Action<SeriesKey, LostSpan> lose, Action<int, LostSpan> loseShard, out string? problem)
     {
-        if (!SegmentManifest.TryRead(Directory, generation, out var listed, out problem))
+        ArgumentNullException.ThrowIfNull(report);
+        if (!SegmentManifest.TryRead(Directory, generation, out var listed, out var lost, out problem))
         {
             return false;
+        }
+
+        foreach (var (key, span) in lost)
+        {
+            lose(key, span);
+        }
+
+        foreach (var (segment, spans) in lost.GroupBy(l => l.Span.Segment, StringComparer.Ordinal).Select(g => (g.Key, g.Count())))
+        {
+            report.Warnings.Add($"{spans} bucket spans lost earlier with damaged segment {segment} stay left out of answers");
         }
 
         foreach (var (name, live) in listed)
@@ -79,7 +99,7 @@ internal sealed class SegmentShelf : IDisposable
                     throw new SegmentDamagedException(name, "the manifest names it with a directory");
                 }
 
-                handle = new SegmentHandle(SegmentReader.Open(Path.Combine(Directory, name)), Retire);
+                handle = new SegmentHandle(SegmentReader.Open(Path.Combine(Directory, name)), Retire, Report);
                 if (handle.Reader.Buckets.Count != live.Length)
                 {
                     handle.Reader.Dispose();
@@ -89,6 +109,12 @@ internal sealed class SegmentShelf : IDisposable
             catch (Exception ex) when (ex is SegmentDamagedException or IOException)
             {
                 report.Warnings.Add($"aged buckets of segment {name} are missing: {ex.Message}");
+                // A file of pre-merged blocks costs nothing: its blocks are built from their buckets again.
+                if (SegmentLayout.TryParseName(name) is { } range && SegmentLayout.OfBlockTier(range.Tier) is null)
+                {
+                    loseShard(range.Shard, new LostSpan(range.Range, name));
+                }
+
                 continue;
             }
 
@@ -166,7 +192,7 @@ internal sealed class SegmentShelf : IDisposable
     {
         ArgumentNullException.ThrowIfNull(manifest);
         var segments = manifest.Segments();
-        SegmentManifest.Write(_files, Directory, generation, segments);
+        SegmentManifest.Write(_files, Directory, generation, segments, manifest.Lost());
         Listed(generation, segments.Select(s => s.File));
         lock (_gate)
         {
@@ -187,7 +213,7 @@ internal sealed class SegmentShelf : IDisposable
     {
         ArgumentNullException.ThrowIfNull(writer);
         SegmentInfo info = writer.WriteTo(_files, Directory, (ulong)Interlocked.Increment(ref _nextNumber));
-        var handle = new SegmentHandle(SegmentReader.Open(Path.Combine(Directory, info.FileName)), Retire);
+        var handle = new SegmentHandle(SegmentReader.Open(Path.Combine(Directory, info.FileName)), Retire, Report);
         lock (_gate)
         {
             _open.Add(handle);
@@ -206,6 +232,20 @@ internal sealed class SegmentShelf : IDisposable
             }
 
             _open.Clear();
+        }
+    }
+
+    private void Report(SegmentDamagedException damage)
+    {
+        bool first;
+        lock (_gate)
+        {
+            first = _reported.Add(damage.FileName);
+        }
+
+        if (first)
+        {
+            Damaged?.Invoke(damage.FileName, damage.Problem);
         }
     }
 

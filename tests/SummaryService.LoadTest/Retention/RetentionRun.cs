@@ -10,21 +10,30 @@ namespace SummaryService.LoadTest.Retention;
 
 /// <summary>
 /// What days of one steady series cost the real server: <c>retention [--days 7] [--per-minute 1000]
-/// [--series 1] [--durability none] [--server-env Name=Value] [--json-out path]</c> starts the
+/// [--series 1] [--durability wal] [--server-env Name=Value] [--json-out path]</c> starts the
 /// server on its default settings, pushes every series' values for the whole span with one
-/// timestamp per value (ten minutes of values per batch, oldest first, ending now), then reads the
-/// store's estimated bytes per tier and the process's resident memory.
+/// timestamp per value (ten minutes of values per batch, ending now): the last hour first and a
+/// snapshot of it, then the older days oldest first. Once rollup has moved what it moves, it reads
+/// the store's holdings, the process's resident memory, the segment files on disk and the time of
+/// a snapshot with the aged data; then restarts the server on the same data and times the first
+/// and the repeated window queries (<see cref="RetentionQueries"/>).
 /// </summary>
+/// <remarks>
+/// The holdings' <c>Buckets</c> count every bucket, in memory or in a segment file; their
+/// <c>EstimatedBytes</c> count memory only. Bytes per aged bucket therefore come from the segment
+/// files (<see cref="SummaryService.Store.Segments.SegmentDirectoryFigures"/>), not from the holdings.
+/// </remarks>
 public static class RetentionRun
 {
-    private const int MinutesPerBatch = 10;
+    /// <summary>Minutes of values pushed first, as the head, before the snapshot that has no aged data.</summary>
+    private const int HeadMinutes = 60;
 
     public static async Task<int> RunAsync(IReadOnlyList<string> args)
     {
         int days = 7;
         int perMinute = 1000;
         int series = 1;
-        string durability = "none";
+        string durability = "wal";
         string? jsonOut = null;
         var environment = new Dictionary<string, string>(StringComparer.Ordinal);
         for (int i = 0; i + 1 < args.Count; i += 2)
@@ -42,41 +51,43 @@ public static class RetentionRun
             }
         }
 
-        using var limit = new CancellationTokenSource(TimeSpan.FromMinutes(60));
+        using var limit = new CancellationTokenSource(TimeSpan.FromHours(3));
         using var data = new TempDirectory();
-        await using ChildServer server = await ChildServer.StartSketchServerAsync(null, data.Path, durability, environment, limit.Token);
+        ChildServer server = await ChildServer.StartSketchServerAsync(null, data.Path, durability, environment, limit.Token);
         long startRss = ProcFigures.StatusBytes(server.Pid, "VmRSS");
-        using GrpcChannel channel = GrpcChannel.ForAddress(server.Address, new GrpcChannelOptions { MaxSendMessageSize = 16 << 20 });
-        var ingest = new Ingest.IngestClient(channel);
-        var table = new LatencyTable(seed: 7);
-        long now = DateTimeOffset.UtcNow.ToUnixTimeMilliseconds();
-        long minutes = days * 24L * 60;
-        long start = now - (minutes * 60_000);
-        long pushed = 0;
-        var watch = System.Diagnostics.Stopwatch.StartNew();
-        for (long minute = 0; minute < minutes; minute += MinutesPerBatch)
+        var fill = new RetentionFill(series, perMinute, days);
+        long pushed;
+        RetentionFigures figures;
+        try
         {
-            int count = (int)Math.Min(MinutesPerBatch, minutes - minute) * perMinute;
-            for (int s = 0; s < series; s++)
-            {
-                var batch = new Batch { Metric = "otterbyte.retention.latency_ms" };
-                batch.Labels["series"] = s.ToString(CultureInfo.InvariantCulture);
-                var values = new double[count];
-                table.Fill((minute * perMinute) + (s * 7919L), 1.0, values);
-                batch.Values.AddRange(values);
-                for (int i = 0; i < count; i++)
-                {
-                    // Spread evenly over the batch's minutes, oldest first.
-                    batch.ValueTimesUnixMs.Add(start + (minute * 60_000) + ((long)i * 60_000 / perMinute));
-                }
+            using GrpcChannel channel = GrpcChannel.ForAddress(server.Address, new GrpcChannelOptions { MaxSendMessageSize = 16 << 20 });
+            var ingest = new Ingest.IngestClient(channel);
+            var admin = new Admin.AdminClient(channel);
+            var watch = System.Diagnostics.Stopwatch.StartNew();
 
-                await ingest.PushAsync(batch, cancellationToken: limit.Token);
-                pushed += count;
-            }
+            // The head first (the last hour), then a snapshot with no aged data; then the other days, oldest first.
+            pushed = await fill.PushAsync(ingest, fill.Minutes - HeadMinutes, fill.Minutes, limit.Token);
+            double?[] snapshotHeadOnly = durability == "none" ? [] : [await RetentionFigures.SnapshotMsAsync(admin, limit.Token), await RetentionFigures.SnapshotMsAsync(admin, limit.Token)];
+            pushed += await fill.PushAsync(ingest, 0, fill.Minutes - HeadMinutes, limit.Token);
+            double pushSeconds = watch.Elapsed.TotalSeconds;
+            long fillRss = ProcFigures.StatusBytes(server.Pid, "VmRSS");
+            figures = await RetentionFigures.SettleAsync(admin, server, data.Path, durability, limit.Token);
+            figures = figures with { PushSeconds = pushSeconds, RssAfterFillMb = fillRss / 1e6, SnapshotHeadOnlyMs = snapshotHeadOnly };
+        }
+        finally
+        {
+            await server.DisposeAsync();
         }
 
-        long fillRss = ProcFigures.StatusBytes(server.Pid, "VmRSS");
-        var stats = await new Admin.AdminClient(channel).HoldingsAsync(new HoldingsRequest(), cancellationToken: limit.Token);
+        // A restart on the same data directory, then the first and the repeated queries.
+        var restart = System.Diagnostics.Stopwatch.StartNew();
+        await using (ChildServer reopened = await ChildServer.StartSketchServerAsync(null, data.Path, durability, environment, limit.Token))
+        {
+            double restartSeconds = restart.Elapsed.TotalSeconds;
+            using GrpcChannel channel = GrpcChannel.ForAddress(reopened.Address);
+            figures = figures with { RestartSeconds = restartSeconds, Queries = await RetentionQueries.MeasureAsync(new Query.QueryClient(channel), new Admin.AdminClient(channel), fill, limit.Token) };
+        }
+
         var report = new
         {
             Command = "retention " + string.Join(' ', args),
@@ -84,14 +95,8 @@ public static class RetentionRun
             PerMinute = perMinute,
             Series = series,
             ValuesPushed = pushed,
-            PushSeconds = watch.Elapsed.TotalSeconds,
-            stats.Buckets,
-            EstimatedBytes = stats.EstimatedBytes,
-            EstimatedMbPerSeries = stats.EstimatedBytes / 1e6 / series,
-            Tiers = stats.Tiers.Select(t => new { Width = t.BucketWidth.ToTimeSpan().ToString(), t.Buckets, t.EstimatedBytes, BytesPerBucket = t.Buckets == 0 ? 0 : t.EstimatedBytes / (double)t.Buckets }).ToArray(),
             RssStartMb = startRss / 1e6,
-            RssAfterFillMb = fillRss / 1e6,
-            RssPeakMb = ProcFigures.StatusBytes(server.Pid, "VmHWM") / 1e6,
+            Figures = figures,
         };
         string json = JsonSerializer.Serialize(report, new JsonSerializerOptions { WriteIndented = true });
         Console.WriteLine(json);

@@ -14,7 +14,7 @@ namespace SummaryService.Store.Tests.Segments;
 /// and "exactly" means the merged sketches are the same bytes, so every figure and every interval
 /// is the same. A damaged segment is left out and the covered interval starts after it.
 /// </summary>
-public sealed class SegmentedStoreTests : IDisposable
+public class SegmentedStoreTests : IDisposable
 {
     private static readonly string[] Depots = ["north", "south", "harbour"];
     private readonly TempDirectory _dir = new();
@@ -25,11 +25,17 @@ public sealed class SegmentedStoreTests : IDisposable
     private readonly long _begin;
 
     public SegmentedStoreTests()
+        : this(bucketsPerSpan: 1)
+    {
+    }
+
+    /// <summary>With <paramref name="bucketsPerSpan"/> of 6 or more, segments carry pre-merged blocks (see <see cref="PremergedBlockTests"/>).</summary>
+    protected SegmentedStoreTests(int bucketsPerSpan)
     {
         var options = new StoreOptions { Tiers = StoreFixture.SmallTiers, ShardCount = 2 };
         _segmented = new ShardedSeriesStore(options, _clock);
         _inMemory = new ShardedSeriesStore(options, _clock);
-        _shelf = new SegmentShelf(_dir.Path, new SegmentOptions { HotSpan = TimeSpan.FromSeconds(5), SegmentSpan = TimeSpan.FromSeconds(5), BucketsPerSpan = 1 }, new LocalDataFiles());
+        _shelf = new SegmentShelf(_dir.Path, new SegmentOptions { HotSpan = TimeSpan.FromSeconds(5), SegmentSpan = TimeSpan.FromSeconds(5), BucketsPerSpan = bucketsPerSpan }, new LocalDataFiles());
         _segmented.Segments = _shelf;
         _begin = _clock.GetUtcNow().ToUnixTimeMilliseconds();
     }
@@ -38,9 +44,16 @@ public sealed class SegmentedStoreTests : IDisposable
     {
         _shelf.Dispose();
         _dir.Dispose();
+        GC.SuppressFinalize(this);
     }
 
-    private long Now => _clock.GetUtcNow().ToUnixTimeMilliseconds();
+    protected ShardedSeriesStore Segmented => _segmented;
+
+    private protected SegmentShelf Shelf => _shelf;
+
+    protected long Begin => _begin;
+
+    protected long Now => _clock.GetUtcNow().ToUnixTimeMilliseconds();
 
     [Fact]
     public async Task Windows_over_head_overlay_and_segments_answer_as_the_all_in_memory_store()
@@ -124,6 +137,17 @@ public sealed class SegmentedStoreTests : IDisposable
         var (path, block) = FirstBlockOf(key);
         FlipByteInside(path, block);
 
+        // Pre-merged blocks would answer without the damaged buckets: damaged too, they fall back to them.
+        foreach (SegmentInfo info in _shelf.Open().Where(i => SegmentLayout.OfBlockTier(i.Tier) is not null))
+        {
+            string blockPath = Path.Combine(_dir.Path, info.FileName);
+            using SegmentReader reader = SegmentReader.Open(blockPath);
+            foreach (SegmentBlock premerged in reader.Blocks.Where(b => b.Key.Equals(key)))
+            {
+                FlipByteInside(blockPath, premerged);
+            }
+        }
+
         var selector = new SeriesSelector("parcels.scan.latency", new Dictionary<string, string> { ["depot"] = "north" });
         var window = new TimeWindow(_begin - 30_000, Now);
         WindowSketches damaged = await _segmented.ReadAsync(selector, window, []);
@@ -142,7 +166,7 @@ public sealed class SegmentedStoreTests : IDisposable
     /// scanners), rolled every five seconds; every <paramref name="lateEvery"/> seconds a batch lands
     /// a minute late, in a bucket that by then lives in a segment.
     /// </summary>
-    private void FeedThreeMinutes(int lateEvery)
+    protected void FeedThreeMinutes(int lateEvery)
     {
         var rng = new Random(2301);
         for (int second = 0; second < 180; second++)
@@ -168,13 +192,13 @@ public sealed class SegmentedStoreTests : IDisposable
         }
     }
 
-    private void Append(SeriesBatch batch)
+    protected void Append(SeriesBatch batch)
     {
         _inMemory.AppendAsync(batch).AsTask().GetAwaiter().GetResult();
         _segmented.AppendAsync(batch).AsTask().GetAwaiter().GetResult();
     }
 
-    private async Task AssertSameAsync(TimeWindow window, string[] groupBy)
+    protected async Task AssertSameAsync(TimeWindow window, string[] groupBy)
     {
         var selector = new SeriesSelector("parcels.scan.latency");
         AssertSame(await _inMemory.ReadAsync(selector, window, groupBy), await _segmented.ReadAsync(selector, window, groupBy));
