@@ -40,6 +40,7 @@ public static class ReportWriter
         TargetFigures? b = run.Baseline;
         output.WriteLine($"load run {run.Machine.StartedUtc}: {run.Machine.Cores} cores, load average {run.Machine.LoadAverageAtStart:0.00} at start, {run.Machine.Runtime}");
         output.WriteLine($"command: {run.Command}");
+        output.WriteLine($"sketch server: {s.Nodes} node(s); CPU and memory figures are sums over them");
         output.WriteLine();
         output.WriteLine($"| {"figure",-46} | {"sketch server",-26} | {"exact baseline",-26} | {"ratio",-8} |");
         output.WriteLine($"|{new string('-', 48)}|{new string('-', 28)}|{new string('-', 28)}|{new string('-', 10)}|");
@@ -65,6 +66,14 @@ public static class ReportWriter
             Row(output, "series / buckets held", $"{store.Series:N0} / {store.Buckets:N0}", "", "");
             Row(output, "estimated bytes per series / per bucket", $"{store.EstimatedBytesPerSeries:N0} / {store.EstimatedBytesPerBucket:N0}", "", "");
             Row(output, "RSS growth per bucket", $"{store.RssBytesPerBucket:N0} B", "", "");
+        }
+
+        if (s.Database is { } database)
+        {
+            Row(output, $"PostgreSQL commits/s: back-fill / live", $"{database.Fill.CommitsPerSecond:N0} / {database.Live.CommitsPerSecond:N0}", "", "");
+            Row(output, $"log records: back-fill / live", $"{database.Fill.LogRows:N0} / {database.Live.LogRows:N0}", "", "");
+            Row(output, $"WAL bytes per value: back-fill / live", $"{database.Fill.WalBytesPerValue:0.00} / {database.Live.WalBytesPerValue:0.00}", "", "");
+            Row(output, $"log table bytes per value: back-fill / live", $"{database.Fill.LogTableBytesPerValue:0.00} / {database.Live.LogTableBytesPerValue:0.00}", "", "");
         }
 
         for (int i = 0; i < s.Checks.Count; i++)
