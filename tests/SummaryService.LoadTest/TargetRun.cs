@@ -132,7 +132,10 @@ public sealed class TargetRun(LoadOptions options, LoadPlan plan, TimeProvider t
             LatencySamples.Combine(producers.Select(p => p.Acks)).Summarize(),
             producers.Sum(p => p.Errors),
             producers.Select(p => p.FirstError).FirstOrDefault(e => e is not null),
-            meter.Share());
+            meter.Share())
+        {
+            Duplicates = producers.Sum(p => p.Duplicates),
+        };
     }
 
     private async Task<(IngestPhase Live, LiveQueries Queries)> LiveAsync(ServerGroup server, GrpcChannel[] channels, CancellationToken cancellationToken)

@@ -17,6 +17,9 @@ public sealed record IngestPhase(long Values, double Seconds, LatencySummary? Ac
 
     /// <summary>Server CPU time per value acknowledged: the cost a busy machine inflates least.</summary>
     public double ServerCpuNsPerValue => Values > 0 ? Cpu.ServerCpuSeconds * 1e9 / Values : 0;
+
+    /// <summary>Batches answered as duplicates though the generator sent each once (so their values were not applied).</summary>
+    public long Duplicates { get; init; }
 }
 
 /// <summary>Cores in use during a phase: the server under test, this generator, and everything else on the machine.</summary>

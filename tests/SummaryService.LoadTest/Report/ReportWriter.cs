@@ -96,6 +96,11 @@ public static class ReportWriter
 
     private static void Errors(TextWriter output, TargetFigures t)
     {
+        if (t.Fill.Duplicates + t.Live.Duplicates > 0)
+        {
+            output.WriteLine($"{t.Target}: {t.Fill.Duplicates} back-fill and {t.Live.Duplicates} live batches answered as duplicates though each was sent once");
+        }
+
         foreach (var (phase, errors, first) in new[] { ("back-fill", t.Fill.Errors, t.Fill.FirstError), ("live", t.Live.Errors, t.Live.FirstError), ("queries", t.Queries.Errors, t.Queries.FirstError) })
         {
             if (errors > 0)
