@@ -5,9 +5,9 @@
 #   local-cluster.sh start DIR [NODES]   start them under DIR; write DIR/cluster.env (the Cluster__
 #                                        settings every node needs) and print them
 #   local-cluster.sh stop DIR            stop everything started under DIR (the folder stays)
-# Node i (from 1) serves gRPC on 127.0.0.1:$((5170 + 10*i)) and JSON and the page on the port after
-# it, and talks to the other nodes on 127.0.0.1:$((11110 + i)). The load generator starts its own
-# nodes: give it the printed settings (see docs/performance.md).
+# Node i (from 1) serves gRPC on 127.0.0.1 port 5170 + 10 i (5180, 5190, ...) and JSON and the page
+# on the port after it, and talks to the other nodes on port 11110 + i. The load generator starts
+# its own nodes (compare-nodes.sh gives it the printed settings).
 # Environment: PGPORT (default 55432), REDIS_PORT (default 56379), SERVER_DLL (default the Release
 # build of src/SummaryService.Server), CLUSTER_PARTITIONS (default 64).
 set -euo pipefail
