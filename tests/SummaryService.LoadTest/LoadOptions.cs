@@ -32,6 +32,13 @@ public sealed record LoadOptions
     /// <summary>Length of the live phase (<c>--seconds</c>).</summary>
     public int Seconds { get; init; } = 30;
 
+    /// <summary>
+    /// Server processes started as one cluster, with producers and query clients spread over them
+    /// in turn (<c>--nodes</c>; above 1 needs <c>--server-env Cluster__Mode=Orleans</c> and the
+    /// cluster's database settings, see Cluster/local-backing.sh).
+    /// </summary>
+    public int Nodes { get; init; } = 1;
+
     /// <summary>The real server's Persistence:Durability (<c>--durability</c>: wal, snapshot, none).</summary>
     public string Durability { get; init; } = "wal";
 
@@ -90,6 +97,7 @@ public sealed record LoadOptions
                 "--queriers" => options with { Queriers = NonNegative(name, value) },
                 "--query-pause-ms" => options with { QueryPauseMs = NonNegative(name, value) },
                 "--seconds" => options with { Seconds = Positive(name, value) },
+                "--nodes" => options with { Nodes = Positive(name, value) },
                 "--durability" => options with { Durability = value },
                 "--json-out" => options with { JsonOut = value },
                 "--seed" => options with { Seed = ulong.Parse(value, CultureInfo.InvariantCulture) },
@@ -102,6 +110,11 @@ public sealed record LoadOptions
             };
         }
 
+        if (options.Nodes > 1 && !(options.ServerEnvironment.TryGetValue("Cluster__Mode", out string? mode) && mode == "Orleans"))
+        {
+            throw new ArgumentException($"--nodes {options.Nodes} starts a cluster; give --server-env Cluster__Mode=Orleans with Cluster__Postgres and Cluster__Redis.");
+        }
+
         if (options.Buckets > 2100)
         {
             throw new ArgumentException($"--buckets {options.Buckets} reaches past the 6 h of the 10 s tier; use at most 2100.");
@@ -112,7 +125,7 @@ public sealed record LoadOptions
 
     /// <summary>The options as one command line, for the report.</summary>
     public string CommandLine() =>
-        string.Create(CultureInfo.InvariantCulture, $"--series {Series} --batch {BatchSize} --per-bucket {PerBucket} --buckets {Buckets} --producers {Producers} --inflight {Inflight} --queriers {Queriers} --query-pause-ms {QueryPauseMs} --seconds {Seconds} --durability {Durability} --seed {Seed}")
+        string.Create(CultureInfo.InvariantCulture, $"--series {Series} --batch {BatchSize} --per-bucket {PerBucket} --buckets {Buckets} --producers {Producers} --inflight {Inflight} --queriers {Queriers} --query-pause-ms {QueryPauseMs} --seconds {Seconds} --nodes {Nodes} --durability {Durability} --seed {Seed}")
         + (Baseline ? "" : " --no-baseline")
         + string.Concat(ServerEnvironment.Select(e => $" --server-env {e.Key}={e.Value}"))
         + (ServerDll is null ? "" : $" --server-dll {ServerDll}");

@@ -70,6 +70,11 @@ static List<string> Failures(RunFigures figures)
             failures.Add($"{t.Target}: {errors} error replies or failed queries.");
         }
 
+        if (t.Fill.Duplicates + t.Live.Duplicates > 0)
+        {
+            failures.Add($"{t.Target}: {t.Fill.Duplicates} back-fill and {t.Live.Duplicates} live batches answered as duplicates; each was sent once, so their values were not applied.");
+        }
+
         if (t.Live.Values == 0 || t.Fill.Values == 0)
         {
             failures.Add($"{t.Target}: an ingest phase acknowledged no values.");

@@ -6,6 +6,7 @@ using SummaryService.LoadTest.Driving;
 using SummaryService.LoadTest.Processes;
 using SummaryService.LoadTest.Report;
 using SummaryService.LoadTest.Workload;
+using SummaryService.TestSupport;
 
 namespace SummaryService.LoadTest;
 
@@ -25,27 +26,37 @@ public sealed class TargetRun(LoadOptions options, LoadPlan plan, TimeProvider t
         Directory.CreateDirectory(dataDirectory);
         try
         {
-            await using ChildServer server = baseline
-                ? await ChildServer.StartBaselineAsync(cancellationToken).ConfigureAwait(false)
-                : await ChildServer.StartSketchServerAsync(options.ServerDll, dataDirectory, options.Durability, options.ServerEnvironment, cancellationToken).ConfigureAwait(false);
-            long startRss = ProcFigures.StatusBytes(server.Pid, "VmRSS");
-            var channels = Enumerable.Range(0, options.Producers + options.Queriers + 1).Select(_ => Channel(server.Address)).ToArray();
+            await using ServerGroup server = baseline
+                ? new ServerGroup([await ChildServer.StartBaselineAsync(cancellationToken).ConfigureAwait(false)])
+                : await StartNodesAsync(dataDirectory, cancellationToken).ConfigureAwait(false);
+            long startRss = server.StatusBytes("VmRSS");
+            var channels = Enumerable.Range(0, options.Producers + options.Queriers + 1).Select(i => Channel(server.AddressFor(i))).ToArray();
             try
             {
-                Console.Error.WriteLine($"[{name}] pid {server.Pid}, back-fill: {plan.FillValues:N0} values into {plan.Series} series × {plan.Buckets} buckets");
+                Console.Error.WriteLine($"[{name}] pids {string.Join(", ", server.Pids)}, back-fill: {plan.FillValues:N0} values into {plan.Series} series × {plan.Buckets} buckets");
+                string? database = baseline ? null : ClusterDatabase();
+                PostgresCounters? atStart = database is null ? null : await PostgresCounters.ReadAsync(database, cancellationToken).ConfigureAwait(false);
                 IngestPhase fill = await IngestAsync(server, channels, live: false, cancellationToken).ConfigureAwait(false);
                 // Both targets hold exactly the back-fill here, so this is where their memory compares.
-                long fillRss = ProcFigures.StatusBytes(server.Pid, "VmRSS");
+                long fillRss = server.StatusBytes("VmRSS");
+                PostgresCounters? afterFill = database is null ? null : await SettledCountersAsync(database, cancellationToken).ConfigureAwait(false);
                 Console.Error.WriteLine($"[{name}] live: {options.Seconds} s, {options.Producers} producers, {options.Queriers} query clients");
                 var (live, queries) = await LiveAsync(server, channels, cancellationToken).ConfigureAwait(false);
+                PostgresCounters? afterLive = database is null ? null : await SettledCountersAsync(database, cancellationToken).ConfigureAwait(false);
                 Console.Error.WriteLine($"[{name}] checks");
                 GrpcChannel check = channels[^1];
                 var (window, checks) = await CheckAsync(check, cancellationToken).ConfigureAwait(false);
-                StoreFigures? store = baseline ? null : await StoreFiguresAsync(check, server.Pid, startRss, cancellationToken).ConfigureAwait(false);
-                long peak = ProcFigures.StatusBytes(server.Pid, "VmHWM");
-                long end = ProcFigures.StatusBytes(server.Pid, "VmRSS");
-                double cpu = ProcFigures.CpuSeconds(server.Pid);
-                return new TargetFigures(name, startRss, fillRss, fill, live, queries, window, checks, peak, end, cpu, store);
+                StoreFigures? store = baseline ? null : await StoreFiguresAsync(check, server, startRss, cancellationToken).ConfigureAwait(false);
+                long peak = server.StatusBytes("VmHWM");
+                long end = server.StatusBytes("VmRSS");
+                double cpu = server.CpuSeconds();
+                return new TargetFigures(name, startRss, fillRss, fill, live, queries, window, checks, peak, end, cpu, store)
+                {
+                    Nodes = server.Servers.Count,
+                    Database = atStart is null || afterFill is null || afterLive is null
+                        ? null
+                        : new DatabaseFigures(PostgresCounters.Between(atStart, afterFill, fill.Values, fill.Seconds), PostgresCounters.Between(afterFill, afterLive, live.Values, live.Seconds)),
+                };
             }
             finally
             {
@@ -68,9 +79,41 @@ public sealed class TargetRun(LoadOptions options, LoadPlan plan, TimeProvider t
         }
     }
 
-    private async Task<IngestPhase> IngestAsync(ChildServer server, GrpcChannel[] channels, bool live, CancellationToken cancellationToken, long deadline = 0)
+    /// <summary>
+    /// The real server, or with <c>--nodes N</c> N of them started together as one cluster (their
+    /// settings from <c>--server-env</c>; each gets its own ports between nodes).
+    /// </summary>
+    private async Task<ServerGroup> StartNodesAsync(string dataDirectory, CancellationToken cancellationToken)
     {
-        var meter = new CpuMeter(server.Pid);
+        var starting = Enumerable.Range(0, options.Nodes).Select(node =>
+        {
+            var environment = new Dictionary<string, string>(options.ServerEnvironment, StringComparer.Ordinal);
+            if (options.Nodes > 1)
+            {
+                environment["Cluster__SiloPort"] = ServerProcess.FreePort().ToString(System.Globalization.CultureInfo.InvariantCulture);
+                environment["Cluster__GatewayPort"] = ServerProcess.FreePort().ToString(System.Globalization.CultureInfo.InvariantCulture);
+            }
+
+            return ChildServer.StartSketchServerAsync(options.ServerDll, Path.Combine(dataDirectory, $"node{node}"), options.Durability, environment, cancellationToken);
+        });
+        return new ServerGroup(await Task.WhenAll(starting).ConfigureAwait(false));
+    }
+
+    /// <summary>The cluster's database when the server runs in Orleans mode, whose figures the report then adds.</summary>
+    private string? ClusterDatabase() =>
+        options.ServerEnvironment.TryGetValue("Cluster__Mode", out string? mode) && mode == "Orleans" && options.ServerEnvironment.TryGetValue("Cluster__Postgres", out string? database)
+            ? database
+            : null;
+
+    private static async Task<PostgresCounters> SettledCountersAsync(string database, CancellationToken cancellationToken)
+    {
+        await Task.Delay(PostgresCounters.Settle, cancellationToken).ConfigureAwait(false);
+        return await PostgresCounters.ReadAsync(database, cancellationToken).ConfigureAwait(false);
+    }
+
+    private async Task<IngestPhase> IngestAsync(ServerGroup server, GrpcChannel[] channels, bool live, CancellationToken cancellationToken, long deadline = 0)
+    {
+        var meter = new CpuMeter(server.Pids);
         var producers = new PushProducer[options.Producers];
         var runs = new Task[options.Producers];
         long started = Stopwatch.GetTimestamp();
@@ -89,10 +132,13 @@ public sealed class TargetRun(LoadOptions options, LoadPlan plan, TimeProvider t
             LatencySamples.Combine(producers.Select(p => p.Acks)).Summarize(),
             producers.Sum(p => p.Errors),
             producers.Select(p => p.FirstError).FirstOrDefault(e => e is not null),
-            meter.Share());
+            meter.Share())
+        {
+            Duplicates = producers.Sum(p => p.Duplicates),
+        };
     }
 
-    private async Task<(IngestPhase Live, LiveQueries Queries)> LiveAsync(ChildServer server, GrpcChannel[] channels, CancellationToken cancellationToken)
+    private async Task<(IngestPhase Live, LiveQueries Queries)> LiveAsync(ServerGroup server, GrpcChannel[] channels, CancellationToken cancellationToken)
     {
         long deadline = Stopwatch.GetTimestamp() + (long)(options.Seconds * (double)Stopwatch.Frequency);
         using var querying = CancellationTokenSource.CreateLinkedTokenSource(cancellationToken);
@@ -182,10 +228,10 @@ public sealed class TargetRun(LoadOptions options, LoadPlan plan, TimeProvider t
         return (new WindowQuery(count, firstMs, repeats.Summarize()), checks);
     }
 
-    private static async Task<StoreFigures> StoreFiguresAsync(GrpcChannel channel, int pid, long startRss, CancellationToken cancellationToken)
+    private static async Task<StoreFigures> StoreFiguresAsync(GrpcChannel channel, ServerGroup server, long startRss, CancellationToken cancellationToken)
     {
         var stats = await new Admin.AdminClient(channel).HoldingsAsync(new HoldingsRequest(), cancellationToken: cancellationToken).ConfigureAwait(false);
-        long rss = ProcFigures.StatusBytes(pid, "VmRSS");
+        long rss = server.StatusBytes("VmRSS");
         double perBucket = stats.Buckets == 0 ? 0 : (double)stats.EstimatedBytes / stats.Buckets;
         double rssPerBucket = stats.Buckets == 0 ? 0 : (double)(rss - startRss) / stats.Buckets;
         double perSeries = stats.Series == 0 ? 0 : (double)stats.EstimatedBytes / stats.Series;

@@ -25,10 +25,7 @@ internal static class KubernetesFiles
 
     /// <summary>The example keys file the Secret is generated from (the real one is the operator's).</summary>
     public static IReadOnlyDictionary<string, string> ExampleKeys =>
-        File.ReadAllLines(Path.Combine(Folder, "api-keys.env.example"))
-            .Where(line => line.Length > 0 && !line.StartsWith('#'))
-            .Select(line => line.Split('=', 2))
-            .ToDictionary(pair => pair[0], pair => pair[1], StringComparer.Ordinal);
+        ClusterDeployFiles.EnvFile(Path.Combine(Folder, "api-keys.env.example"));
 
     /// <summary>The port of a Kestrel endpoint URL the ConfigMap sets.</summary>
     public static Uri EndpointUrl(string endpoint) => new(ConfigMap[$"Kestrel__Endpoints__{endpoint}__Url"]);

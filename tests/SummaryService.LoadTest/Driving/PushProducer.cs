@@ -18,6 +18,9 @@ public sealed class PushProducer(GrpcChannel channel, int inflight)
     /// <summary>Values the server accepted.</summary>
     public long Accepted { get; private set; }
 
+    /// <summary>Replies saying the batch was applied before: each batch is sent once, so every one is the server's mistake.</summary>
+    public long Duplicates { get; private set; }
+
     /// <summary>Replies carrying an error.</summary>
     public long Errors { get; private set; }
 
@@ -67,6 +70,7 @@ public sealed class PushProducer(GrpcChannel channel, int inflight)
             else
             {
                 Accepted += (long)reply.Accepted;
+                Duplicates += reply.Duplicate ? 1 : 0;
             }
 
             slots.Release();

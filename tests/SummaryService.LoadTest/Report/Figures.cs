@@ -17,6 +17,9 @@ public sealed record IngestPhase(long Values, double Seconds, LatencySummary? Ac
 
     /// <summary>Server CPU time per value acknowledged: the cost a busy machine inflates least.</summary>
     public double ServerCpuNsPerValue => Values > 0 ? Cpu.ServerCpuSeconds * 1e9 / Values : 0;
+
+    /// <summary>Batches answered as duplicates though the generator sent each once (so their values were not applied).</summary>
+    public long Duplicates { get; init; }
 }
 
 /// <summary>Cores in use during a phase: the server under test, this generator, and everything else on the machine.</summary>
@@ -50,7 +53,17 @@ public sealed record TargetFigures(
     long PeakRssBytes,
     long EndRssBytes,
     double ServerCpuSeconds,
-    StoreFigures? Store);
+    StoreFigures? Store)
+{
+    /// <summary>Server processes sharing the load (the nodes of a cluster; 1 otherwise). CPU and memory figures are their sums.</summary>
+    public int Nodes { get; init; } = 1;
+
+    /// <summary>What the ingest phases cost the cluster's PostgreSQL; null outside Orleans mode.</summary>
+    public DatabaseFigures? Database { get; init; }
+}
+
+/// <summary>The cluster database's share of the back-fill and of the live phase.</summary>
+public sealed record DatabaseFigures(SummaryService.LoadTest.Processes.PostgresPhase Fill, SummaryService.LoadTest.Processes.PostgresPhase Live);
 
 /// <summary>The machine the run shared.</summary>
 public sealed record MachineFigures(int Cores, double LoadAverageAtStart, string Runtime, string StartedUtc);

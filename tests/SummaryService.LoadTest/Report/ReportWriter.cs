@@ -40,6 +40,7 @@ public static class ReportWriter
         TargetFigures? b = run.Baseline;
         output.WriteLine($"load run {run.Machine.StartedUtc}: {run.Machine.Cores} cores, load average {run.Machine.LoadAverageAtStart:0.00} at start, {run.Machine.Runtime}");
         output.WriteLine($"command: {run.Command}");
+        output.WriteLine($"sketch server: {s.Nodes} node(s); CPU and memory figures are sums over them");
         output.WriteLine();
         output.WriteLine($"| {"figure",-46} | {"sketch server",-26} | {"exact baseline",-26} | {"ratio",-8} |");
         output.WriteLine($"|{new string('-', 48)}|{new string('-', 28)}|{new string('-', 28)}|{new string('-', 10)}|");
@@ -67,6 +68,14 @@ public static class ReportWriter
             Row(output, "RSS growth per bucket", $"{store.RssBytesPerBucket:N0} B", "", "");
         }
 
+        if (s.Database is { } database)
+        {
+            Row(output, $"PostgreSQL commits/s: back-fill / live", $"{database.Fill.CommitsPerSecond:N0} / {database.Live.CommitsPerSecond:N0}", "", "");
+            Row(output, $"log records: back-fill / live", $"{database.Fill.LogRows:N0} / {database.Live.LogRows:N0}", "", "");
+            Row(output, $"WAL bytes per value: back-fill / live", $"{database.Fill.WalBytesPerValue:0.00} / {database.Live.WalBytesPerValue:0.00}", "", "");
+            Row(output, $"log table bytes per value: back-fill / live", $"{database.Fill.LogTableBytesPerValue:0.00} / {database.Live.LogTableBytesPerValue:0.00}", "", "");
+        }
+
         for (int i = 0; i < s.Checks.Count; i++)
         {
             var check = s.Checks[i].Result;
@@ -87,6 +96,11 @@ public static class ReportWriter
 
     private static void Errors(TextWriter output, TargetFigures t)
     {
+        if (t.Fill.Duplicates + t.Live.Duplicates > 0)
+        {
+            output.WriteLine($"{t.Target}: {t.Fill.Duplicates} back-fill and {t.Live.Duplicates} live batches answered as duplicates though each was sent once");
+        }
+
         foreach (var (phase, errors, first) in new[] { ("back-fill", t.Fill.Errors, t.Fill.FirstError), ("live", t.Live.Errors, t.Live.FirstError), ("queries", t.Queries.Errors, t.Queries.FirstError) })
         {
             if (errors > 0)
