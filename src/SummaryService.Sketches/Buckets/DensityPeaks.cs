@@ -223,26 +223,27 @@ internal static class DensityPeaks
         smoothed[k] > 0 ? density[k] / Math.Sqrt(smoothed[k] * perCount) : 0;
 
     // Silverman's rule on ln|x| with each bucket's values at its log-midpoint, in bucket units.
+    // One pass for the count and the first two moments (offsets from the lowest index keep the
+    // squares small, so the difference of means loses nothing) and one for both quartiles.
     private static double Bandwidth(int[] indices, long[] counts)
     {
+        int origin = indices[0];
         double n = 0;
         double sum = 0;
-        for (int j = 0; j < indices.Length; j++)
-        {
-            n += counts[j];
-            sum += counts[j] * (indices[j] + 0.5);
-        }
-
-        double mean = sum / n;
         double squares = 0;
         for (int j = 0; j < indices.Length; j++)
         {
-            double d = indices[j] + 0.5 - mean;
-            squares += counts[j] * d * d;
+            double c = counts[j];
+            double d = indices[j] - origin;
+            n += c;
+            sum += c * d;
+            squares += c * d * d;
         }
 
-        double variance = squares / n;
-        double iqr = IndexAtShare(indices, counts, n, 0.75) - IndexAtShare(indices, counts, n, 0.25);
+        double mean = sum / n;
+        double variance = Math.Max(0, (squares / n) - (mean * mean));
+        (double lowerQuartile, double upperQuartile) = IndicesAtQuartiles(indices, counts, n);
+        double iqr = upperQuartile - lowerQuartile;
         double spread = Math.Min(Math.Sqrt(variance), iqr / 1.34);
         if (!(spread > 0))
         {
@@ -253,19 +254,29 @@ internal static class DensityPeaks
         return Math.Max(1, 0.9 * spread * Math.Pow(n, -0.2));
     }
 
-    private static double IndexAtShare(int[] indices, long[] counts, double n, double share)
+    // The first buckets whose running count reaches a quarter and three quarters of n.
+    private static (double Lower, double Upper) IndicesAtQuartiles(int[] indices, long[] counts, double n)
     {
+        double lowerAt = 0.25 * n;
+        double upperAt = 0.75 * n;
+        double lower = double.NaN;
         double running = 0;
         for (int j = 0; j < indices.Length; j++)
         {
             running += counts[j];
-            if (running >= share * n)
+            if (double.IsNaN(lower) && running >= lowerAt)
             {
-                return indices[j] + 0.5;
+                lower = indices[j] + 0.5;
+            }
+
+            if (running >= upperAt)
+            {
+                return (lower, indices[j] + 0.5);
             }
         }
 
-        return indices[^1] + 0.5;
+        double last = indices[^1] + 0.5;
+        return (double.IsNaN(lower) ? last : lower, last);
     }
 
     // The r whose triple box has the standard deviation closest to the bandwidth: r(r + 1) = h².
