@@ -32,7 +32,8 @@ public sealed class ClusterServices : IAsyncLifetime
 /// nodes give, on every node, the one server's answers; after all nodes stop and start again,
 /// everything acknowledged is there and nothing is applied twice.
 /// </summary>
-public sealed class ClusterEndToEndTests(ClusterServices services) : IClassFixture<ClusterServices>
+[Collection(ClusterProcesses.Name)]
+public sealed class ClusterEndToEndTests(ClusterServices services)
 {
     [Fact]
     public async Task Three_nodes_answer_what_one_server_answers_and_keep_it_across_a_restart_of_all()

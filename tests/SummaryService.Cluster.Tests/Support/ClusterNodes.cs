@@ -20,9 +20,10 @@ public sealed class ClusterNodes : IAsyncDisposable
 
     public IReadOnlyList<ServerProcess> Servers => _servers;
 
-    public static async Task<ClusterNodes> StartAsync(int count, string postgres, string redis, string clusterId, string dataRoot, int partitions = 16)
+    /// <summary>Starts the nodes and waits until each serves; <paramref name="settings"/> are further settings every node gets.</summary>
+    public static async Task<ClusterNodes> StartAsync(int count, string postgres, string redis, string clusterId, string dataRoot, int partitions = 16, IReadOnlyDictionary<string, string>? settings = null)
     {
-        var starting = Enumerable.Range(0, count).Select(i => ServerProcess.StartAsync(new Dictionary<string, string>
+        var starting = Enumerable.Range(0, count).Select(i => ServerProcess.StartAsync(new Dictionary<string, string>(settings ?? new Dictionary<string, string>())
         {
             ["Cluster__Mode"] = "Orleans",
             ["Cluster__Postgres"] = postgres,
