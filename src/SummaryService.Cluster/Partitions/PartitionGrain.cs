@@ -1,5 +1,6 @@
 using Microsoft.Extensions.Logging;
 using Orleans.Concurrency;
+using SummaryService.Cluster.Postgres;
 using SummaryService.Store;
 using SummaryService.Store.Persistence;
 
@@ -72,6 +73,10 @@ internal sealed class PartitionGrain(IPartitionStorage storage, PartitionSetup s
         {
             return new PartitionWritten(0, false, PartitionRejection.From(rejection));
         }
+        catch (PartitionFencedException fenced)
+        {
+            throw Superseded(fenced);
+        }
     }
 
     public async Task<PartitionWritten> Merge(PartitionUpload upload)
@@ -85,6 +90,10 @@ internal sealed class PartitionGrain(IPartitionStorage storage, PartitionSetup s
         catch (StoreRejectedException rejection)
         {
             return new PartitionWritten(0, false, PartitionRejection.From(rejection));
+        }
+        catch (PartitionFencedException fenced)
+        {
+            throw Superseded(fenced);
         }
     }
 
@@ -127,11 +136,27 @@ internal sealed class PartitionGrain(IPartitionStorage storage, PartitionSetup s
         return info is null ? null : new PartitionSnapshot(info.Generation, info.Series, info.Bytes, info.Elapsed);
     }
 
+    /// <summary>
+    /// This activation was superseded by a newer one elsewhere (its memory now lags the log the
+    /// other writes): it goes away, so the next call reaches the current one, and the caller learns
+    /// that its write was not kept. Only the message travels, as for every storage failure.
+    /// </summary>
+    private StorageUnavailableException Superseded(PartitionFencedException fenced)
+    {
+        logger.LogWarning("Partition {Partition} on {Node}: {Reason} Deactivating.", Partition, silo.SiloAddress, fenced.Message);
+        DeactivateOnIdle();
+        return new StorageUnavailableException(fenced.Message);
+    }
+
     private async Task SnapshotOnTimerAsync(CancellationToken cancellationToken)
     {
         try
         {
             await Store.WriteSnapshotAsync(cancellationToken).ConfigureAwait(true);
+        }
+        catch (PartitionFencedException fenced)
+        {
+            _ = Superseded(fenced);
         }
         catch (StorageUnavailableException ex)
         {
