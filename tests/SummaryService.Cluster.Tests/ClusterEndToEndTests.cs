@@ -43,7 +43,7 @@ public sealed class ClusterEndToEndTests(ClusterServices services)
         string clusterId = $"parcels-{Guid.NewGuid():N}";
         using var singleData = new TempDirectory();
         await using ServerProcess single = await ServerProcess.StartAsync(new Dictionary<string, string> { ["Persistence__DataDirectory"] = singleData.Path });
-        Batch[] batches = [.. Parcels.Batches(now).Select(ToBatch)];
+        Batch[] batches = [.. Parcels.Batches(now).Select(Parcels.ToWire)];
         using var singleChannel = GrpcChannel.ForAddress(single.Address);
         foreach (Batch batch in batches)
         {
@@ -88,14 +88,4 @@ public sealed class ClusterEndToEndTests(ClusterServices services)
             WireAnswers.Equal(expected, await new Query.QueryClient(restarted.Channels[2]).SummarizeAsync(summarize));
         }
     }
-
-    private static Batch ToBatch(Store.SeriesBatch batch) => new()
-    {
-        Metric = batch.Metric,
-        Labels = { batch.Labels.ToDictionary() },
-        Values = { batch.Values.ToArray() },
-        TimeUnixMs = batch.TimeUnixMs,
-        Producer = batch.Producer,
-        Sequence = batch.Sequence,
-    };
 }

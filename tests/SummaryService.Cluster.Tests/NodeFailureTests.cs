@@ -1,5 +1,6 @@
 using System.Diagnostics;
 using Grpc.Core;
+using Grpc.Net.Client;
 using SummaryService.Cluster.Tests.Support;
 using SummaryService.Contract.V1;
 using SummaryService.TestSupport;
@@ -39,14 +40,24 @@ public sealed class NodeFailureTests(ClusterServices services, ITestOutputHelper
         // Kill once a third is acknowledged: a condition, not a moment.
         int total = perProducer.Sum(b => b.Length);
         await Poll.UntilAsync(() => Task.FromResult(producers.Sum(p => p.Acknowledged) >= total / 3), TimeSpan.FromMinutes(2), "a third of the batches acknowledged");
-        nodes.Servers[0].Kill();
+        // The node holding the most partitions dies: which one that is, is Orleans' placement.
+        HoldingsReply before = await new Admin.AdminClient(nodes.Channels[0]).HoldingsAsync(new HoldingsRequest());
+        NodeHoldings busiest = before.Nodes.MaxBy(n => n.Partitions)!;
+        int victim = nodes.IndexOf(busiest.Node);
+        nodes.Servers[victim].Kill();
         var sinceKill = Stopwatch.StartNew();
 
-        var query = new Query.QueryClient(nodes.Channels[1]);
+        GrpcChannel survivor = nodes.Channels[(victim + 1) % 3];
+        var query = new Query.QueryClient(survivor);
         var everything = new SummarizeRequest { Selector = new Selector { Metric = Parcels.Metric }, Window = new Window { Range = new TimeRange { FromUnixMs = at - 3_600_000, ToUnixMs = at + 3_600_000 } } };
         await Poll.UntilAsync(async () => await AnswersAsync(query, everything), StatedFailover, "a query every partition answers after the kill");
         TimeSpan failover = sinceKill.Elapsed;
-        output.WriteLine($"failover: {failover.TotalSeconds:F1} s from kill -9 to the first query answered by every partition");
+        output.WriteLine($"failover: {failover.TotalSeconds:F1} s from kill -9 to the first query answered by every partition ({busiest.Partitions} of 16 partitions were on the killed node)");
+
+        // Its partitions are active on the others now: the figures name only living nodes, and all partitions.
+        HoldingsReply after = await new Admin.AdminClient(survivor).HoldingsAsync(new HoldingsRequest());
+        Assert.DoesNotContain(after.Nodes, n => n.Node == busiest.Node);
+        Assert.Equal(16u, (uint)after.Nodes.Sum(n => n.Partitions));
 
         await sending;
         Summary all = (await query.SummarizeAsync(everything)).Groups.Single().Summary;
