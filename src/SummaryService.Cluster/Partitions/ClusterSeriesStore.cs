@@ -16,6 +16,8 @@ public sealed class ClusterSeriesStore(PartitionFanOut partitions, SeriesSketchO
     // (one per coarser tier at most), so this bound is never reached by a consistent store.
     private const int MaxWideningRounds = 32;
 
+    private readonly PartitionWriteQueue[] _writes = [.. Enumerable.Range(0, partitions.Map.Count).Select(p => new PartitionWriteQueue(partitions, p))];
+
     /// <inheritdoc/>
     public DurabilityMode Durability => durability;
 
@@ -30,8 +32,7 @@ public sealed class ClusterSeriesStore(PartitionFanOut partitions, SeriesSketchO
     {
         ArgumentNullException.ThrowIfNull(batch);
         int owner = partitions.Map.Of(new SeriesKey(batch.Metric, batch.Labels));
-        var message = PartitionBatch.From(batch);
-        PartitionWritten written = await partitions.CallAsync(owner, g => g.Append(message), cancellationToken).ConfigureAwait(false);
+        PartitionWritten written = await _writes[owner].SendAsync(new PartitionWrite(PartitionBatch.From(batch), null), cancellationToken).ConfigureAwait(false);
         return written.Result();
     }
 
@@ -40,8 +41,7 @@ public sealed class ClusterSeriesStore(PartitionFanOut partitions, SeriesSketchO
     {
         ArgumentNullException.ThrowIfNull(upload);
         int owner = partitions.Map.Of(new SeriesKey(upload.Metric, upload.Labels));
-        var message = PartitionUpload.From(upload);
-        PartitionWritten written = await partitions.CallAsync(owner, g => g.Merge(message), cancellationToken).ConfigureAwait(false);
+        PartitionWritten written = await _writes[owner].SendAsync(new PartitionWrite(null, PartitionUpload.From(upload)), cancellationToken).ConfigureAwait(false);
         return written.Result();
     }
 

@@ -61,30 +61,28 @@ internal sealed class PartitionGrain(IPartitionStorage storage, PartitionSetup s
         }
     }
 
-    public async Task<PartitionWritten> Append(PartitionBatch batch)
+    /// <summary>
+    /// Each write is applied in the store's synchronous part of its call, before the next one starts,
+    /// so they apply in the order given; then all wait for their log commits together.
+    /// </summary>
+    public Task<PartitionWritten[]> Write(PartitionWrite[] writes)
     {
-        ArgumentNullException.ThrowIfNull(batch);
-        try
+        ArgumentNullException.ThrowIfNull(writes);
+        var written = new Task<PartitionWritten>[writes.Length];
+        for (int i = 0; i < writes.Length; i++)
         {
-            AppendResult result = await Store.AppendAsync(batch.ToBatch()).ConfigureAwait(true);
-            return new PartitionWritten(result.Accepted, result.Duplicate, null);
+            PartitionWrite write = writes[i];
+            written[i] = WrittenAsync(write.Batch is { } batch ? Store.AppendAsync(batch.ToBatch()) : Store.MergeSketchAsync(write.Upload!.ToUpload()));
         }
-        catch (StoreRejectedException rejection)
-        {
-            return new PartitionWritten(0, false, PartitionRejection.From(rejection));
-        }
-        catch (PartitionFencedException fenced)
-        {
-            throw Superseded(fenced);
-        }
+
+        return Task.WhenAll(written);
     }
 
-    public async Task<PartitionWritten> Merge(PartitionUpload upload)
+    private async Task<PartitionWritten> WrittenAsync(ValueTask<AppendResult> applying)
     {
-        ArgumentNullException.ThrowIfNull(upload);
         try
         {
-            AppendResult result = await Store.MergeSketchAsync(upload.ToUpload()).ConfigureAwait(true);
+            AppendResult result = await applying.ConfigureAwait(true);
             return new PartitionWritten(result.Accepted, result.Duplicate, null);
         }
         catch (StoreRejectedException rejection)
