@@ -16,13 +16,14 @@ namespace SummaryService.Cluster.Tests;
 /// accepts a partial answer, which comes flagged with what it covers.
 /// </summary>
 [Collection(ClusterProcesses.Name)]
-public sealed class PartialAnswerTests(ClusterServices services)
+public sealed class PartialAnswerTests(ClusterServices services, Xunit.Abstractions.ITestOutputHelper output)
 {
     private const int Partitions = 16;
 
     [Fact]
     public async Task A_partition_missing_its_deadline_fails_queries_unless_the_caller_accepts_a_flagged_partial_answer()
     {
+        var clock = System.Diagnostics.Stopwatch.StartNew();
         long now = DateTimeOffset.UtcNow.ToUnixTimeMilliseconds();
         string database = await services.Postgres.NewDatabaseAsync();
         string clusterId = $"parcels-{Guid.NewGuid():N}";
@@ -41,6 +42,7 @@ public sealed class PartialAnswerTests(ClusterServices services)
             }
         }
 
+        output.WriteLine($"{clock.Elapsed}: first node stopped");
         await using NpgsqlDataSource source = NpgsqlDataSource.Create(database);
         await using NpgsqlConnection holder = await source.OpenConnectionAsync();
         await using NpgsqlTransaction held = await holder.BeginTransactionAsync();
@@ -50,6 +52,7 @@ public sealed class PartialAnswerTests(ClusterServices services)
         }
 
         await using var nodes = await ClusterNodes.StartAsync(1, database, services.Redis.Configuration, clusterId, data.Path, Partitions, settings, waitServing: false);
+        output.WriteLine($"{clock.Elapsed}: restarted");
         var query = new Query.QueryClient(nodes.Channels[0]);
         var window = new Window { Range = new TimeRange { FromUnixMs = now - 7_200_000, ToUnixMs = now + 1 } };
         var summarize = new SummarizeRequest { Selector = new Selector { Metric = Parcels.Metric }, Window = window };
@@ -59,6 +62,7 @@ public sealed class PartialAnswerTests(ClusterServices services)
         // own database timeout (30 s) failing the activation; either way it is named.
         string expected = $"1 of {Partitions} partitions did not answer: partition {late} ";
         await Poll.UntilAsync(async () => (await RefusalAsync(() => query.SummarizeAsync(summarize)))?.Contains(expected, StringComparison.Ordinal) == true, TimeSpan.FromMinutes(2), expected);
+        output.WriteLine($"{clock.Elapsed}: refused");
         var timeline = new TimelineRequest { Selector = summarize.Selector, Window = window, Step = Duration.FromTimeSpan(TimeSpan.FromMinutes(30)) };
         string? timelineRefusal = await RefusalAsync(() => query.TimelineAsync(timeline));
         Assert.True(timelineRefusal?.Contains(expected, StringComparison.Ordinal), timelineRefusal);
@@ -89,10 +93,13 @@ public sealed class PartialAnswerTests(ClusterServices services)
         AssertCoverage(late, (await query.StandoutAsync(standout)).Coverage);
 
         // Released, the partition activates and whole answers come back, unflagged.
+        output.WriteLine($"{clock.Elapsed}: partial answers checked");
         await held.RollbackAsync();
         summarize.AcceptPartial = false;
         SummarizeReply? whole = null;
         await Poll.UntilAsync(async () => (whole = await AnswerAsync(() => query.SummarizeAsync(summarize))) is not null, TimeSpan.FromMinutes(2), "a whole answer once the partition is released");
+        output.WriteLine($"{clock.Elapsed}: whole again");
+        output.WriteLine(string.Join('\n', nodes.Servers[0].Output.Split('\n').Where(l => l.Contains($"artition {late}", StringComparison.Ordinal) || l.Contains("fail", StringComparison.OrdinalIgnoreCase))));
         Assert.Null(whole!.Coverage);
         Assert.Equal((ulong)batches.Sum(b => b.Values.Length), whole.Groups.Single().Summary.Count);
     }

@@ -55,12 +55,15 @@ public sealed class ClusterSeriesStore(PartitionFanOut partitions, SeriesSketchO
     /// partition reports that same span: the answer is then the one node's, bucket for bucket.
     /// A partial read leaves out the partitions that did not answer in any round.
     /// </summary>
-    public async ValueTask<WindowSketches> ReadAsync(SeriesSelector selector, TimeWindow window, IReadOnlyList<string> groupBy, bool acceptPartial, CancellationToken cancellationToken)
+    public ValueTask<WindowSketches> ReadAsync(SeriesSelector selector, TimeWindow window, IReadOnlyList<string> groupBy, bool acceptPartial, CancellationToken cancellationToken) =>
+        ReadAsync(selector, window, groupBy, acceptPartial, [], cancellationToken);
+
+    /// <summary>The read, asking no partition already in <paramref name="missing"/> (see <see cref="PartitionFanOut.SomeAsync{T}"/>).</summary>
+    private async ValueTask<WindowSketches> ReadAsync(SeriesSelector selector, TimeWindow window, IReadOnlyList<string> groupBy, bool acceptPartial, SortedSet<int> missing, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(selector);
         ArgumentNullException.ThrowIfNull(groupBy);
         TimeWindow asked = window;
-        var missing = new SortedSet<int>();
         for (int round = 0; round < MaxWideningRounds; round++)
         {
             var read = PartitionRead.Of(selector, asked, groupBy, null);
@@ -99,7 +102,7 @@ public sealed class ClusterSeriesStore(PartitionFanOut partitions, SeriesSketchO
             PartitionWindow[] perPartition = [.. steps.Select(s => s[i])];
             results[i] = TrySettle(perPartition, stepWindow, out TimeWindow covered)
                 ? Leaving(Merge(perPartition, covered, groupBy), missing)
-                : await ReadAsync(selector, stepWindow, groupBy, acceptPartial, cancellationToken).ConfigureAwait(false);
+                : await ReadAsync(selector, stepWindow, groupBy, acceptPartial, missing, cancellationToken).ConfigureAwait(false);
         }
 
         return results;
@@ -162,9 +165,7 @@ public sealed class ClusterSeriesStore(PartitionFanOut partitions, SeriesSketchO
             return await partitions.AllAsync(g => g.Read(read), cancellationToken).ConfigureAwait(false);
         }
 
-        var (answers, left) = await partitions.SomeAsync(g => g.Read(read), cancellationToken).ConfigureAwait(false);
-        missing.UnionWith(left);
-        return answers;
+        return await partitions.SomeAsync(g => g.Read(read), missing, cancellationToken).ConfigureAwait(false);
     }
 
     private WindowSketches Leaving(WindowSketches answer, SortedSet<int> missing) =>

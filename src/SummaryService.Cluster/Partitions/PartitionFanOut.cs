@@ -42,28 +42,34 @@ public sealed class PartitionFanOut(IGrainFactory grains, PartitionMap map, Time
     }
 
     /// <summary>
-    /// Calls every partition at once; the answers of those that answered, in partition order, and
-    /// the partitions that did not. Fails as <see cref="AllAsync{T}"/> does only when none answered.
+    /// Calls every partition at once but those in <paramref name="missing"/> (which did not answer
+    /// an earlier call of the same read: waiting for them again would only add a deadline); the
+    /// answers of those that answered, in partition order, the others added to <paramref name="missing"/>.
+    /// Fails as <see cref="AllAsync{T}"/> does only when none answered.
     /// </summary>
-    public async Task<(T[] Answers, int[] Missing)> SomeAsync<T>(Func<IPartitionGrain, Task<T>> call, CancellationToken cancellationToken)
+    public async Task<T[]> SomeAsync<T>(Func<IPartitionGrain, Task<T>> call, SortedSet<int> missing, CancellationToken cancellationToken)
     {
-        Task<T>[] tasks = await CallEveryAsync(call, cancellationToken).ConfigureAwait(false);
+        ArgumentNullException.ThrowIfNull(missing);
+        Task<T>[] tasks = await CallEveryAsync(call, cancellationToken, missing).ConfigureAwait(false);
         int[] failed = Failed(tasks);
+        missing.UnionWith(failed);
         if (failed.Length == tasks.Length)
         {
             throw Unanswered(tasks, failed, "there is nothing to answer from");
         }
 
-        return ([.. tasks.Where(t => t.IsCompletedSuccessfully).Select(t => t.Result)], failed);
+        return [.. tasks.Where(t => t.IsCompletedSuccessfully).Select(t => t.Result)];
     }
 
-    private async Task<Task<T>[]> CallEveryAsync<T>(Func<IPartitionGrain, Task<T>> call, CancellationToken cancellationToken)
+    private async Task<Task<T>[]> CallEveryAsync<T>(Func<IPartitionGrain, Task<T>> call, CancellationToken cancellationToken, SortedSet<int>? skipped = null)
     {
         ArgumentNullException.ThrowIfNull(call);
         var tasks = new Task<T>[Map.Count];
         for (int p = 0; p < tasks.Length; p++)
         {
-            tasks[p] = call(grains.GetGrain<IPartitionGrain>(p)).WaitAsync(timeout, cancellationToken);
+            tasks[p] = skipped?.Contains(p) == true
+                ? Task.FromException<T>(new TimeoutException())
+                : call(grains.GetGrain<IPartitionGrain>(p)).WaitAsync(timeout, cancellationToken);
         }
 
         try
