@@ -29,12 +29,25 @@ public interface ISeriesStore
     ValueTask<WindowSketches> ReadAsync(SeriesSelector selector, TimeWindow window, IReadOnlyList<string> groupBy, CancellationToken cancellationToken = default);
 
     /// <summary>
+    /// <see cref="ReadAsync(SeriesSelector, TimeWindow, IReadOnlyList{string}, CancellationToken)"/>,
+    /// but with <paramref name="acceptPartial"/> a store whose parts can fail on their own (a
+    /// cluster's partitions) answers from the parts that answered and names the others in
+    /// <see cref="WindowSketches.Partial"/>. A store in one process has no such parts and always answers whole.
+    /// </summary>
+    ValueTask<WindowSketches> ReadAsync(SeriesSelector selector, TimeWindow window, IReadOnlyList<string> groupBy, bool acceptPartial, CancellationToken cancellationToken) =>
+        ReadAsync(selector, window, groupBy, cancellationToken);
+
+    /// <summary>
     /// One answer per step of the window, oldest first: step i is [from + i·step, min(from + (i+1)·step, to)).
-    /// Each answer is what <see cref="ReadAsync"/> of that step alone gives; one call lets the store
+    /// Each answer is what <see cref="ReadAsync(SeriesSelector, TimeWindow, IReadOnlyList{string}, CancellationToken)"/> of that step alone gives; one call lets the store
     /// find the series once per call rather than once per step.
     /// </summary>
     /// <exception cref="StoreRejectedException">The window is empty, the step is under 1 ms, or it makes more steps than the store answers per call.</exception>
     ValueTask<IReadOnlyList<WindowSketches>> ReadStepsAsync(SeriesSelector selector, TimeWindow window, long stepMs, IReadOnlyList<string> groupBy, CancellationToken cancellationToken = default);
+
+    /// <summary>The steps as <see cref="ReadStepsAsync(SeriesSelector, TimeWindow, long, IReadOnlyList{string}, CancellationToken)"/>, partial answers accepted as by <see cref="ReadAsync(SeriesSelector, TimeWindow, IReadOnlyList{string}, bool, CancellationToken)"/>.</summary>
+    ValueTask<IReadOnlyList<WindowSketches>> ReadStepsAsync(SeriesSelector selector, TimeWindow window, long stepMs, IReadOnlyList<string> groupBy, bool acceptPartial, CancellationToken cancellationToken) =>
+        ReadStepsAsync(selector, window, stepMs, groupBy, cancellationToken);
 
     /// <summary>Series of a metric (or of every metric when null), with their extent.</summary>
     ValueTask<IReadOnlyList<SeriesInfo>> ListSeriesAsync(string? metric = null, CancellationToken cancellationToken = default);
@@ -54,7 +67,20 @@ public readonly record struct AppendResult(long Accepted, bool Duplicate);
 /// <summary>A window read's answer.</summary>
 /// <param name="Groups">One entry per group, ordered by their label values.</param>
 /// <param name="Covered">Span of the buckets actually merged (bucket-aligned; may reach beyond the window), or the window itself when no bucket overlapped.</param>
-public sealed record WindowSketches(IReadOnlyList<GroupSketch> Groups, TimeWindow Covered);
+public sealed record WindowSketches(IReadOnlyList<GroupSketch> Groups, TimeWindow Covered)
+{
+    /// <summary>Null for a whole answer; for a partial one (accepted by the caller), the parts left out.</summary>
+    public PartialRead? Partial { get; init; }
+}
+
+/// <summary>The parts of a store a partial read left out because they did not answer in time.</summary>
+/// <param name="Parts">Parts the store has (a cluster's partitions).</param>
+/// <param name="Missing">The parts left out, ascending.</param>
+public sealed record PartialRead(int Parts, IReadOnlyList<int> Missing)
+{
+    /// <summary>Share of the parts in the answer.</summary>
+    public double Share => (Parts - Missing.Count) / (double)Parts;
+}
 
 /// <summary>One group of a window read.</summary>
 /// <param name="Labels">The group-by labels and their values (empty string where a series lacks the label).</param>
@@ -78,4 +104,8 @@ public sealed record StoreStats(int Series, long Buckets, long EstimatedBytes, I
 public sealed record TierStats(TimeSpan BucketWidth, long Buckets, long EstimatedBytes);
 
 /// <summary>Figures of one partition of the store.</summary>
-public sealed record PartitionStats(int Partition, int Series, long Buckets, long EstimatedBytes);
+public sealed record PartitionStats(int Partition, int Series, long Buckets, long EstimatedBytes)
+{
+    /// <summary>The cluster node holding the partition; null in one process.</summary>
+    public string? Node { get; init; }
+}

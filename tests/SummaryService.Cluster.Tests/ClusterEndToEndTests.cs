@@ -32,7 +32,8 @@ public sealed class ClusterServices : IAsyncLifetime
 /// nodes give, on every node, the one server's answers; after all nodes stop and start again,
 /// everything acknowledged is there and nothing is applied twice.
 /// </summary>
-public sealed class ClusterEndToEndTests(ClusterServices services) : IClassFixture<ClusterServices>
+[Collection(ClusterProcesses.Name)]
+public sealed class ClusterEndToEndTests(ClusterServices services)
 {
     [Fact]
     public async Task Three_nodes_answer_what_one_server_answers_and_keep_it_across_a_restart_of_all()
@@ -42,7 +43,7 @@ public sealed class ClusterEndToEndTests(ClusterServices services) : IClassFixtu
         string clusterId = $"parcels-{Guid.NewGuid():N}";
         using var singleData = new TempDirectory();
         await using ServerProcess single = await ServerProcess.StartAsync(new Dictionary<string, string> { ["Persistence__DataDirectory"] = singleData.Path });
-        Batch[] batches = [.. Parcels.Batches(now).Select(ToBatch)];
+        Batch[] batches = [.. Parcels.Batches(now).Select(Parcels.ToWire)];
         using var singleChannel = GrpcChannel.ForAddress(single.Address);
         foreach (Batch batch in batches)
         {
@@ -87,14 +88,4 @@ public sealed class ClusterEndToEndTests(ClusterServices services) : IClassFixtu
             WireAnswers.Equal(expected, await new Query.QueryClient(restarted.Channels[2]).SummarizeAsync(summarize));
         }
     }
-
-    private static Batch ToBatch(Store.SeriesBatch batch) => new()
-    {
-        Metric = batch.Metric,
-        Labels = { batch.Labels.ToDictionary() },
-        Values = { batch.Values.ToArray() },
-        TimeUnixMs = batch.TimeUnixMs,
-        Producer = batch.Producer,
-        Sequence = batch.Sequence,
-    };
 }

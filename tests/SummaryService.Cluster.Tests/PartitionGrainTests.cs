@@ -112,5 +112,10 @@ public sealed class PartitionGrainTests(PostgresServer postgres) : IClassFixture
             await cluster.Store.ReadAsync(new SeriesSelector(Parcels.Metric), new TimeWindow(0, 1_000), []));
         Assert.Contains("1 of 4 partitions did not answer: partition 2 failed", failure.Message, StringComparison.Ordinal);
         Assert.Contains("no partial answer", failure.Message, StringComparison.Ordinal);
+
+        // Accepted by the caller, the other partitions answer and the one left out is named.
+        WindowSketches partial = await cluster.Store.ReadAsync(new SeriesSelector(Parcels.Metric), new TimeWindow(0, 1_000), [], acceptPartial: true, default);
+        Assert.Equal(new PartialRead(4, [2]).Missing, partial.Partial?.Missing);
+        Assert.Equal(0.75, partial.Partial!.Share);
     }
 }

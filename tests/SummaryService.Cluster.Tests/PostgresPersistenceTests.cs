@@ -61,14 +61,11 @@ public sealed class PostgresPersistenceTests(PostgresServer postgres) : IClassFi
         Assert.Equal(PostgresSchema.Version, await CountAsync(database, "summary_schema_version"));
     }
 
-    private static PersistentSeriesStore Open(NpgsqlDataSource database, PostgresLogWriter writer) =>
-        PersistentSeriesStore.Open(
-            new StoreOptions(),
-            new PersistenceOptions { SnapshotsKept = 1 },
-            new PostgresBatchLog(Partition, database, writer, NullLogger.Instance),
-            new PostgresSnapshotStore(Partition, database),
-            TimeProvider.System,
-            NullLogger.Instance);
+    private static PersistentSeriesStore Open(NpgsqlDataSource database, PostgresLogWriter writer)
+    {
+        var (log, snapshots) = new PostgresPartitionStorage(database, writer, NullLogger<PostgresPartitionStorage>.Instance).Open(Partition);
+        return PersistentSeriesStore.Open(new StoreOptions(), new PersistenceOptions { SnapshotsKept = 1 }, log, snapshots, TimeProvider.System, NullLogger.Instance);
+    }
 
     private static async Task<long> CountAsync(NpgsqlDataSource database, string table)
     {

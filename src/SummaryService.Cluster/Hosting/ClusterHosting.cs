@@ -45,6 +45,7 @@ public static class ClusterHosting
             });
             silo.ConfigureEndpoints(IPAddress.Parse(settings.AdvertisedAddress), settings.SiloPort, settings.GatewayPort);
             silo.UseRedisClustering(settings.Redis);
+            silo.Configure<Orleans.Configuration.ClusterMembershipOptions>(options => options.ProbeTimeout = settings.ProbeTimeout);
         });
 
         services.AddSingleton(provider => new PartitionFanOut(provider.GetRequiredService<IGrainFactory>(), new PartitionMap(settings.Partitions), settings.PartitionTimeout));

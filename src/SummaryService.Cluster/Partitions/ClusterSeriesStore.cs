@@ -16,6 +16,8 @@ public sealed class ClusterSeriesStore(PartitionFanOut partitions, SeriesSketchO
     // (one per coarser tier at most), so this bound is never reached by a consistent store.
     private const int MaxWideningRounds = 32;
 
+    private readonly PartitionWriteQueue[] _writes = [.. Enumerable.Range(0, partitions.Map.Count).Select(p => new PartitionWriteQueue(partitions, p))];
+
     /// <inheritdoc/>
     public DurabilityMode Durability => durability;
 
@@ -30,8 +32,7 @@ public sealed class ClusterSeriesStore(PartitionFanOut partitions, SeriesSketchO
     {
         ArgumentNullException.ThrowIfNull(batch);
         int owner = partitions.Map.Of(new SeriesKey(batch.Metric, batch.Labels));
-        var message = PartitionBatch.From(batch);
-        PartitionWritten written = await partitions.CallAsync(owner, g => g.Append(message), cancellationToken).ConfigureAwait(false);
+        PartitionWritten written = await _writes[owner].SendAsync(new PartitionWrite(PartitionBatch.From(batch), null), cancellationToken).ConfigureAwait(false);
         return written.Result();
     }
 
@@ -40,17 +41,25 @@ public sealed class ClusterSeriesStore(PartitionFanOut partitions, SeriesSketchO
     {
         ArgumentNullException.ThrowIfNull(upload);
         int owner = partitions.Map.Of(new SeriesKey(upload.Metric, upload.Labels));
-        var message = PartitionUpload.From(upload);
-        PartitionWritten written = await partitions.CallAsync(owner, g => g.Merge(message), cancellationToken).ConfigureAwait(false);
+        PartitionWritten written = await _writes[owner].SendAsync(new PartitionWrite(null, PartitionUpload.From(upload)), cancellationToken).ConfigureAwait(false);
         return written.Result();
     }
+
+    /// <inheritdoc/>
+    public ValueTask<WindowSketches> ReadAsync(SeriesSelector selector, TimeWindow window, IReadOnlyList<string> groupBy, CancellationToken cancellationToken = default) =>
+        ReadAsync(selector, window, groupBy, acceptPartial: false, cancellationToken);
 
     /// <summary>
     /// Every partition widens the window to whole buckets of its own series; one node would widen
     /// across all series at once. So the read is repeated over the widest span until every
     /// partition reports that same span: the answer is then the one node's, bucket for bucket.
+    /// A partial read leaves out the partitions that did not answer in any round.
     /// </summary>
-    public async ValueTask<WindowSketches> ReadAsync(SeriesSelector selector, TimeWindow window, IReadOnlyList<string> groupBy, CancellationToken cancellationToken = default)
+    public ValueTask<WindowSketches> ReadAsync(SeriesSelector selector, TimeWindow window, IReadOnlyList<string> groupBy, bool acceptPartial, CancellationToken cancellationToken) =>
+        ReadAsync(selector, window, groupBy, acceptPartial, [], cancellationToken);
+
+    /// <summary>The read, asking no partition already in <paramref name="missing"/> (see <see cref="PartitionFanOut.SomeAsync{T}"/>).</summary>
+    private async ValueTask<WindowSketches> ReadAsync(SeriesSelector selector, TimeWindow window, IReadOnlyList<string> groupBy, bool acceptPartial, SortedSet<int> missing, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(selector);
         ArgumentNullException.ThrowIfNull(groupBy);
@@ -58,11 +67,11 @@ public sealed class ClusterSeriesStore(PartitionFanOut partitions, SeriesSketchO
         for (int round = 0; round < MaxWideningRounds; round++)
         {
             var read = PartitionRead.Of(selector, asked, groupBy, null);
-            PartitionAnswer[] answers = await partitions.AllAsync(g => g.Read(read), cancellationToken).ConfigureAwait(false);
+            PartitionAnswer[] answers = await AnswersAsync(read, acceptPartial, missing, cancellationToken).ConfigureAwait(false);
             PartitionWindow[] windows = [.. answers.Select(a => a.Result()[0])];
             if (TrySettle(windows, asked, out TimeWindow covered))
             {
-                return Merge(windows, covered, groupBy);
+                return Leaving(Merge(windows, covered, groupBy), missing);
             }
 
             asked = covered;
@@ -72,13 +81,18 @@ public sealed class ClusterSeriesStore(PartitionFanOut partitions, SeriesSketchO
     }
 
     /// <inheritdoc/>
-    public async ValueTask<IReadOnlyList<WindowSketches>> ReadStepsAsync(SeriesSelector selector, TimeWindow window, long stepMs, IReadOnlyList<string> groupBy, CancellationToken cancellationToken = default)
+    public ValueTask<IReadOnlyList<WindowSketches>> ReadStepsAsync(SeriesSelector selector, TimeWindow window, long stepMs, IReadOnlyList<string> groupBy, CancellationToken cancellationToken = default) =>
+        ReadStepsAsync(selector, window, stepMs, groupBy, acceptPartial: false, cancellationToken);
+
+    /// <inheritdoc/>
+    public async ValueTask<IReadOnlyList<WindowSketches>> ReadStepsAsync(SeriesSelector selector, TimeWindow window, long stepMs, IReadOnlyList<string> groupBy, bool acceptPartial, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(selector);
         ArgumentNullException.ThrowIfNull(groupBy);
         // The partitions' own checks refuse a bad window or step, worded as one node words them.
         var read = PartitionRead.Of(selector, window, groupBy, stepMs);
-        PartitionAnswer[] answers = await partitions.AllAsync(g => g.Read(read), cancellationToken).ConfigureAwait(false);
+        var missing = new SortedSet<int>();
+        PartitionAnswer[] answers = await AnswersAsync(read, acceptPartial, missing, cancellationToken).ConfigureAwait(false);
         PartitionWindow[][] steps = [.. answers.Select(a => a.Result())];
         var results = new WindowSketches[steps[0].Length];
         for (int i = 0; i < results.Length; i++)
@@ -87,8 +101,8 @@ public sealed class ClusterSeriesStore(PartitionFanOut partitions, SeriesSketchO
             var stepWindow = new TimeWindow(from, Math.Min(from + stepMs, window.ToUnixMs));
             PartitionWindow[] perPartition = [.. steps.Select(s => s[i])];
             results[i] = TrySettle(perPartition, stepWindow, out TimeWindow covered)
-                ? Merge(perPartition, covered, groupBy)
-                : await ReadAsync(selector, stepWindow, groupBy, cancellationToken).ConfigureAwait(false);
+                ? Leaving(Merge(perPartition, covered, groupBy), missing)
+                : await ReadAsync(selector, stepWindow, groupBy, acceptPartial, missing, cancellationToken).ConfigureAwait(false);
         }
 
         return results;
@@ -121,7 +135,7 @@ public sealed class ClusterSeriesStore(PartitionFanOut partitions, SeriesSketchO
             tiers[t] = new TierStats(TimeSpan.FromTicks(first.TierWidthTicks[t]), figures.Sum(f => f.TierBuckets[t]), figures.Sum(f => f.TierBytes[t]));
         }
 
-        PartitionStats[] perPartition = [.. figures.Select((f, p) => new PartitionStats(p, f.Series, f.Buckets, f.EstimatedBytes))];
+        PartitionStats[] perPartition = [.. figures.Select((f, p) => new PartitionStats(p, f.Series, f.Buckets, f.EstimatedBytes) { Node = f.Node })];
         return new StoreStats(figures.Sum(f => f.Series), figures.Sum(f => f.Buckets), figures.Sum(f => f.EstimatedBytes), tiers, perPartition, figures.Sum(f => f.ProducerMarks));
     }
 
@@ -142,6 +156,20 @@ public sealed class ClusterSeriesStore(PartitionFanOut partitions, SeriesSketchO
             ? null
             : new SnapshotInfo(written.Max(s => s.Generation), written.Sum(s => s.Series), written.Sum(s => s.Bytes), written.Max(s => s.Elapsed));
     }
+
+    /// <summary>Every partition's answer; with <paramref name="acceptPartial"/>, those that came, the others added to <paramref name="missing"/>.</summary>
+    private async Task<PartitionAnswer[]> AnswersAsync(PartitionRead read, bool acceptPartial, SortedSet<int> missing, CancellationToken cancellationToken)
+    {
+        if (!acceptPartial)
+        {
+            return await partitions.AllAsync(g => g.Read(read), cancellationToken).ConfigureAwait(false);
+        }
+
+        return await partitions.SomeAsync(g => g.Read(read), missing, cancellationToken).ConfigureAwait(false);
+    }
+
+    private WindowSketches Leaving(WindowSketches answer, SortedSet<int> missing) =>
+        missing.Count == 0 ? answer : answer with { Partial = new PartialRead(partitions.Map.Count, [.. missing]) };
 
     /// <summary>True when every partition covered the same span; <paramref name="covered"/> is the widest span any covered.</summary>
     private static bool TrySettle(PartitionWindow[] windows, TimeWindow asked, out TimeWindow covered)

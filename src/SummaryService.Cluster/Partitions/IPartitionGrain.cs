@@ -8,13 +8,12 @@ namespace SummaryService.Cluster.Partitions;
 [Alias("summary.partition")]
 public interface IPartitionGrain : IGrainWithIntegerKey
 {
-    /// <summary>Applies a batch once it is in the partition's log.</summary>
-    [Alias("append")]
-    Task<PartitionWritten> Append(PartitionBatch batch);
-
-    /// <summary>Merges an uploaded sketch once it is in the partition's log.</summary>
-    [Alias("merge")]
-    Task<PartitionWritten> Merge(PartitionUpload upload);
+    /// <summary>
+    /// Applies the writes in their order, each answered once it is in the partition's log. One
+    /// call carries several writes so that their order survives the trip (see <see cref="PartitionWriteQueue"/>).
+    /// </summary>
+    [Alias("write")]
+    Task<PartitionWritten[]> Write(PartitionWrite[] writes);
 
     /// <summary>The partition's selected series merged per group, for the window or each of its steps.</summary>
     [Alias("read")]

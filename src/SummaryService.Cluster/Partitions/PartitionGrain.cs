@@ -1,5 +1,6 @@
 using Microsoft.Extensions.Logging;
 using Orleans.Concurrency;
+using SummaryService.Cluster.Postgres;
 using SummaryService.Store;
 using SummaryService.Store.Persistence;
 
@@ -60,31 +61,37 @@ internal sealed class PartitionGrain(IPartitionStorage storage, PartitionSetup s
         }
     }
 
-    public async Task<PartitionWritten> Append(PartitionBatch batch)
+    /// <summary>
+    /// Each write is applied in the store's synchronous part of its call, before the next one starts,
+    /// so they apply in the order given; then all wait for their log commits together.
+    /// </summary>
+    public Task<PartitionWritten[]> Write(PartitionWrite[] writes)
     {
-        ArgumentNullException.ThrowIfNull(batch);
-        try
+        ArgumentNullException.ThrowIfNull(writes);
+        var written = new Task<PartitionWritten>[writes.Length];
+        for (int i = 0; i < writes.Length; i++)
         {
-            AppendResult result = await Store.AppendAsync(batch.ToBatch()).ConfigureAwait(true);
-            return new PartitionWritten(result.Accepted, result.Duplicate, null);
+            PartitionWrite write = writes[i];
+            written[i] = WrittenAsync(write.Batch is { } batch ? Store.AppendAsync(batch.ToBatch()) : Store.MergeSketchAsync(write.Upload!.ToUpload()));
         }
-        catch (StoreRejectedException rejection)
-        {
-            return new PartitionWritten(0, false, PartitionRejection.From(rejection));
-        }
+
+        return Task.WhenAll(written);
     }
 
-    public async Task<PartitionWritten> Merge(PartitionUpload upload)
+    private async Task<PartitionWritten> WrittenAsync(ValueTask<AppendResult> applying)
     {
-        ArgumentNullException.ThrowIfNull(upload);
         try
         {
-            AppendResult result = await Store.MergeSketchAsync(upload.ToUpload()).ConfigureAwait(true);
+            AppendResult result = await applying.ConfigureAwait(true);
             return new PartitionWritten(result.Accepted, result.Duplicate, null);
         }
         catch (StoreRejectedException rejection)
         {
             return new PartitionWritten(0, false, PartitionRejection.From(rejection));
+        }
+        catch (PartitionFencedException fenced)
+        {
+            throw Superseded(fenced);
         }
     }
 
@@ -127,11 +134,27 @@ internal sealed class PartitionGrain(IPartitionStorage storage, PartitionSetup s
         return info is null ? null : new PartitionSnapshot(info.Generation, info.Series, info.Bytes, info.Elapsed);
     }
 
+    /// <summary>
+    /// This activation was superseded by a newer one elsewhere (its memory now lags the log the
+    /// other writes): it goes away, so the next call reaches the current one, and the caller learns
+    /// that its write was not kept. Only the message travels, as for every storage failure.
+    /// </summary>
+    private StorageUnavailableException Superseded(PartitionFencedException fenced)
+    {
+        logger.LogWarning("Partition {Partition} on {Node}: {Reason} Deactivating.", Partition, silo.SiloAddress, fenced.Message);
+        DeactivateOnIdle();
+        return new StorageUnavailableException(fenced.Message);
+    }
+
     private async Task SnapshotOnTimerAsync(CancellationToken cancellationToken)
     {
         try
         {
             await Store.WriteSnapshotAsync(cancellationToken).ConfigureAwait(true);
+        }
+        catch (PartitionFencedException fenced)
+        {
+            _ = Superseded(fenced);
         }
         catch (StorageUnavailableException ex)
         {

@@ -67,6 +67,10 @@ public sealed record PartitionUpload(
     };
 }
 
+/// <summary>One write for a partition: a batch of values or an uploaded sketch.</summary>
+[GenerateSerializer, Immutable, Alias("summary.partition.write")]
+public sealed record PartitionWrite([property: Id(0)] PartitionBatch? Batch, [property: Id(1)] PartitionUpload? Upload);
+
 /// <summary>A refusal by the partition's store, carried back to be raised on the node that was called.</summary>
 [GenerateSerializer, Immutable, Alias("summary.partition.rejection")]
 public sealed record PartitionRejection([property: Id(0)] int Reason, [property: Id(1)] string Field, [property: Id(2)] string Message)

@@ -9,9 +9,10 @@ namespace SummaryService.Cluster.Postgres;
 /// <summary>
 /// One partition's batch log: rows of <c>summary_batch_log</c> keyed by (partition, lsn), each a
 /// log record as the file log frames it. Appends go through the node's <see cref="PostgresLogWriter"/>,
-/// which commits every partition's records together.
+/// which commits every partition's records together. Writes carry the activation's
+/// <paramref name="epoch"/> and are fenced by it (<see cref="PartitionEpochs"/>).
 /// </summary>
-public sealed class PostgresBatchLog(int partition, NpgsqlDataSource database, PostgresLogWriter writer, ILogger logger) : IBatchLog
+public sealed class PostgresBatchLog(int partition, long epoch, NpgsqlDataSource database, PostgresLogWriter writer, ILogger logger) : IBatchLog
 {
     private readonly object _gate = new();
     private Task _last = Task.CompletedTask;
@@ -78,7 +79,7 @@ public sealed class PostgresBatchLog(int partition, NpgsqlDataSource database, P
             throw new InvalidOperationException("the batch log is not started; nothing can be appended before Start.");
         }
 
-        Task committed = writer.Append(partition, write.Lsn, StoreRecordCodec.ToRecord(write).ToByteArray());
+        Task committed = writer.Append(partition, epoch, write.Lsn, StoreRecordCodec.ToRecord(write).ToByteArray());
         lock (_gate)
         {
             _last = committed;
@@ -107,8 +108,10 @@ public sealed class PostgresBatchLog(int partition, NpgsqlDataSource database, P
     /// <inheritdoc/>
     public void DeleteBefore(ulong keepFrom)
     {
-        using NpgsqlCommand command = database.CreateCommand("DELETE FROM summary_batch_log WHERE partition = @partition AND lsn < @keep");
+        // A superseded activation trims nothing: the records may be what the current one replays.
+        using NpgsqlCommand command = database.CreateCommand(PartitionEpochs.Owner + "DELETE FROM summary_batch_log WHERE partition = @partition AND lsn < @keep AND EXISTS (SELECT FROM owner)");
         command.Parameters.AddWithValue("partition", partition);
+        command.Parameters.AddWithValue("epoch", epoch);
         command.Parameters.AddWithValue("keep", (long)keepFrom);
         command.ExecuteNonQuery();
     }

@@ -7,7 +7,10 @@ namespace SummaryService.Cluster.Postgres;
 
 /// <summary>
 /// Group commit of every partition on this node into the log table: records queued while one
-/// insert runs go together in the next, one statement and one commit for all of them. A record's
+/// insert runs go together in the next, one statement and one commit for all of them. Each record
+/// carries its activation's epoch (<see cref="PartitionEpochs"/>) and lands only while that epoch
+/// is still its partition's: a record of an activation superseded elsewhere fails with
+/// <see cref="PartitionFencedException"/> and is not written again. A record's
 /// task completes once its commit has, or fails when the insert fails; the failed records stay
 /// first in line and are written again once the database answers (a retried record that did land
 /// is skipped by its key), so nothing accepted is left out of the log. Failures carry the
@@ -46,9 +49,9 @@ public sealed class PostgresLogWriter : IAsyncDisposable
     public (long Commits, long Records, long Bytes) Written => (Interlocked.Read(ref _commits), Interlocked.Read(ref _records), Interlocked.Read(ref _bytes));
 
     /// <summary>Queues one record; completes once it is committed.</summary>
-    public Task Append(int partition, ulong lsn, byte[] record)
+    public Task Append(int partition, long epoch, ulong lsn, byte[] record)
     {
-        var pending = new Pending(partition, (long)lsn, record, new TaskCompletionSource(TaskCreationOptions.RunContinuationsAsynchronously));
+        var pending = new Pending(partition, epoch, (long)lsn, record, new TaskCompletionSource(TaskCreationOptions.RunContinuationsAsynchronously));
         if (!_queue.Writer.TryWrite(pending))
         {
             pending.Done.SetException(new StorageUnavailableException("the batch log is closed; the node is stopping."));
@@ -78,7 +81,8 @@ public sealed class PostgresLogWriter : IAsyncDisposable
 
             try
             {
-                await InsertAsync(group, _stopping.Token).ConfigureAwait(false);
+                IReadOnlyDictionary<int, long> epochs = await InsertAsync(group, _stopping.Token).ConfigureAwait(false);
+                group.RemoveAll(pending => Fenced(pending, epochs));
                 Interlocked.Increment(ref _commits);
                 Interlocked.Add(ref _records, group.Count);
                 Interlocked.Add(ref _bytes, group.Sum(p => (long)p.Record.Length));
@@ -114,15 +118,52 @@ public sealed class PostgresLogWriter : IAsyncDisposable
         }
     }
 
-    private async Task InsertAsync(List<Pending> group, CancellationToken cancellationToken)
+    /// <summary>Fails a record whose activation was superseded; true when it was.</summary>
+    private static bool Fenced(Pending pending, IReadOnlyDictionary<int, long> epochs)
     {
-        await using NpgsqlCommand command = _database.CreateCommand(
-            "INSERT INTO summary_batch_log (partition, lsn, record) SELECT * FROM unnest(@partitions, @lsns, @records) ON CONFLICT DO NOTHING");
-        command.Parameters.AddWithValue("partitions", group.Select(p => p.Partition).ToArray());
-        command.Parameters.AddWithValue("lsns", group.Select(p => p.Lsn).ToArray());
-        command.Parameters.AddWithValue("records", group.Select(p => p.Record).ToArray());
-        await command.ExecuteNonQueryAsync(cancellationToken).ConfigureAwait(false);
+        long current = epochs.GetValueOrDefault(pending.Partition);
+        if (current == pending.Epoch)
+        {
+            return false;
+        }
+
+        pending.Done.TrySetException(new PartitionFencedException(pending.Partition, pending.Epoch, current));
+        return true;
     }
 
-    private sealed record Pending(int Partition, long Lsn, byte[] Record, TaskCompletionSource Done);
+    /// <summary>
+    /// Inserts the records whose epoch is their partition's current one, in one statement that holds
+    /// a share lock on those partitions' epoch rows until it commits: a new activation's claim waits
+    /// for it, so whatever this insert wrote is in the log the new activation reads. Returns the
+    /// partitions' current epochs.
+    /// </summary>
+    private async Task<IReadOnlyDictionary<int, long>> InsertAsync(List<Pending> group, CancellationToken cancellationToken)
+    {
+        await using NpgsqlCommand command = _database.CreateCommand(
+            """
+            WITH owner AS (
+                SELECT partition, epoch FROM summary_partition_owner WHERE partition = ANY(@partitions) FOR SHARE),
+            written AS (
+                INSERT INTO summary_batch_log (partition, lsn, epoch, record)
+                SELECT r.partition, r.lsn, r.epoch, r.record
+                FROM unnest(@partitions, @lsns, @epochs, @records) AS r(partition, lsn, epoch, record)
+                JOIN owner ON owner.partition = r.partition AND owner.epoch = r.epoch
+                ON CONFLICT DO NOTHING)
+            SELECT partition, epoch FROM owner
+            """);
+        command.Parameters.AddWithValue("partitions", group.Select(p => p.Partition).ToArray());
+        command.Parameters.AddWithValue("lsns", group.Select(p => p.Lsn).ToArray());
+        command.Parameters.AddWithValue("epochs", group.Select(p => p.Epoch).ToArray());
+        command.Parameters.AddWithValue("records", group.Select(p => p.Record).ToArray());
+        var epochs = new Dictionary<int, long>();
+        await using NpgsqlDataReader reader = await command.ExecuteReaderAsync(cancellationToken).ConfigureAwait(false);
+        while (await reader.ReadAsync(cancellationToken).ConfigureAwait(false))
+        {
+            epochs[reader.GetInt32(0)] = reader.GetInt64(1);
+        }
+
+        return epochs;
+    }
+
+    private sealed record Pending(int Partition, long Epoch, long Lsn, byte[] Record, TaskCompletionSource Done);
 }

@@ -34,6 +34,12 @@ public static class PostgresSchema
             series bytea[] NOT NULL,
             PRIMARY KEY (partition, generation, shard));
         """,
+        """
+        CREATE TABLE summary_partition_owner (
+            partition integer PRIMARY KEY,
+            epoch bigint NOT NULL);
+        ALTER TABLE summary_batch_log ADD COLUMN epoch bigint NOT NULL DEFAULT 0;
+        """,
     ];
 
     // An arbitrary constant naming this schema's migration lock among the database's advisory locks.

@@ -11,8 +11,10 @@ namespace SummaryService.Cluster.Postgres;
 /// header and its series records), the generation made visible by its manifest row in
 /// <c>summary_snapshot</c>, written last in its own transaction. Rows are the file snapshot's
 /// records (<see cref="StoreRecordCodec"/>); the database checks what checksums check in files.
+/// Every write is fenced by the activation's <paramref name="epoch"/> (<see cref="PartitionEpochs"/>):
+/// a superseded activation can neither publish a generation nor disturb the current one's.
 /// </summary>
-public sealed class PostgresSnapshotStore(int partition, NpgsqlDataSource database) : ISnapshotStore
+public sealed class PostgresSnapshotStore(int partition, long epoch, NpgsqlDataSource database) : ISnapshotStore
 {
     /// <inheritdoc/>
     public IReadOnlyList<ulong> Generations()
@@ -73,7 +75,7 @@ public sealed class PostgresSnapshotStore(int partition, NpgsqlDataSource databa
     public ISnapshotWriter Begin(ulong generation)
     {
         // Shards left by an abandoned attempt at the same generation would be read as this one's.
-        using NpgsqlCommand command = Command("DELETE FROM summary_snapshot_shard WHERE partition = @partition AND generation = @generation", generation);
+        using NpgsqlCommand command = FencedCommand("DELETE FROM summary_snapshot_shard WHERE partition = @partition AND generation = @generation AND EXISTS (SELECT FROM owner)", generation);
         command.ExecuteNonQuery();
         return new Writer(this, generation);
     }
@@ -86,12 +88,13 @@ public sealed class PostgresSnapshotStore(int partition, NpgsqlDataSource databa
         const string Kept = "SELECT generation FROM summary_snapshot WHERE partition = @partition ORDER BY generation DESC LIMIT @keep";
         foreach (string sql in new[]
         {
-            $"DELETE FROM summary_snapshot_shard WHERE partition = @partition AND generation NOT IN ({Kept})",
-            $"DELETE FROM summary_snapshot WHERE partition = @partition AND generation NOT IN ({Kept})",
+            $"{PartitionEpochs.Owner}DELETE FROM summary_snapshot_shard WHERE partition = @partition AND generation NOT IN ({Kept}) AND EXISTS (SELECT FROM owner)",
+            $"{PartitionEpochs.Owner}DELETE FROM summary_snapshot WHERE partition = @partition AND generation NOT IN ({Kept}) AND EXISTS (SELECT FROM owner)",
         })
         {
             using var command = new NpgsqlCommand(sql, connection, transaction);
             command.Parameters.AddWithValue("partition", partition);
+            command.Parameters.AddWithValue("epoch", epoch);
             command.Parameters.AddWithValue("keep", keep);
             command.ExecuteNonQuery();
         }
@@ -106,6 +109,16 @@ public sealed class PostgresSnapshotStore(int partition, NpgsqlDataSource databa
         command.Parameters.AddWithValue("generation", (long)generation);
         return command;
     }
+
+    /// <summary>A write that lands only while this activation's epoch is current; <paramref name="sql"/> reads <c>owner</c>.</summary>
+    private NpgsqlCommand FencedCommand(string sql, ulong generation)
+    {
+        NpgsqlCommand command = Command(PartitionEpochs.Owner + sql, generation);
+        command.Parameters.AddWithValue("epoch", epoch);
+        return command;
+    }
+
+    private PartitionFencedException Fenced() => PartitionEpochs.Fenced(database, partition, epoch);
 
     private SnapshotManifest? ReadManifest(ulong generation)
     {
@@ -128,19 +141,25 @@ public sealed class PostgresSnapshotStore(int partition, NpgsqlDataSource databa
             byte[][] series = [.. _series];
             _series = [];
             _bytes += header.Length + series.Sum(s => (long)s.Length);
-            await using NpgsqlCommand command = store.Command("INSERT INTO summary_snapshot_shard (partition, generation, shard, header, series) VALUES (@partition, @generation, @shard, @header, @series)", generation);
+            await using NpgsqlCommand command = store.FencedCommand("INSERT INTO summary_snapshot_shard (partition, generation, shard, header, series) SELECT @partition, @generation, @shard, @header, @series FROM owner", generation);
             command.Parameters.AddWithValue("shard", shard.Shard);
             command.Parameters.AddWithValue("header", header);
             command.Parameters.AddWithValue("series", series);
-            await command.ExecuteNonQueryAsync().ConfigureAwait(false);
+            if (await command.ExecuteNonQueryAsync().ConfigureAwait(false) == 0)
+            {
+                throw store.Fenced();
+            }
         }
 
         public long Complete(SnapshotMark mark)
         {
             byte[] manifest = StoreRecordCodec.ToManifest(mark).ToByteArray();
-            using NpgsqlCommand command = store.Command("INSERT INTO summary_snapshot (partition, generation, manifest) VALUES (@partition, @generation, @manifest)", generation);
+            using NpgsqlCommand command = store.FencedCommand("INSERT INTO summary_snapshot (partition, generation, manifest) SELECT @partition, @generation, @manifest FROM owner", generation);
             command.Parameters.AddWithValue("manifest", manifest);
-            command.ExecuteNonQuery();
+            if (command.ExecuteNonQuery() == 0)
+            {
+                throw store.Fenced();
+            }
             return _bytes + manifest.Length;
         }
 

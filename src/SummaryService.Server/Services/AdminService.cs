@@ -48,7 +48,15 @@ public sealed class AdminService(ISeriesStore store, IStoreMaintenance upkeep) :
         StoreStats stats = await store.GetStatsAsync(context.CancellationToken).ConfigureAwait(false);
         var reply = new HoldingsReply { Series = (uint)stats.Series, Buckets = (ulong)stats.Buckets, EstimatedBytes = (ulong)stats.EstimatedBytes, Durability = upkeep.Durability.ToString(), ProducerMarks = (uint)stats.ProducerMarks };
         reply.Tiers.AddRange(stats.Tiers.Select(t => new TierHoldings { BucketWidth = Duration.FromTimeSpan(t.BucketWidth), Buckets = (ulong)t.Buckets, EstimatedBytes = (ulong)t.EstimatedBytes }));
-        reply.Shards.AddRange(stats.Partitions.Select(s => new ShardHoldings { Shard = (uint)s.Partition, Series = (uint)s.Series, Buckets = (ulong)s.Buckets, EstimatedBytes = (ulong)Math.Max(0, s.EstimatedBytes) }));
+        reply.Shards.AddRange(stats.Partitions.Select(s => new ShardHoldings { Shard = (uint)s.Partition, Series = (uint)s.Series, Buckets = (ulong)s.Buckets, EstimatedBytes = (ulong)Math.Max(0, s.EstimatedBytes), Node = s.Node ?? "" }));
+        reply.Nodes.AddRange(stats.Partitions.Where(s => s.Node is not null).GroupBy(s => s.Node!, StringComparer.Ordinal).OrderBy(n => n.Key, StringComparer.Ordinal).Select(n => new NodeHoldings
+        {
+            Node = n.Key,
+            Partitions = (uint)n.Count(),
+            Series = (uint)n.Sum(s => s.Series),
+            Buckets = (ulong)n.Sum(s => s.Buckets),
+            EstimatedBytes = (ulong)Math.Max(0, n.Sum(s => s.EstimatedBytes)),
+        }));
         return reply;
     }
 }

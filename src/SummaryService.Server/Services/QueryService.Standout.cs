@@ -27,27 +27,30 @@ public sealed partial class QueryService
         TimeWindow? before = request.Before is null ? null : QueryRequests.WindowOf(request.Before, "before", now);
         StandoutOptions options = StandoutRequests.OptionsOf(request);
 
-        var (groups, shared, sharedSeries, covered) = await SplitAsync(selector, splitBy, window, context).ConfigureAwait(false);
+        var (groups, shared, sharedSeries, read) = await SplitAsync(selector, splitBy, window, request.AcceptPartial, context).ConfigureAwait(false);
+        WindowSketches? readBefore = null;
         StandoutBaseline? baseline = null;
         TimeWindow coveredBefore = default;
         if (before is { } earlier)
         {
-            (var groupsBefore, var sharedBefore, int sharedSeriesBefore, coveredBefore) = await SplitAsync(selector, splitBy, earlier, context).ConfigureAwait(false);
+            (var groupsBefore, var sharedBefore, int sharedSeriesBefore, readBefore) = await SplitAsync(selector, splitBy, earlier, request.AcceptPartial, context).ConfigureAwait(false);
+            coveredBefore = readBefore.Covered;
             baseline = new StandoutBaseline(groupsBefore, sharedBefore, sharedSeriesBefore);
         }
 
         StandoutReply reply = StandoutMapping.ToProto(SplitComparison.Rank(groups, shared, sharedSeries, options, baseline), options);
-        reply.Covered = SummaryMapping.ToProto(covered);
+        reply.Covered = SummaryMapping.ToProto(read.Covered);
+        reply.Coverage = CoverageMapping.ToProto(readBefore is null ? [read] : [read, readBefore]);
         reply.CoveredBefore = before is null ? null : SummaryMapping.ToProto(coveredBefore);
         reply.UnsplitSeries = (uint)sharedSeries;
         return reply;
     }
 
     // One window's groups by the label's value; series without the label are kept apart.
-    private async Task<(List<StandoutInput> Groups, SeriesSketch? Shared, int SharedSeries, TimeWindow Covered)> SplitAsync(SeriesSelector selector, string splitBy, TimeWindow window, ServerCallContext context)
+    private async Task<(List<StandoutInput> Groups, SeriesSketch? Shared, int SharedSeries, WindowSketches Read)> SplitAsync(SeriesSelector selector, string splitBy, TimeWindow window, bool acceptPartial, ServerCallContext context)
     {
         // Series that lack the label are welcome (they join every rest): only an empty selection is refused here.
-        WindowSketches read = await store.ReadAsync(selector, window, [splitBy], context.CancellationToken).ConfigureAwait(false);
+        WindowSketches read = await store.ReadAsync(selector, window, [splitBy], acceptPartial, context.CancellationToken).ConfigureAwait(false);
         SelectionCheck.Require(read, selector, [], "selector");
         var groups = new List<StandoutInput>(read.Groups.Count);
         SeriesSketch? shared = null;
@@ -70,6 +73,6 @@ public sealed partial class QueryService
             throw RpcErrors.Invalid("split_by", $"split_by is '{splitBy}', a label none of the {sharedSeries} series matching {selector} carries.");
         }
 
-        return (groups, shared, sharedSeries, read.Covered);
+        return (groups, shared, sharedSeries, read);
     }
 }

@@ -26,8 +26,10 @@ public sealed partial class QueryService(ISeriesStore store, ServerMetrics metri
     {
         var (selector, groupBy, options) = Prepare(request, context);
         TimeWindow window = QueryRequests.WindowOf(request.Window, "window", NowMs());
-        WindowSketches read = await ReadSelectedAsync(selector, window, groupBy, "selector", context).ConfigureAwait(false);
-        return SummaryMapping.ToProto(StoreSummaries.Summarize(read, options));
+        WindowSketches read = await ReadSelectedAsync(selector, window, groupBy, request.AcceptPartial, "selector", context).ConfigureAwait(false);
+        SummarizeReply reply = SummaryMapping.ToProto(StoreSummaries.Summarize(read, options));
+        reply.Coverage = CoverageMapping.ToProto([read]);
+        return reply;
     }
 
     /// <summary>
@@ -42,9 +44,11 @@ public sealed partial class QueryService(ISeriesStore store, ServerMetrics metri
         long step = QueryShapes.StepOf(request.Step, window, settings.Value.MaxTimelineSteps);
         string[] groupBy = QueryShapes.GroupByOf(request.GroupBy);
         SummaryOptions options = QueryRequests.OptionsOf(request.Quantiles, request.Confidence, [], 0, null);
-        var reads = await store.ReadStepsAsync(selector, window, step, groupBy, context.CancellationToken).ConfigureAwait(false);
+        var reads = await store.ReadStepsAsync(selector, window, step, groupBy, request.AcceptPartial, context.CancellationToken).ConfigureAwait(false);
         SelectionCheck.Require(reads[0], selector, groupBy, "selector");
-        return ComparisonMapping.ToTimeline(window, step, reads.Select(r => StoreSummaries.Summarize(r, options)).ToArray());
+        TimelineReply reply = ComparisonMapping.ToTimeline(window, step, reads.Select(r => StoreSummaries.Summarize(r, options)).ToArray());
+        reply.Coverage = CoverageMapping.ToProto(reads);
+        return reply;
     }
 
     /// <summary>
@@ -74,7 +78,9 @@ public sealed partial class QueryService(ISeriesStore store, ServerMetrics metri
                 // Each update is one answered query, timed as such (the call itself is a stream).
                 long started = time.GetTimestamp();
                 TimeWindow window = QueryRequests.WindowOf(query.Window, "query.window", NowMs());
-                SummarizeReply reply = SummaryMapping.ToProto(await store.SummarizeAsync(selector, window, groupBy, options, stop.Token).ConfigureAwait(false));
+                WindowSketches read = await store.ReadAsync(selector, window, groupBy, query.AcceptPartial, stop.Token).ConfigureAwait(false);
+                SummarizeReply reply = SummaryMapping.ToProto(StoreSummaries.Summarize(read, options));
+                reply.Coverage = CoverageMapping.ToProto([read]);
                 metrics.QueryAnswered(nameof(Watch), ServerMetrics.Since(time, started));
                 await SlowReaders.WriteOrCutOffAsync(responseStream, reply, settings.Value.WatchMaxLag, time, stop.Token).ConfigureAwait(false);
                 sent++;
@@ -93,12 +99,14 @@ public sealed partial class QueryService(ISeriesStore store, ServerMetrics metri
         ArgumentNullException.ThrowIfNull(request);
         long now = NowMs();
         SummaryOptions options = QueryRequests.OptionsOf(request.Quantiles, request.Confidence, [], 0, null, QueryDefaults.CompareQuantiles);
-        WindowSummary a = await SideAsync(request.A, "a", now, options, context).ConfigureAwait(false);
-        WindowSummary b = await SideAsync(request.B, "b", now, options, context).ConfigureAwait(false);
-        return ComparisonMapping.ToComparison(a, b, options);
+        WindowSketches a = await SideAsync(request.A, "a", now, request.AcceptPartial, context).ConfigureAwait(false);
+        WindowSketches b = await SideAsync(request.B, "b", now, request.AcceptPartial, context).ConfigureAwait(false);
+        CompareReply reply = ComparisonMapping.ToComparison(StoreSummaries.Summarize(a, options), StoreSummaries.Summarize(b, options), options);
+        reply.Coverage = CoverageMapping.ToProto([a, b]);
+        return reply;
     }
 
-    private async Task<WindowSummary> SideAsync(Side? side, string name, long now, SummaryOptions options, ServerCallContext context)
+    private async Task<WindowSketches> SideAsync(Side? side, string name, long now, bool acceptPartial, ServerCallContext context)
     {
         if (side is null)
         {
@@ -107,14 +115,13 @@ public sealed partial class QueryService(ISeriesStore store, ServerMetrics metri
 
         SeriesSelector selector = Readable(side.Selector, $"{name}.selector", context);
         TimeWindow window = QueryRequests.WindowOf(side.Window, $"{name}.window", now);
-        WindowSketches read = await ReadSelectedAsync(selector, window, [], $"{name}.selector", context).ConfigureAwait(false);
-        return StoreSummaries.Summarize(read, options);
+        return await ReadSelectedAsync(selector, window, [], acceptPartial, $"{name}.selector", context).ConfigureAwait(false);
     }
 
     // A selection that matched nothing, or a group-by label none of its series carries, is refused by name.
-    private async Task<WindowSketches> ReadSelectedAsync(SeriesSelector selector, TimeWindow window, string[] groupBy, string field, ServerCallContext context)
+    private async Task<WindowSketches> ReadSelectedAsync(SeriesSelector selector, TimeWindow window, string[] groupBy, bool acceptPartial, string field, ServerCallContext context)
     {
-        WindowSketches read = await store.ReadAsync(selector, window, groupBy, context.CancellationToken).ConfigureAwait(false);
+        WindowSketches read = await store.ReadAsync(selector, window, groupBy, acceptPartial, context.CancellationToken).ConfigureAwait(false);
         SelectionCheck.Require(read, selector, groupBy, field);
         return read;
     }

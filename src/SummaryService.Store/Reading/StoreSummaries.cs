@@ -21,7 +21,7 @@ public static class StoreSummaries
         return Summarize(read, options);
     }
 
-    /// <summary>One summary per step of the window, oldest first (see <see cref="ISeriesStore.ReadStepsAsync"/>).</summary>
+    /// <summary>One summary per step of the window, oldest first (see <see cref="ISeriesStore.ReadStepsAsync(SeriesSelector, TimeWindow, long, IReadOnlyList{string}, CancellationToken)"/>).</summary>
     /// <exception cref="StoreRejectedException">The options are out of range, the window is empty, or the step is refused.</exception>
     public static async ValueTask<IReadOnlyList<WindowSummary>> SummarizeStepsAsync(this ISeriesStore store, SeriesSelector selector, TimeWindow window, long stepMs, IReadOnlyList<string> groupBy, SummaryOptions options, CancellationToken cancellationToken = default)
     {

@@ -10,9 +10,10 @@ public sealed class ClusterNodes : IAsyncDisposable
 {
     private readonly List<ServerProcess> _servers;
 
-    private ClusterNodes(List<ServerProcess> servers)
+    private ClusterNodes(List<ServerProcess> servers, int[] siloPorts)
     {
         _servers = servers;
+        SiloPorts = siloPorts;
         Channels = [.. servers.Select(s => GrpcChannel.ForAddress(s.Address))];
     }
 
@@ -20,20 +21,36 @@ public sealed class ClusterNodes : IAsyncDisposable
 
     public IReadOnlyList<ServerProcess> Servers => _servers;
 
-    public static async Task<ClusterNodes> StartAsync(int count, string postgres, string redis, string clusterId, string dataRoot, int partitions = 16)
+    /// <summary>Each node's port for traffic between nodes, part of the node's name in store figures.</summary>
+    public IReadOnlyList<int> SiloPorts { get; }
+
+    /// <summary>The index of the node a store figure's node name stands for.</summary>
+    public int IndexOf(string node) => Enumerable.Range(0, SiloPorts.Count).Single(i => node.Contains($":{SiloPorts[i]}", StringComparison.Ordinal));
+
+    /// <summary>
+    /// Starts the nodes and, with <paramref name="waitServing"/>, waits until each serves (every
+    /// partition answers); <paramref name="settings"/> are further settings every node gets.
+    /// </summary>
+    public static async Task<ClusterNodes> StartAsync(int count, string postgres, string redis, string clusterId, string dataRoot, int partitions = 16, IReadOnlyDictionary<string, string>? settings = null, bool waitServing = true)
     {
-        var starting = Enumerable.Range(0, count).Select(i => ServerProcess.StartAsync(new Dictionary<string, string>
+        int[] siloPorts = [.. Enumerable.Range(0, count).Select(_ => ServerProcess.FreePort())];
+        var starting = Enumerable.Range(0, count).Select(i => ServerProcess.StartAsync(new Dictionary<string, string>(settings ?? new Dictionary<string, string>())
         {
             ["Cluster__Mode"] = "Orleans",
             ["Cluster__Postgres"] = postgres,
             ["Cluster__Redis"] = redis,
             ["Cluster__ClusterId"] = clusterId,
             ["Cluster__Partitions"] = partitions.ToString(System.Globalization.CultureInfo.InvariantCulture),
-            ["Cluster__SiloPort"] = ServerProcess.FreePort().ToString(System.Globalization.CultureInfo.InvariantCulture),
+            ["Cluster__SiloPort"] = siloPorts[i].ToString(System.Globalization.CultureInfo.InvariantCulture),
             ["Cluster__GatewayPort"] = ServerProcess.FreePort().ToString(System.Globalization.CultureInfo.InvariantCulture),
             ["Persistence__DataDirectory"] = Path.Combine(dataRoot, $"node{i}"),
         }, waitForHealth: false)).ToArray();
-        var nodes = new ClusterNodes([.. await Task.WhenAll(starting)]);
+        var nodes = new ClusterNodes([.. await Task.WhenAll(starting)], siloPorts);
+        if (!waitServing)
+        {
+            return nodes;
+        }
+
         await Task.WhenAll(nodes.Channels.Select((channel, i) => WaitServingAsync(channel, nodes._servers[i])));
         return nodes;
     }

@@ -41,4 +41,15 @@ internal static class Parcels
 
         return batches;
     }
+
+    /// <summary>A batch as a client sends it.</summary>
+    public static Contract.V1.Batch ToWire(SeriesBatch batch) => new()
+    {
+        Metric = batch.Metric,
+        Labels = { batch.Labels.ToDictionary() },
+        Values = { batch.Values.ToArray() },
+        TimeUnixMs = batch.TimeUnixMs,
+        Producer = batch.Producer,
+        Sequence = batch.Sequence,
+    };
 }
